@@ -1,0 +1,61 @@
+//! tandem reads a calc file describing an assembly of parts that share a load
+//! and turns it into a checked, solved and reported calculation. The pipeline
+//! runs in stages, each with one input and one output type: [`syntax`] parses
+//! the text into an owned syntax tree; [`model`] resolves names, evaluates
+//! expressions with units and checks every dimension, giving a typed
+//! [`model::Model`]; `solve` assembles and factorises the stiffness system
+//! for every load combination; `report` writes the results. Errors from
+//! every stage are `miette` diagnostics that point at the offending span
+//! ([`diagnostic`]).
+
+pub mod diagnostic;
+pub mod model;
+pub mod source;
+pub mod syntax;
+pub mod units;
+
+use std::path::Path;
+
+pub use diagnostic::Error;
+use model::Model;
+use source::Source;
+
+/// The largest calc file tandem reads.
+pub const MAX_FILE_BYTES: u64 = 64 * 1024 * 1024;
+
+/// Read a calc file, refusing files over [`MAX_FILE_BYTES`] and non-UTF-8 text.
+///
+/// # Errors
+/// An I/O error, or a message for an oversized or non-text file.
+pub fn read_source(path: &Path) -> Result<Source, String> {
+    let meta =
+        std::fs::metadata(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+    if meta.len() > MAX_FILE_BYTES {
+        return Err(format!(
+            "{} is {} bytes; tandem reads calc files of at most {} MiB",
+            path.display(),
+            meta.len(),
+            MAX_FILE_BYTES / (1024 * 1024)
+        ));
+    }
+    let bytes = std::fs::read(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        format!(
+            "{} is not UTF-8 text (byte {})",
+            path.display(),
+            e.utf8_error().valid_up_to()
+        )
+    })?;
+    Ok(Source::new(path.display().to_string(), text))
+}
+
+/// Parse and check a calc file: the typed model, or every error found.
+///
+/// # Errors
+/// Syntax errors, or all model errors in the file.
+pub fn check(source: &Source) -> Result<Model, Vec<Error>> {
+    let file = syntax::parse(&source.text)
+        .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
+    model::build(&file, model::Limits::default())
+        .map_err(|es| es.into_iter().map(Error::from).collect())
+}

@@ -1,0 +1,1745 @@
+//! Syntax tree to [`Model`]: every name resolved, every expression evaluated
+//! and its dimension checked. All errors in a file are collected.
+
+use std::collections::{BTreeMap, HashMap};
+
+use uom::si::area::square_meter;
+use uom::si::f64::{
+    Area, Force, Length, Pressure, Ratio, TemperatureCoefficient, TemperatureInterval,
+};
+use uom::si::force::newton;
+use uom::si::length::meter;
+use uom::si::pressure::pascal;
+use uom::si::ratio::ratio;
+use uom::si::surface_tension::newton_per_meter;
+use uom::si::temperature_coefficient::per_kelvin;
+use uom::si::temperature_interval::kelvin;
+
+use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS, FUNCTIONS};
+use super::{
+    did_you_mean, Carries, Case, Check, Combination, FreeStrain, Kind, Law, LetValue, Load,
+    Material, Model, ModelError, Node, Part, Rigid, Settlement, Stiffness, Temperature, Tie, Title,
+    UnitChoice,
+};
+use crate::source::Span;
+use crate::syntax::ast::{self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, Value};
+use crate::units::{lookup, Dimension, Quantity};
+
+/// Size limits, so that hostile input gets a diagnostic, not exhaustion.
+#[derive(Clone, Copy, Debug)]
+pub struct Limits {
+    pub max_declarations: usize,
+    pub max_name_len: usize,
+}
+
+impl Default for Limits {
+    fn default() -> Self {
+        Self {
+            max_declarations: 5_000_000,
+            max_name_len: 128,
+        }
+    }
+}
+
+/// What a declared name stands for.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum NameKind {
+    Let,
+    Material,
+    Node,
+    Part,
+    Rigid,
+    Case,
+    Combination,
+}
+
+impl NameKind {
+    fn word(self) -> &'static str {
+        match self {
+            NameKind::Let => "value",
+            NameKind::Material => "material",
+            NameKind::Node => "node",
+            NameKind::Part => "part",
+            NameKind::Rigid => "rigid body",
+            NameKind::Case => "case",
+            NameKind::Combination => "combination",
+        }
+    }
+}
+
+struct Names<'a> {
+    map: HashMap<&'a str, (NameKind, usize, Span)>,
+    /// Per kind, the names in file order (for suggestions).
+    by_kind: BTreeMap<u8, Vec<&'a str>>,
+}
+
+impl<'a> Names<'a> {
+    fn get(&self, name: &str) -> Option<(NameKind, usize, Span)> {
+        self.map.get(name).copied()
+    }
+
+    fn of_kind(&self, kind: NameKind) -> impl Iterator<Item = &'a str> + '_ {
+        self.by_kind
+            .get(&(kind as u8))
+            .into_iter()
+            .flatten()
+            .copied()
+    }
+
+    /// Resolve a name that must be of `kind`, with a suggestion when not.
+    fn expect(&self, id: &Ident, kind: NameKind) -> Result<usize, ModelError> {
+        match self.get(&id.name) {
+            Some((k, i, _)) if k == kind => Ok(i),
+            Some((k, _, _)) => Err(ModelError::WrongKind {
+                name: id.name.clone(),
+                found: k.word(),
+                expected: kind.word(),
+                span: id.span,
+                help: did_you_mean(&id.name, self.of_kind(kind)),
+            }),
+            None => Err(ModelError::UnknownName {
+                kind: kind.word(),
+                name: id.name.clone(),
+                span: id.span,
+                help: did_you_mean(&id.name, self.of_kind(kind)).or_else(|| {
+                    let all: Vec<_> = self.of_kind(kind).take(6).collect();
+                    if all.is_empty() {
+                        Some(format!("the file declares no {}", kind.word()))
+                    } else {
+                        Some(format!(
+                            "the {}s are {}",
+                            kind.word(),
+                            all.iter()
+                                .map(|n| format!("`{n}`"))
+                                .collect::<Vec<_>>()
+                                .join(", ")
+                        ))
+                    }
+                }),
+            }),
+        }
+    }
+}
+
+/// Resolves `let` names while evaluating.
+struct LetScope<'a, 'n> {
+    names: &'n Names<'a>,
+    values: &'n [Option<Result<Quantity, ()>>],
+}
+
+impl Scope for LetScope<'_, '_> {
+    fn name(&self, id: &Ident) -> Result<Quantity, ModelError> {
+        if let Some(v) = constant(&id.name) {
+            return Ok(Quantity::number(v));
+        }
+        match self.names.get(&id.name) {
+            Some((NameKind::Let, i, _)) => match self.values.get(i) {
+                Some(Some(Ok(q))) => Ok(*q),
+                _ => Err(ModelError::poisoned()),
+            },
+            Some((k, _, _)) => Err(ModelError::WrongKind {
+                name: id.name.clone(),
+                found: k.word(),
+                expected: "value",
+                span: id.span,
+                help: if matches!(k, NameKind::Part | NameKind::Node) {
+                    Some(format!(
+                        "results such as `{}.force` can be used in a `check`",
+                        id.name
+                    ))
+                } else {
+                    None
+                },
+            }),
+            None => Err(ModelError::UnknownName {
+                kind: "name",
+                name: id.name.clone(),
+                span: id.span,
+                help: did_you_mean(
+                    &id.name,
+                    self.names
+                        .of_kind(NameKind::Let)
+                        .chain(CONSTANTS.iter().copied()),
+                )
+                .or_else(|| Some(format!("declare it with `let {} = ...`", id.name))),
+            }),
+        }
+    }
+
+    fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
+        Err(ModelError::ResultOutsideCheck {
+            name: format!("{}.{}", object.name, field.name),
+            span: object.span.to(field.span),
+        })
+    }
+}
+
+/// Results a check may use, and their dimensions.
+pub(crate) const PART_FIELDS: &[(&str, Dimension)] = &[
+    ("force", Dimension::FORCE),
+    ("stress", Dimension::PRESSURE),
+    ("strain", Dimension::NONE),
+    ("elongation", Dimension::LENGTH),
+];
+pub(crate) const AXIAL_NODE_FIELDS: &[(&str, Dimension)] = &[
+    ("displacement", Dimension::LENGTH),
+    ("reaction", Dimension::FORCE),
+];
+pub(crate) const PLANE_NODE_FIELDS: &[(&str, Dimension)] = &[
+    ("dx", Dimension::LENGTH),
+    ("dy", Dimension::LENGTH),
+    ("rx", Dimension::FORCE),
+    ("ry", Dimension::FORCE),
+];
+
+/// Checks are validated with every result standing at one SI unit.
+struct CheckScope<'a, 'n> {
+    lets: LetScope<'a, 'n>,
+    kind: Kind,
+}
+
+impl Scope for CheckScope<'_, '_> {
+    fn name(&self, id: &Ident) -> Result<Quantity, ModelError> {
+        self.lets.name(id)
+    }
+
+    fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
+        let (on, fields) = match self.lets.names.get(&object.name) {
+            Some((NameKind::Part, _, _)) => ("part", PART_FIELDS),
+            Some((NameKind::Node, _, _)) => (
+                "node",
+                match self.kind {
+                    Kind::Axial => AXIAL_NODE_FIELDS,
+                    Kind::Plane => PLANE_NODE_FIELDS,
+                },
+            ),
+            Some((k, _, _)) => {
+                return Err(ModelError::WrongKind {
+                    name: object.name.clone(),
+                    found: k.word(),
+                    expected: "part or node",
+                    span: object.span,
+                    help: None,
+                })
+            }
+            None => {
+                return Err(ModelError::UnknownName {
+                    kind: "part or node",
+                    name: object.name.clone(),
+                    span: object.span,
+                    help: did_you_mean(
+                        &object.name,
+                        self.lets
+                            .names
+                            .of_kind(NameKind::Part)
+                            .chain(self.lets.names.of_kind(NameKind::Node)),
+                    ),
+                })
+            }
+        };
+        match fields.iter().find(|(f, _)| *f == field.name) {
+            Some((_, dim)) => Ok(Quantity::new(1.0, *dim)),
+            None => Err(ModelError::UnknownField {
+                field: field.name.clone(),
+                on,
+                name: object.name.clone(),
+                span: field.span,
+                help: Some(
+                    did_you_mean(&field.name, fields.iter().map(|(f, _)| *f)).unwrap_or_else(
+                        || {
+                            format!(
+                                "a {on} has {}",
+                                fields
+                                    .iter()
+                                    .map(|(f, _)| format!("`{f}`"))
+                                    .collect::<Vec<_>>()
+                                    .join(", ")
+                            )
+                        },
+                    ),
+                ),
+            }),
+        }
+    }
+}
+
+/// Build the checked model of a parsed file.
+///
+/// # Errors
+/// Every problem found, in file order.
+pub fn build(file: &ast::File, limits: Limits) -> Result<Model, Vec<ModelError>> {
+    Builder::new(limits).run(file)
+}
+
+struct Builder {
+    errors: Vec<ModelError>,
+    limits: Limits,
+}
+
+fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option<T> {
+    match r {
+        Ok(v) => Some(v),
+        Err(e) => {
+            if !e.is_poisoned() {
+                errors.push(e);
+            }
+            None
+        }
+    }
+}
+
+/// The entries of one block, by key, after unknown and repeated keys.
+struct Fields<'a> {
+    block: String,
+    span: Span,
+    map: BTreeMap<&'static str, &'a Entry>,
+}
+
+fn example_for(dim: Dimension) -> Option<String> {
+    dim.example()
+        .map(|e| format!("expected {} such as {e}", dim.describe()))
+}
+
+impl<'a> Fields<'a> {
+    fn new(
+        block: &'a ast::Block,
+        what: String,
+        keys: &[&'static str],
+        errors: &mut Vec<ModelError>,
+    ) -> Self {
+        let mut map: BTreeMap<&'static str, &'a Entry> = BTreeMap::new();
+        for e in &block.entries {
+            match keys.iter().find(|k| **k == e.key.name) {
+                Some(k) => {
+                    if let Some(first) = map.get(k) {
+                        errors.push(ModelError::DuplicateKey {
+                            key: e.key.name.clone(),
+                            block: what.clone(),
+                            span: e.key.span,
+                            first: first.key.span,
+                        });
+                    } else {
+                        map.insert(k, e);
+                    }
+                }
+                None => errors.push(ModelError::UnknownKey {
+                    key: e.key.name.clone(),
+                    block: what.clone(),
+                    span: e.key.span,
+                    help: Some(
+                        did_you_mean(&e.key.name, keys.iter().copied()).unwrap_or_else(|| {
+                            format!(
+                                "the keys are {}",
+                                keys.iter()
+                                    .map(|k| format!("`{k}`"))
+                                    .collect::<Vec<_>>()
+                                    .join(", ")
+                            )
+                        }),
+                    ),
+                }),
+            }
+        }
+        Self {
+            block: what,
+            span: block.span,
+            map,
+        }
+    }
+
+    fn has(&self, key: &str) -> bool {
+        self.map.contains_key(key)
+    }
+
+    fn missing(&self, key: &'static str, help: Option<String>) -> ModelError {
+        ModelError::MissingKey {
+            block: self.block.clone(),
+            key,
+            span: self.span,
+            help,
+        }
+    }
+
+    /// The single expression of a key.
+    fn expr(&self, key: &str) -> Option<Result<&'a Expr, ModelError>> {
+        let e = self.map.get(key)?;
+        Some(match &e.value {
+            Value::Exprs(list) if list.len() == 1 => Ok(&list[0]),
+            Value::Exprs(list) => Err(ModelError::Expected {
+                expected: format!("one value for `{key}`"),
+                span: list[0].span.to(list[list.len() - 1].span),
+                found: format!("{} values", list.len()),
+                help: None,
+            }),
+            Value::Str(s) => Err(ModelError::Expected {
+                expected: format!("a value for `{key}`, not a string"),
+                span: s.span,
+                found: "a string".into(),
+                help: None,
+            }),
+        })
+    }
+
+    /// A key's value, checked to have `dim`.
+    fn quantity(
+        &self,
+        key: &str,
+        dim: Dimension,
+        scope: &dyn Scope,
+    ) -> Option<Result<Quantity, ModelError>> {
+        let e = match self.expr(key)? {
+            Ok(e) => e,
+            Err(err) => return Some(Err(err)),
+        };
+        Some(eval(e, scope).and_then(|q| {
+            if q.dim == dim {
+                Ok(q)
+            } else {
+                Err(ModelError::WrongDimension {
+                    what: format!("`{key}` of {}", self.block),
+                    expected: dim.describe(),
+                    found: q.dim.describe(),
+                    span: e.span,
+                    help: example_for(dim),
+                })
+            }
+        }))
+    }
+
+    /// A key whose value is a list of bare names.
+    fn names(&self, key: &str) -> Option<Result<Vec<&'a Ident>, ModelError>> {
+        let e = self.map.get(key)?;
+        Some(match &e.value {
+            Value::Exprs(list) => list
+                .iter()
+                .map(|x| match &x.kind {
+                    ExprKind::Name(id) => Ok(id),
+                    _ => Err(ModelError::Expected {
+                        expected: "a name".into(),
+                        span: x.span,
+                        found: "not a plain name".into(),
+                        help: None,
+                    }),
+                })
+                .collect(),
+            Value::Str(s) => Err(ModelError::Expected {
+                expected: "a name, without quotes".into(),
+                span: s.span,
+                found: "a string".into(),
+                help: None,
+            }),
+        })
+    }
+}
+
+fn si_length(q: Quantity) -> Length {
+    Length::new::<meter>(q.value)
+}
+
+fn si_pressure(q: Quantity) -> Pressure {
+    Pressure::new::<pascal>(q.value)
+}
+
+fn si_force(q: Quantity) -> Force {
+    Force::new::<newton>(q.value)
+}
+
+/// Every expression in the file, for counting the units it uses.
+fn walk_units(e: &Expr, counts: &mut BTreeMap<String, usize>) {
+    let mut count = |u: &ast::UnitExpr| {
+        for f in &u.factors {
+            *counts.entry(f.name.clone()).or_default() += 1;
+        }
+    };
+    match &e.kind {
+        ExprKind::Quantity { unit: Some(u), .. } | ExprKind::Unit(u) => count(u),
+        ExprKind::Quantity { unit: None, .. } | ExprKind::Name(_) | ExprKind::Field(..) => {}
+        ExprKind::Neg(x) => walk_units(x, counts),
+        ExprKind::Sum(a, rest) => {
+            walk_units(a, counts);
+            for (_, x) in rest {
+                walk_units(x, counts);
+            }
+        }
+        ExprKind::Product(a, rest) => {
+            walk_units(a, counts);
+            for (_, x) in rest {
+                walk_units(x, counts);
+            }
+        }
+        ExprKind::Power(a, b) => {
+            walk_units(a, counts);
+            walk_units(b, counts);
+        }
+        ExprKind::Call { args, .. } => {
+            for a in args {
+                walk_units(&a.value, counts);
+            }
+        }
+    }
+}
+
+/// Names a bare expression refers to (for ordering `let`s).
+fn walk_names<'e>(e: &'e Expr, out: &mut Vec<&'e Ident>) {
+    match &e.kind {
+        ExprKind::Name(id) => out.push(id),
+        ExprKind::Quantity { .. } | ExprKind::Unit(_) | ExprKind::Field(..) => {}
+        ExprKind::Neg(x) => walk_names(x, out),
+        ExprKind::Sum(a, rest) => {
+            walk_names(a, out);
+            for (_, x) in rest {
+                walk_names(x, out);
+            }
+        }
+        ExprKind::Product(a, rest) => {
+            walk_names(a, out);
+            for (_, x) in rest {
+                walk_names(x, out);
+            }
+        }
+        ExprKind::Power(a, b) => {
+            walk_names(a, out);
+            walk_names(b, out);
+        }
+        ExprKind::Call { args, .. } => {
+            for a in args {
+                walk_names(&a.value, out);
+            }
+        }
+    }
+}
+
+fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
+    let block = |b: &'e ast::Block, out: &mut Vec<&'e Expr>| {
+        for e in &b.entries {
+            if let Value::Exprs(list) = &e.value {
+                out.extend(list.iter());
+            }
+        }
+    };
+    let coord = |c: &'e Coord, out: &mut Vec<&'e Expr>| match c {
+        Coord::Axial(e) => out.push(e),
+        Coord::Plane(x, y, _) => {
+            out.push(x);
+            out.push(y);
+        }
+    };
+    let stmt = |s: &'e Stmt, out: &mut Vec<&'e Expr>| match s {
+        Stmt::Load { force, .. } => coord(force, out),
+        Stmt::Temperature { change, .. } => out.push(change),
+        Stmt::Strain { value, .. } => out.push(value),
+        Stmt::Settle { movement, .. } => out.push(movement),
+    };
+    match d {
+        Decl::Calc(b) => block(b, out),
+        Decl::Material(nb) | Decl::Part(nb) | Decl::Rigid(nb) => block(&nb.block, out),
+        Decl::Let(l) => out.push(&l.value),
+        Decl::Node(n) => coord(&n.at, out),
+        Decl::Case(c) => {
+            for s in &c.stmts {
+                stmt(s, out);
+            }
+        }
+        Decl::Stmt(s) => stmt(s, out),
+        Decl::Check(c) => {
+            out.push(&c.lhs);
+            out.push(&c.rhs);
+        }
+        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) => {}
+    }
+}
+
+impl Builder {
+    fn new(limits: Limits) -> Self {
+        Self {
+            errors: Vec::new(),
+            limits,
+        }
+    }
+
+    fn ok<T>(&mut self, r: Result<T, ModelError>) -> Option<T> {
+        push_err(&mut self.errors, r)
+    }
+
+    fn opt<T>(&mut self, r: Option<Result<T, ModelError>>) -> Option<T> {
+        r.and_then(|r| self.ok(r))
+    }
+
+    fn register<'a>(&mut self, file: &'a ast::File) -> Names<'a> {
+        let mut names = Names {
+            map: HashMap::new(),
+            by_kind: BTreeMap::new(),
+        };
+        let mut counters = [0usize; 7];
+        for d in &file.decls {
+            let (id, kind) = match d {
+                Decl::Let(l) => (&l.name, NameKind::Let),
+                Decl::Material(nb) => (&nb.name, NameKind::Material),
+                Decl::Part(nb) => (&nb.name, NameKind::Part),
+                Decl::Rigid(nb) => (&nb.name, NameKind::Rigid),
+                Decl::Node(n) => (&n.name, NameKind::Node),
+                Decl::Case(c) => (&c.name, NameKind::Case),
+                Decl::Combine(c) => (&c.name, NameKind::Combination),
+                _ => continue,
+            };
+            let index = counters[kind as usize];
+            counters[kind as usize] += 1;
+            if id.name.len() > self.limits.max_name_len {
+                self.errors.push(ModelError::TooMany {
+                    what: "characters in a name",
+                    count: id.name.len(),
+                    limit: self.limits.max_name_len,
+                    span: id.span,
+                });
+            }
+            let reserved = if lookup(&id.name).is_some() {
+                Some("a unit")
+            } else if FUNCTIONS.contains(&id.name.as_str()) {
+                Some("a function")
+            } else if CONSTANTS.contains(&id.name.as_str()) {
+                Some("a constant")
+            } else {
+                None
+            };
+            if let Some(what) = reserved {
+                self.errors.push(ModelError::Reserved {
+                    name: id.name.clone(),
+                    what,
+                    span: id.span,
+                });
+            }
+            if let Some((_, _, first)) = names.map.get(id.name.as_str()) {
+                self.errors.push(ModelError::Duplicate {
+                    name: id.name.clone(),
+                    span: id.span,
+                    first: *first,
+                });
+                continue;
+            }
+            names.map.insert(&id.name, (kind, index, id.span));
+            names.by_kind.entry(kind as u8).or_default().push(&id.name);
+        }
+        names
+    }
+
+    /// Evaluate `let`s in dependency order (their order in the file does not matter).
+    fn lets(
+        &mut self,
+        file: &ast::File,
+        names: &Names<'_>,
+    ) -> (Vec<LetValue>, Vec<Option<Result<Quantity, ()>>>) {
+        let lets: Vec<&ast::Let> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Let(l) => Some(l),
+                _ => None,
+            })
+            .collect();
+        // Only the first declaration of a name is registered.
+        let registered = |i: usize, l: &ast::Let| {
+            names.get(&l.name.name) == Some((NameKind::Let, i, l.name.span))
+        };
+        let deps: Vec<Vec<usize>> = lets
+            .iter()
+            .map(|l| {
+                let mut refs = Vec::new();
+                walk_names(&l.value, &mut refs);
+                refs.iter()
+                    .filter_map(|id| match names.get(&id.name) {
+                        Some((NameKind::Let, j, _)) => Some(j),
+                        _ => None,
+                    })
+                    .collect()
+            })
+            .collect();
+        // Iterative depth-first ordering with cycle detection.
+        let n = lets.len();
+        let mut state = vec![0u8; n]; // 0 new, 1 on stack, 2 done
+        let mut order = Vec::with_capacity(n);
+        let mut in_cycle = vec![false; n];
+        for root in 0..n {
+            if state[root] != 0 {
+                continue;
+            }
+            let mut stack: Vec<(usize, usize)> = vec![(root, 0)];
+            state[root] = 1;
+            while let Some(&mut (v, ref mut next)) = stack.last_mut() {
+                if let Some(&w) = deps[v].get(*next) {
+                    *next += 1;
+                    match state[w] {
+                        0 => {
+                            state[w] = 1;
+                            stack.push((w, 0));
+                        }
+                        1 => {
+                            let pos = stack.iter().position(|(x, _)| *x == w).unwrap_or(0);
+                            let chain: Vec<&str> = stack[pos..]
+                                .iter()
+                                .map(|(x, _)| lets[*x].name.name.as_str())
+                                .chain(std::iter::once(lets[w].name.name.as_str()))
+                                .collect();
+                            if !in_cycle[w] {
+                                self.errors.push(ModelError::Cycle {
+                                    name: lets[w].name.name.clone(),
+                                    chain: chain.join(" → "),
+                                    span: lets[w].name.span,
+                                });
+                            }
+                            for (x, _) in &stack[pos..] {
+                                in_cycle[*x] = true;
+                            }
+                        }
+                        _ => {}
+                    }
+                } else {
+                    state[v] = 2;
+                    order.push(v);
+                    stack.pop();
+                }
+            }
+        }
+        let mut values: Vec<Option<Result<Quantity, ()>>> = vec![None; n];
+        for i in order {
+            if in_cycle[i] || !registered(i, lets[i]) {
+                values[i] = Some(Err(()));
+                continue;
+            }
+            let scope = LetScope {
+                names,
+                values: &values,
+            };
+            let r = eval(&lets[i].value, &scope);
+            values[i] = Some(match push_err(&mut self.errors, r) {
+                Some(q) => Ok(q),
+                None => Err(()),
+            });
+        }
+        let out = lets
+            .iter()
+            .zip(&values)
+            .filter_map(|(l, v)| match v {
+                Some(Ok(q)) => Some(LetValue {
+                    name: l.name.name.clone(),
+                    value: *q,
+                    expr: l.value.clone(),
+                    span: l.span,
+                }),
+                _ => None,
+            })
+            .collect();
+        (out, values)
+    }
+
+    #[allow(clippy::too_many_lines)]
+    fn run(mut self, file: &ast::File) -> Result<Model, Vec<ModelError>> {
+        if file.decls.len() > self.limits.max_declarations {
+            self.errors.push(ModelError::TooMany {
+                what: "declarations",
+                count: file.decls.len(),
+                limit: self.limits.max_declarations,
+                span: Span::new(0, 0),
+            });
+            return Err(self.errors);
+        }
+        let names = self.register(file);
+        let (lets, let_values) = self.lets(file, &names);
+        let scope = LetScope {
+            names: &names,
+            values: &let_values,
+        };
+
+        let mut title = Title::default();
+        let mut materials = Vec::new();
+        let mut nodes: Vec<Node> = Vec::new();
+        let mut kind: Option<(Kind, Span)> = None;
+        let mut units = UnitChoice::Auto;
+
+        // Title block, materials, nodes, units.
+        for d in &file.decls {
+            match d {
+                Decl::Calc(b) => {
+                    let f = Fields::new(b, "the title block".into(), Title::KEYS, &mut self.errors);
+                    for key in Title::KEYS {
+                        if let Some(e) = f.map.get(key) {
+                            match &e.value {
+                                Value::Str(s) => title.fields.push((key, s.text.clone())),
+                                Value::Exprs(list) => self.errors.push(ModelError::Expected {
+                                    expected: format!("a quoted string for `{key}`"),
+                                    span: list[0].span.to(list[list.len() - 1].span),
+                                    found: "not a string".into(),
+                                    help: Some(format!("write `{key} = \"...\"`")),
+                                }),
+                            }
+                        }
+                    }
+                }
+                Decl::Material(nb) => {
+                    if let Some(m) = self.material(nb, &scope) {
+                        materials.push(m);
+                    }
+                }
+                Decl::Node(n) => {
+                    let this = match n.at {
+                        Coord::Axial(_) => Kind::Axial,
+                        Coord::Plane(..) => Kind::Plane,
+                    };
+                    match kind {
+                        None => kind = Some((this, n.span)),
+                        Some((k, first)) if k != this => {
+                            self.errors.push(ModelError::MixedModel {
+                                this: this.name(),
+                                first: k.name(),
+                                span: n.at.span(),
+                                first_span: first,
+                            });
+                        }
+                        _ => {}
+                    }
+                    let coord = |e: &Expr, b: &mut Self| {
+                        let q = b.ok(eval(e, &scope))?;
+                        if q.dim == Dimension::LENGTH {
+                            Some(si_length(q))
+                        } else {
+                            b.errors.push(ModelError::WrongDimension {
+                                what: format!("the position of node `{}`", n.name.name),
+                                expected: "a length".into(),
+                                found: q.dim.describe(),
+                                span: e.span,
+                                help: example_for(Dimension::LENGTH),
+                            });
+                            None
+                        }
+                    };
+                    let (x, y) = match &n.at {
+                        Coord::Axial(e) => (coord(e, &mut self), Some(Length::new::<meter>(0.0))),
+                        Coord::Plane(ex, ey, _) => (coord(ex, &mut self), coord(ey, &mut self)),
+                    };
+                    nodes.push(Node {
+                        name: n.name.name.clone(),
+                        x: x.unwrap_or_default(),
+                        y: y.unwrap_or_default(),
+                        fixed: [false; 2],
+                        span: n.span,
+                    });
+                }
+                Decl::Units(u) => units = self.units(u),
+                _ => {}
+            }
+        }
+        let Some((kind, _)) = kind else {
+            if !self.errors.is_empty() {
+                return Err(self.errors);
+            }
+            self.errors.push(ModelError::Empty {
+                what: "nodes",
+                span: Span::new(0, 0),
+                help: Some("declare the points parts connect, e.g. `node base at 0 ft`".into()),
+            });
+            return Err(self.errors);
+        };
+
+        // Supports.
+        for d in &file.decls {
+            if let Decl::Fix(list) = d {
+                for s in list {
+                    let Some(i) = self.ok(names.expect(&s.node, NameKind::Node)) else {
+                        continue;
+                    };
+                    match (kind, s.axis) {
+                        (Kind::Axial, Some((_, sp))) => self.errors.push(ModelError::ModelKind {
+                            message: "an axial model has one direction; `fix` takes no `x` or `y`"
+                                .into(),
+                            span: sp,
+                            help: Some(format!("write `fix {}`", s.node.name)),
+                        }),
+                        (_, None) => nodes[i].fixed = [true, kind == Kind::Plane],
+                        (Kind::Plane, Some((Axis::X, _))) => nodes[i].fixed[0] = true,
+                        (Kind::Plane, Some((Axis::Y, _))) => nodes[i].fixed[1] = true,
+                    }
+                }
+            }
+        }
+
+        // Parts.
+        let mut parts = Vec::new();
+        for d in &file.decls {
+            if let Decl::Part(nb) = d {
+                if let Some(p) = self.part(nb, &scope, &names, &materials, &nodes, kind) {
+                    parts.push(p);
+                }
+            }
+        }
+
+        // Rigid bodies and ties.
+        let mut rigids = Vec::new();
+        let mut ties = Vec::new();
+        let mut rigid_of: HashMap<usize, Span> = HashMap::new();
+        for d in &file.decls {
+            match d {
+                Decl::Rigid(nb) => {
+                    let what = format!("rigid body `{}`", nb.name.name);
+                    let f = Fields::new(&nb.block, what, &["nodes"], &mut self.errors);
+                    let Some(list) = self.opt(f.names("nodes")) else {
+                        if !f.has("nodes") {
+                            self.errors.push(
+                                f.missing(
+                                    "nodes",
+                                    Some(
+                                        "list the nodes that move together, e.g. `nodes = a, b, c`"
+                                            .into(),
+                                    ),
+                                ),
+                            );
+                        }
+                        continue;
+                    };
+                    let mut idx = Vec::new();
+                    for id in list {
+                        if let Some(i) = self.ok(names.expect(id, NameKind::Node)) {
+                            if let Some(first) = rigid_of.get(&i) {
+                                self.errors.push(ModelError::RigidShared {
+                                    node: id.name.clone(),
+                                    span: id.span,
+                                    first: *first,
+                                });
+                            } else {
+                                rigid_of.insert(i, nb.name.span);
+                                idx.push(i);
+                            }
+                        }
+                    }
+                    if idx.len() < 2 {
+                        self.errors.push(ModelError::Expected {
+                            expected: "at least two nodes in a rigid body".into(),
+                            span: nb.block.span,
+                            found: format!("{} node(s)", idx.len()),
+                            help: None,
+                        });
+                        continue;
+                    }
+                    rigids.push(Rigid {
+                        name: nb.name.name.clone(),
+                        nodes: idx,
+                        span: nb.span,
+                    });
+                }
+                Decl::Tie(t) => {
+                    let idx: Vec<usize> = t
+                        .nodes
+                        .iter()
+                        .filter_map(|id| {
+                            push_err(&mut self.errors, names.expect(id, NameKind::Node))
+                        })
+                        .collect();
+                    if idx.len() == t.nodes.len() {
+                        ties.push(Tie {
+                            nodes: idx,
+                            span: t.span,
+                        });
+                    }
+                }
+                _ => {}
+            }
+        }
+
+        // Cases.
+        let mut cases = Vec::new();
+        let first_case = file.decls.iter().find_map(|d| match d {
+            Decl::Case(c) => Some(c.name.span),
+            _ => None,
+        });
+        let mut loose = Vec::new();
+        for d in &file.decls {
+            match d {
+                Decl::Case(c) => {
+                    let mut sustained = false;
+                    for f in &c.flags {
+                        sustained = f.name == "sustained";
+                    }
+                    let case = self.case(
+                        &c.name.name,
+                        sustained,
+                        &c.stmts.iter().collect::<Vec<_>>(),
+                        c.span,
+                        &scope,
+                        &names,
+                        (&materials, &parts, &nodes, kind),
+                    );
+                    cases.push(case);
+                }
+                Decl::Stmt(s) => match first_case {
+                    Some(case) => self.errors.push(ModelError::LooseStatement {
+                        span: s.span(),
+                        case,
+                    }),
+                    None => loose.push(s),
+                },
+                _ => {}
+            }
+        }
+        if first_case.is_none() {
+            let case = self.case(
+                "loads",
+                false,
+                &loose,
+                Span::new(0, 0),
+                &scope,
+                &names,
+                (&materials, &parts, &nodes, kind),
+            );
+            cases.push(case);
+        }
+
+        // Combinations.
+        let mut combinations = Vec::new();
+        for d in &file.decls {
+            if let Decl::Combine(c) = d {
+                let mut terms: Vec<(usize, f64)> = Vec::new();
+                for t in &c.terms {
+                    if let Some(i) = self.ok(names.expect(&t.case, NameKind::Case)) {
+                        if terms.iter().any(|(j, _)| *j == i) {
+                            self.errors.push(ModelError::CaseTwice {
+                                case: t.case.name.clone(),
+                                combination: c.name.name.clone(),
+                                span: t.span,
+                            });
+                        } else {
+                            terms.push((i, t.factor));
+                        }
+                    }
+                }
+                combinations.push(Combination {
+                    name: c.name.name.clone(),
+                    terms,
+                    declared: true,
+                    span: c.span,
+                });
+            }
+        }
+        if combinations.is_empty() {
+            for (i, c) in cases.iter().enumerate() {
+                combinations.push(Combination {
+                    name: c.name.clone(),
+                    terms: vec![(i, 1.0)],
+                    declared: false,
+                    span: c.span,
+                });
+            }
+        }
+
+        // Checks.
+        let mut checks = Vec::new();
+        let cscope = CheckScope {
+            lets: LetScope {
+                names: &names,
+                values: &let_values,
+            },
+            kind,
+        };
+        for d in &file.decls {
+            if let Decl::Check(c) = d {
+                let l = eval(&c.lhs, &cscope);
+                let r = eval(&c.rhs, &cscope);
+                let (Some(l), Some(r)) = (self.ok(l), self.ok(r)) else {
+                    continue;
+                };
+                if l.dim != r.dim {
+                    self.errors.push(ModelError::CheckDimensions {
+                        left: l.dim.describe(),
+                        right: r.dim.describe(),
+                        lhs: c.lhs.span,
+                        rhs: c.rhs.span,
+                    });
+                    continue;
+                }
+                checks.push(Check {
+                    label: c.label.text.clone(),
+                    lhs: c.lhs.clone(),
+                    op: c.op,
+                    rhs: c.rhs.clone(),
+                    span: c.span,
+                });
+            }
+        }
+
+        if parts.is_empty() && self.errors.is_empty() {
+            self.errors.push(ModelError::Empty {
+                what: "parts",
+                span: Span::new(0, 0),
+                help: Some("declare the parts that share the load with `part NAME { ... }`".into()),
+            });
+        }
+
+        let mut counts = BTreeMap::new();
+        let mut exprs = Vec::new();
+        for d in &file.decls {
+            decl_exprs(d, &mut exprs);
+        }
+        for e in exprs {
+            walk_units(e, &mut counts);
+        }
+
+        if !self.errors.is_empty() {
+            return Err(self.errors);
+        }
+        Ok(Model {
+            title,
+            kind,
+            lets,
+            materials,
+            nodes,
+            parts,
+            rigids,
+            ties,
+            cases,
+            combinations,
+            checks,
+            units,
+            unit_usage: counts.into_iter().collect(),
+        })
+    }
+
+    fn units(&mut self, u: &ast::Units) -> UnitChoice {
+        match u {
+            ast::Units::System(id) if id.name == "us" => UnitChoice::Us,
+            ast::Units::System(_) => UnitChoice::Si,
+            ast::Units::List(list) => {
+                let mut out: Vec<(String, Quantity)> = Vec::new();
+                for ue in list {
+                    if let Some(q) = self.ok(super::eval::unit_value(ue)) {
+                        let text = ue
+                            .factors
+                            .iter()
+                            .enumerate()
+                            .map(|(i, f)| {
+                                let op = if i == 0 {
+                                    ""
+                                } else if f.divide {
+                                    "/"
+                                } else {
+                                    "*"
+                                };
+                                if f.power == 1 {
+                                    format!("{op}{}", f.name)
+                                } else {
+                                    format!("{op}{}^{}", f.name, f.power)
+                                }
+                            })
+                            .collect::<String>();
+                        out.push((text, q));
+                    }
+                }
+                UnitChoice::List(out)
+            }
+        }
+    }
+
+    fn material(&mut self, nb: &ast::NamedBlock, scope: &dyn Scope) -> Option<Material> {
+        const KEYS: &[&str] = &[
+            "E",
+            "alpha",
+            "yield",
+            "yield_compression",
+            "allowable",
+            "allowable_tension",
+            "allowable_compression",
+            "creep",
+        ];
+        let what = format!("material `{}`", nb.name.name);
+        let f = Fields::new(&nb.block, what.clone(), KEYS, &mut self.errors);
+        let e = self.opt(f.quantity("E", Dimension::PRESSURE, scope));
+        if !f.has("E") {
+            self.errors.push(f.missing(
+                "E",
+                Some("give the modulus of elasticity, e.g. `E = 29000 ksi`".into()),
+            ));
+        }
+        let alpha = self
+            .opt(f.quantity("alpha", Dimension::PER_TEMPERATURE, scope))
+            .map(|q| TemperatureCoefficient::new::<per_kelvin>(q.value));
+        let stress = |key: &str, b: &mut Self, strict: bool| {
+            let q = b.opt(f.quantity(key, Dimension::PRESSURE, scope))?;
+            if q.value < 0.0 || (strict && q.value == 0.0) {
+                let sp = f.map.get(key).map(|e| e.span).unwrap_or_default();
+                b.errors.push(ModelError::NotPositive {
+                    what: format!("`{key}` of {what}"),
+                    value: "zero or less".into(),
+                    span: sp,
+                    help: None,
+                });
+                return None;
+            }
+            Some(si_pressure(q))
+        };
+        let yield_strength = stress("yield", self, true);
+        let yield_compression = stress("yield_compression", self, true);
+        let allowable = stress("allowable", self, false);
+        let allowable_tension = stress("allowable_tension", self, false);
+        let allowable_compression = stress("allowable_compression", self, false);
+        let creep = self
+            .opt(f.quantity("creep", Dimension::NONE, scope))
+            .map(|q| q.value);
+        if let Some(c) = creep {
+            if c < 0.0 {
+                self.errors.push(ModelError::NotPositive {
+                    what: format!("`creep` of {what}"),
+                    value: format!("{c}"),
+                    span: f.map.get("creep").map(|e| e.span).unwrap_or_default(),
+                    help: Some("a creep coefficient is zero or more, typically 1.5 to 3".into()),
+                });
+            }
+        }
+        let e = e?;
+        if e.value <= 0.0 {
+            let sp = f.map.get("E").map(|x| x.span).unwrap_or_default();
+            self.errors.push(ModelError::NotPositive {
+                what: format!("`E` of {what}"),
+                value: "zero or less".into(),
+                span: sp,
+                help: Some("the modulus of elasticity is a positive pressure".into()),
+            });
+            return None;
+        }
+        Some(Material {
+            name: nb.name.name.clone(),
+            e: si_pressure(e),
+            alpha,
+            yield_strength,
+            yield_compression,
+            allowable,
+            allowable_tension,
+            allowable_compression,
+            creep,
+            span: nb.span,
+        })
+    }
+
+    #[allow(clippy::too_many_lines)]
+    fn part(
+        &mut self,
+        nb: &ast::NamedBlock,
+        scope: &dyn Scope,
+        names: &Names<'_>,
+        materials: &[Material],
+        nodes: &[Node],
+        kind: Kind,
+    ) -> Option<Part> {
+        const KEYS: &[&str] = &[
+            "ends",
+            "material",
+            "area",
+            "section",
+            "inertia",
+            "stiffness",
+            "misfit",
+            "carries",
+            "slack",
+            "buckling_length",
+        ];
+        let pname = &nb.name.name;
+        let what = format!("part `{pname}`");
+        let f = Fields::new(&nb.block, what.clone(), KEYS, &mut self.errors);
+        let before = self.errors.len();
+
+        // ends
+        let mut ends = None;
+        match self.opt(f.names("ends")) {
+            Some(list) if list.len() == 2 => {
+                let a = self.ok(names.expect(list[0], NameKind::Node));
+                let b = self.ok(names.expect(list[1], NameKind::Node));
+                if let (Some(a), Some(b)) = (a, b) {
+                    if a == b {
+                        self.errors.push(ModelError::SameNode {
+                            part: pname.clone(),
+                            node: list[0].name.clone(),
+                            span: list[0].span.to(list[1].span),
+                        });
+                    } else {
+                        ends = Some([a, b]);
+                    }
+                }
+            }
+            Some(list) => self.errors.push(ModelError::Expected {
+                expected: "two nodes for `ends`".into(),
+                span: list
+                    .first()
+                    .map_or(nb.block.span, |i| i.span)
+                    .to(list.last().map_or(nb.block.span, |i| i.span)),
+                found: format!("{} node(s)", list.len()),
+                help: Some("write `ends = bottom, top`".into()),
+            }),
+            None => {
+                if !f.has("ends") {
+                    self.errors.push(f.missing(
+                        "ends",
+                        Some("give the two nodes it spans, e.g. `ends = base, cap`".into()),
+                    ));
+                }
+            }
+        }
+
+        // law
+        let spring = f.has("stiffness");
+        let law = if spring {
+            for other in ["material", "area", "section", "inertia"] {
+                if let Some(e) = f.map.get(other) {
+                    self.errors.push(ModelError::Conflict {
+                        key: other.into(),
+                        other: "stiffness".into(),
+                        block: what.clone(),
+                        span: e.key.span,
+                        help: Some("a spring takes `stiffness` alone; a member takes `material` and `area`".into()),
+                    });
+                }
+            }
+            let k = self.opt(f.quantity("stiffness", Dimension::STIFFNESS, scope));
+            k.and_then(|k| {
+                if k.value > 0.0 {
+                    Some(Law::Spring {
+                        stiffness: Stiffness::new::<newton_per_meter>(k.value),
+                    })
+                } else {
+                    self.errors.push(ModelError::NotPositive {
+                        what: format!("`stiffness` of {what}"),
+                        value: "zero or less".into(),
+                        span: f.map.get("stiffness").map(|e| e.span).unwrap_or_default(),
+                        help: None,
+                    });
+                    None
+                }
+            })
+        } else {
+            let material = match f.map.get("material") {
+                None => {
+                    self.errors.push(f.missing(
+                        "material",
+                        Some("name a declared material, e.g. `material = steel`, or give `stiffness` for a spring".into()),
+                    ));
+                    None
+                }
+                Some(_) => match self.opt(f.names("material")) {
+                    Some(list) if list.len() == 1 => {
+                        let i = self.ok(names.expect(list[0], NameKind::Material));
+                        // only materials that built are in `materials`
+                        i.and_then(|_| materials.iter().position(|m| m.name == list[0].name))
+                    }
+                    Some(list) => {
+                        self.errors.push(ModelError::Expected {
+                            expected: "one material".into(),
+                            span: list[0].span.to(list[list.len() - 1].span),
+                            found: format!("{} names", list.len()),
+                            help: None,
+                        });
+                        None
+                    }
+                    None => None,
+                },
+            };
+            if let (Some(a), Some(s)) = (f.map.get("area"), f.map.get("section")) {
+                self.errors.push(ModelError::Conflict {
+                    key: "section".into(),
+                    other: "area".into(),
+                    block: what.clone(),
+                    span: s.key.span.to(a.key.span),
+                    help: Some("`section` gives the area; drop `area`".into()),
+                });
+            }
+            let mut area = None;
+            let mut inertia = None;
+            let mut shape = None;
+            for key in ["area", "section"] {
+                let Some(e) = self.opt(f.expr(key)) else {
+                    continue;
+                };
+                match self.ok(eval_val(e, scope)) {
+                    Some(Val::Section(s)) => {
+                        area = Some(s.area);
+                        shape = Some(s.shape);
+                        if key == "section" {
+                            inertia = Some(s.inertia());
+                        }
+                    }
+                    Some(Val::Q(q)) if key == "area" && q.dim == Dimension::AREA => {
+                        area = Some(q.value);
+                    }
+                    Some(Val::Q(q)) => self.errors.push(ModelError::WrongDimension {
+                        what: format!("`{key}` of {what}"),
+                        expected: if key == "area" {
+                            "an area".into()
+                        } else {
+                            "a section such as `ring(d = 10.75 in, t = 0.365 in)`".into()
+                        },
+                        found: q.dim.describe(),
+                        span: e.span,
+                        help: if key == "area" {
+                            example_for(Dimension::AREA)
+                        } else {
+                            Some("the section helpers are circle, ring, rect, box, ishape".into())
+                        },
+                    }),
+                    None => {}
+                }
+            }
+            if let Some(q) = self.opt(f.quantity("inertia", Dimension::SECOND_MOMENT, scope)) {
+                inertia = Some(q.value);
+            }
+            if area.is_none() && !f.has("area") && !f.has("section") {
+                self.errors.push(f.missing(
+                    "area",
+                    Some("give `area = 11.9 in^2`, `area = circle(d = 10 in)` or `section = ...`".into()),
+                ));
+            }
+            match (material, area) {
+                (Some(m), Some(a)) if a > 0.0 => Some(Law::Member {
+                    material: m,
+                    area: Area::new::<square_meter>(a),
+                    inertia,
+                    section: shape,
+                }),
+                (_, Some(_)) => {
+                    let sp = f
+                        .map
+                        .get("area")
+                        .or_else(|| f.map.get("section"))
+                        .map(|e| e.span)
+                        .unwrap_or_default();
+                    if material.is_some() {
+                        self.errors.push(ModelError::NotPositive {
+                            what: format!("the area of {what}"),
+                            value: "zero or less".into(),
+                            span: sp,
+                            help: None,
+                        });
+                    }
+                    None
+                }
+                _ => None,
+            }
+        };
+
+        let length_key = |key: &str, b: &mut Self, nonneg: bool| -> Option<Length> {
+            let q = b.opt(f.quantity(key, Dimension::LENGTH, scope))?;
+            if nonneg && q.value < 0.0 {
+                b.errors.push(ModelError::NotPositive {
+                    what: format!("`{key}` of {what}"),
+                    value: "negative".into(),
+                    span: f.map.get(key).map(|e| e.span).unwrap_or_default(),
+                    help: Some("a gap is zero or more; `carries` gives its sense".into()),
+                });
+                return None;
+            }
+            Some(si_length(q))
+        };
+        let misfit = length_key("misfit", self, false).unwrap_or_default();
+        let slack = length_key("slack", self, true).unwrap_or_default();
+        let buckling_length = length_key("buckling_length", self, true);
+
+        let carries = match self.opt(f.names("carries")) {
+            Some(list) if list.len() == 1 => match list[0].name.as_str() {
+                "both" => Carries::Both,
+                "tension" => Carries::Tension,
+                "compression" => Carries::Compression,
+                other => {
+                    self.errors.push(ModelError::Expected {
+                        expected: "`both`, `tension` or `compression`".into(),
+                        span: list[0].span,
+                        found: format!("`{other}`"),
+                        help: did_you_mean(other, ["both", "tension", "compression"]),
+                    });
+                    Carries::Both
+                }
+            },
+            Some(list) => {
+                self.errors.push(ModelError::Expected {
+                    expected: "one of `both`, `tension`, `compression`".into(),
+                    span: list[0].span.to(list[list.len() - 1].span),
+                    found: format!("{} names", list.len()),
+                    help: None,
+                });
+                Carries::Both
+            }
+            None => Carries::Both,
+        };
+
+        let ends = ends?;
+        let law = law?;
+        if self.errors.len() > before {
+            return None;
+        }
+        let (a, b) = (&nodes[ends[0]], &nodes[ends[1]]);
+        let dx = (b.x - a.x).value;
+        let dy = (b.y - a.y).value;
+        let length = dx.hypot(dy);
+        let scale =
+            a.x.value
+                .abs()
+                .max(b.x.value.abs())
+                .max(a.y.value.abs())
+                .max(b.y.value.abs())
+                .max(1e-300);
+        if length <= 1e-12 * scale || length == 0.0 {
+            let allowed = matches!(law, Law::Spring { .. }) && kind == Kind::Axial;
+            if !allowed {
+                self.errors.push(ModelError::ZeroLength {
+                    part: pname.clone(),
+                    a: a.name.clone(),
+                    b: b.name.clone(),
+                    span: f.map.get("ends").map_or(nb.span, |e| e.span),
+                });
+                return None;
+            }
+        }
+        Some(Part {
+            name: pname.clone(),
+            ends,
+            law,
+            length: Length::new::<meter>(length),
+            misfit,
+            carries,
+            slack,
+            buckling_length,
+            span: nb.span,
+        })
+    }
+
+    #[allow(clippy::too_many_arguments, clippy::too_many_lines)]
+    fn case(
+        &mut self,
+        name: &str,
+        sustained: bool,
+        stmts: &[&Stmt],
+        span: Span,
+        scope: &dyn Scope,
+        names: &Names<'_>,
+        (materials, parts, nodes, kind): (&[Material], &[Part], &[Node], Kind),
+    ) -> Case {
+        let mut case = Case {
+            name: name.to_string(),
+            sustained,
+            loads: Vec::new(),
+            temperatures: Vec::new(),
+            strains: Vec::new(),
+            settlements: Vec::new(),
+            span,
+        };
+        let typed = |e: &Expr, dim: Dimension, what: String, b: &mut Self| -> Option<Quantity> {
+            let q = b.ok(eval(e, scope))?;
+            if q.dim == dim {
+                Some(q)
+            } else {
+                b.errors.push(ModelError::WrongDimension {
+                    what,
+                    expected: dim.describe(),
+                    found: q.dim.describe(),
+                    span: e.span,
+                    help: example_for(dim),
+                });
+                None
+            }
+        };
+        let part_of = |id: &Ident, b: &mut Self| -> Option<usize> {
+            b.ok(names.expect(id, NameKind::Part))?;
+            parts.iter().position(|p| p.name == id.name)
+        };
+        let mut seen_temp: HashMap<Option<usize>, Span> = HashMap::new();
+        let mut seen_strain: HashMap<usize, Span> = HashMap::new();
+        let mut seen_settle: HashMap<(usize, usize), Span> = HashMap::new();
+        for s in stmts {
+            match s {
+                Stmt::Load { node, force, span } => {
+                    let Some(i) = self.ok(names.expect(node, NameKind::Node)) else {
+                        continue;
+                    };
+                    let what = format!("the load on `{}`", node.name);
+                    let f = match (kind, force) {
+                        (Kind::Axial, Coord::Axial(e)) => typed(e, Dimension::FORCE, what, self)
+                            .map(|q| [si_force(q), Force::default()]),
+                        (Kind::Plane, Coord::Plane(ex, ey, _)) => {
+                            let x = typed(ex, Dimension::FORCE, what.clone(), self);
+                            let y = typed(ey, Dimension::FORCE, what, self);
+                            x.zip(y).map(|(x, y)| [si_force(x), si_force(y)])
+                        }
+                        (Kind::Axial, Coord::Plane(_, _, sp)) => {
+                            self.errors.push(ModelError::ModelKind {
+                                message: "an axial model takes a load as one force".into(),
+                                span: *sp,
+                                help: Some(format!("write `load {} = -95 kip`", node.name)),
+                            });
+                            None
+                        }
+                        (Kind::Plane, Coord::Axial(e)) => {
+                            self.errors.push(ModelError::ModelKind {
+                                message: "a plane model takes a load as a pair (FX, FY)".into(),
+                                span: e.span,
+                                help: Some(format!(
+                                    "write `load {} = (0 kip, -12 kip)`",
+                                    node.name
+                                )),
+                            });
+                            None
+                        }
+                    };
+                    if let Some(force) = f {
+                        case.loads.push(Load {
+                            node: i,
+                            force,
+                            span: *span,
+                        });
+                    }
+                }
+                Stmt::Temperature { part, change, span } => {
+                    let target = match part {
+                        Some(id) => match part_of(id, self) {
+                            Some(i) => Some(i),
+                            None => continue,
+                        },
+                        None => None,
+                    };
+                    if let Some(first) = seen_temp.get(&target) {
+                        self.errors.push(ModelError::DuplicateInCase {
+                            what: "a temperature change".into(),
+                            case: name.to_string(),
+                            span: *span,
+                            first: *first,
+                        });
+                        continue;
+                    }
+                    seen_temp.insert(target, *span);
+                    let Some(q) = typed(
+                        change,
+                        Dimension::TEMPERATURE,
+                        "a temperature change".into(),
+                        self,
+                    ) else {
+                        continue;
+                    };
+                    // Every member the change acts on needs an alpha.
+                    let affected: Vec<usize> = match target {
+                        Some(i) => vec![i],
+                        None => (0..parts.len()).collect(),
+                    };
+                    let mut reported: Vec<usize> = Vec::new();
+                    for i in affected {
+                        if let Some(m) = parts[i].material() {
+                            if materials[m].alpha.is_none() && !reported.contains(&m) {
+                                reported.push(m);
+                                self.errors.push(ModelError::NoAlpha {
+                                    part: parts[i].name.clone(),
+                                    material: materials[m].name.clone(),
+                                    span: *span,
+                                    material_span: materials[m].span,
+                                });
+                            }
+                        }
+                    }
+                    case.temperatures.push(Temperature {
+                        part: target,
+                        change: TemperatureInterval::new::<kelvin>(q.value),
+                        span: *span,
+                    });
+                }
+                Stmt::Strain { part, value, span } => {
+                    let Some(i) = part_of(part, self) else {
+                        continue;
+                    };
+                    if let Some(first) = seen_strain.get(&i) {
+                        self.errors.push(ModelError::DuplicateInCase {
+                            what: format!("a free strain of `{}`", part.name),
+                            case: name.to_string(),
+                            span: *span,
+                            first: *first,
+                        });
+                        continue;
+                    }
+                    seen_strain.insert(i, *span);
+                    if let Some(q) = typed(value, Dimension::NONE, "a free strain".into(), self) {
+                        case.strains.push(FreeStrain {
+                            part: i,
+                            strain: Ratio::new::<ratio>(q.value),
+                            span: *span,
+                        });
+                    }
+                }
+                Stmt::Settle {
+                    node,
+                    axis,
+                    movement,
+                    span,
+                } => {
+                    let Some(i) = self.ok(names.expect(node, NameKind::Node)) else {
+                        continue;
+                    };
+                    let direction = match (kind, axis) {
+                        (Kind::Axial, None) | (Kind::Plane, Some((Axis::X, _))) => 0,
+                        (Kind::Plane, Some((Axis::Y, _))) => 1,
+                        (Kind::Axial, Some((_, sp))) => {
+                            self.errors.push(ModelError::ModelKind {
+                                message:
+                                    "an axial model has one direction; `settle` takes no `x` or `y`"
+                                        .into(),
+                                span: *sp,
+                                help: Some(format!("write `settle {} = -0.1 in`", node.name)),
+                            });
+                            continue;
+                        }
+                        (Kind::Plane, None) => {
+                            self.errors.push(ModelError::ModelKind {
+                                message: "in a plane model `settle` needs a direction".into(),
+                                span: node.span,
+                                help: Some(format!("write `settle {} y = -0.1 in`", node.name)),
+                            });
+                            continue;
+                        }
+                    };
+                    if !nodes[i].fixed[direction] {
+                        let dir = if kind == Kind::Plane {
+                            if direction == 0 {
+                                " in x"
+                            } else {
+                                " in y"
+                            }
+                        } else {
+                            ""
+                        };
+                        self.errors.push(ModelError::SettleFree {
+                            node: node.name.clone(),
+                            direction: dir.into(),
+                            span: *span,
+                            help: Some(format!(
+                                "add `fix {}{}` for the support that moves",
+                                node.name,
+                                dir.replace(" in", "")
+                            )),
+                        });
+                        continue;
+                    }
+                    if let Some(first) = seen_settle.get(&(i, direction)) {
+                        self.errors.push(ModelError::DuplicateInCase {
+                            what: format!("a movement of `{}`", node.name),
+                            case: name.to_string(),
+                            span: *span,
+                            first: *first,
+                        });
+                        continue;
+                    }
+                    seen_settle.insert((i, direction), *span);
+                    if let Some(q) = typed(
+                        movement,
+                        Dimension::LENGTH,
+                        "a support movement".into(),
+                        self,
+                    ) {
+                        case.settlements.push(Settlement {
+                            node: i,
+                            direction,
+                            movement: si_length(q),
+                            span: *span,
+                        });
+                    }
+                }
+            }
+        }
+        case
+    }
+}

@@ -1,0 +1,407 @@
+//! Every error the model builder can report, worded in one place.
+
+use miette::Diagnostic;
+use thiserror::Error;
+
+use crate::source::Span;
+
+/// A problem with the meaning of a calc file: names, units, structure.
+#[derive(Debug, Error, Diagnostic, Clone, PartialEq)]
+pub enum ModelError {
+    #[error("{what} must be {expected}, found {found}")]
+    #[diagnostic(code(tandem::units::mismatch))]
+    WrongDimension {
+        what: String,
+        expected: String,
+        found: String,
+        #[label("this is {found}")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("cannot {op} {left} and {right}")]
+    #[diagnostic(
+        code(tandem::units::arithmetic),
+        help("both sides must have one dimension; check the units")
+    )]
+    Incompatible {
+        op: &'static str,
+        left: String,
+        right: String,
+        #[label("{left} {op_word} {right}")]
+        span: Span,
+        op_word: &'static str,
+    },
+
+    #[error("{message}")]
+    #[diagnostic(code(tandem::units::power))]
+    BadPower {
+        message: String,
+        #[label("here")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("{what} is not a finite number: {reason}")]
+    #[diagnostic(code(tandem::number), help("check the values this expression uses"))]
+    NotFinite {
+        what: String,
+        reason: String,
+        #[label("{reason}")]
+        span: Span,
+    },
+
+    #[error("unknown {kind} `{name}`")]
+    #[diagnostic(code(tandem::name::unknown))]
+    UnknownName {
+        kind: &'static str,
+        name: String,
+        #[label("not declared")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("`{name}` is a {found}, not a {expected}")]
+    #[diagnostic(code(tandem::name::kind))]
+    WrongKind {
+        name: String,
+        found: &'static str,
+        expected: &'static str,
+        #[label("expected a {expected} here")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("`{name}` is declared twice")]
+    #[diagnostic(
+        code(tandem::name::duplicate),
+        help("a name is declared once in a file; rename one of them")
+    )]
+    Duplicate {
+        name: String,
+        #[label("declared again here")]
+        span: Span,
+        #[label("first declared here")]
+        first: Span,
+    },
+
+    #[error("`{name}` is {what} and cannot be declared")]
+    #[diagnostic(
+        code(tandem::name::reserved),
+        help("choose another name, e.g. `{name}_1`")
+    )]
+    Reserved {
+        name: String,
+        what: &'static str,
+        #[label("reserved name")]
+        span: Span,
+    },
+
+    #[error("{block} needs `{key}`")]
+    #[diagnostic(code(tandem::key::missing))]
+    MissingKey {
+        block: String,
+        key: &'static str,
+        #[label("`{key}` missing in this block")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("unknown key `{key}` in {block}")]
+    #[diagnostic(code(tandem::key::unknown))]
+    UnknownKey {
+        key: String,
+        block: String,
+        #[label("not a key of {block}")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("`{key}` is given twice in {block}")]
+    #[diagnostic(code(tandem::key::duplicate), help("keep one of them"))]
+    DuplicateKey {
+        key: String,
+        block: String,
+        #[label("given again here")]
+        span: Span,
+        #[label("first given here")]
+        first: Span,
+    },
+
+    #[error("`{key}` and `{other}` cannot both be given in {block}")]
+    #[diagnostic(code(tandem::key::conflict))]
+    Conflict {
+        key: String,
+        other: String,
+        block: String,
+        #[label("remove this or `{other}`")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("expected {expected}")]
+    #[diagnostic(code(tandem::value))]
+    Expected {
+        expected: String,
+        #[label("{found}")]
+        span: Span,
+        found: String,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("this is a {this} model position, but the model is {first}")]
+    #[diagnostic(
+        code(tandem::model::mixed),
+        help("a file is either axial (`at 14 ft`) or plane (`at (3 ft, 10 ft)`); write every node the same way")
+    )]
+    MixedModel {
+        this: &'static str,
+        first: &'static str,
+        #[label("{this}")]
+        span: Span,
+        #[label("this node made the model {first}")]
+        first_span: Span,
+    },
+
+    #[error("{message}")]
+    #[diagnostic(code(tandem::model::plane_only))]
+    ModelKind {
+        message: String,
+        #[label("here")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("part `{part}` has both ends at node `{node}`")]
+    #[diagnostic(
+        code(tandem::part::same_node),
+        help("a part spans two different nodes; check `ends`")
+    )]
+    SameNode {
+        part: String,
+        node: String,
+        #[label("both ends are `{node}`")]
+        span: Span,
+    },
+
+    #[error("part `{part}` has zero length: nodes `{a}` and `{b}` are at the same position")]
+    #[diagnostic(
+        code(tandem::part::zero_length),
+        help("move one node, or model the part as a spring with `stiffness`")
+    )]
+    ZeroLength {
+        part: String,
+        a: String,
+        b: String,
+        #[label("zero length")]
+        span: Span,
+    },
+
+    #[error("{what} must be positive, found {value}")]
+    #[diagnostic(code(tandem::value::positive))]
+    NotPositive {
+        what: String,
+        value: String,
+        #[label("not positive")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("unknown function `{name}`")]
+    #[diagnostic(code(tandem::function::unknown))]
+    UnknownFunction {
+        name: String,
+        #[label("not a function")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("{message}")]
+    #[diagnostic(code(tandem::function::arguments))]
+    BadArguments {
+        message: String,
+        #[label("{label}")]
+        span: Span,
+        label: String,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error(
+        "a temperature change acts on part `{part}`, but its material `{material}` has no `alpha`"
+    )]
+    #[diagnostic(
+        code(tandem::material::alpha),
+        help(
+            "add `alpha = 6.5e-6 / degF` (or the material's coefficient) to material `{material}`"
+        )
+    )]
+    NoAlpha {
+        part: String,
+        material: String,
+        #[label("temperature change here")]
+        span: Span,
+        #[label("material declared here")]
+        material_span: Span,
+    },
+
+    #[error("this check compares {left} with {right}")]
+    #[diagnostic(
+        code(tandem::check::dimensions),
+        help("both sides of a check must have one dimension")
+    )]
+    CheckDimensions {
+        left: String,
+        right: String,
+        #[label("{left}")]
+        lhs: Span,
+        #[label("{right}")]
+        rhs: Span,
+    },
+
+    #[error("unknown result `{field}` of {on} `{name}`")]
+    #[diagnostic(code(tandem::check::field))]
+    UnknownField {
+        field: String,
+        on: &'static str,
+        name: String,
+        #[label("not a result of a {on}")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("results such as `{name}` can only be used in a `check`")]
+    #[diagnostic(
+        code(tandem::check::result_outside),
+        help("results are known only after solving; compare them in a `check` line")
+    )]
+    ResultOutsideCheck {
+        name: String,
+        #[label("a result")]
+        span: Span,
+    },
+
+    #[error("`settle` moves a support, but node `{node}` is not fixed{direction}")]
+    #[diagnostic(code(tandem::support::settle))]
+    SettleFree {
+        node: String,
+        direction: String,
+        #[label("no support here")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("{what} is given twice in case `{case}`")]
+    #[diagnostic(code(tandem::case::duplicate), help("combine them into one line"))]
+    DuplicateInCase {
+        what: String,
+        case: String,
+        #[label("given again here")]
+        span: Span,
+        #[label("first given here")]
+        first: Span,
+    },
+
+    #[error("this statement stands outside any case, but the file declares cases")]
+    #[diagnostic(
+        code(tandem::case::loose),
+        help("move it into one of the `case` blocks; top-level loads are only for files without cases")
+    )]
+    LooseStatement {
+        #[label("outside a case")]
+        span: Span,
+        #[label("a case is declared here")]
+        case: Span,
+    },
+
+    #[error("case `{case}` appears twice in combination `{combination}`")]
+    #[diagnostic(
+        code(tandem::combine::duplicate),
+        help("give each case once, with its factor")
+    )]
+    CaseTwice {
+        case: String,
+        combination: String,
+        #[label("again here")]
+        span: Span,
+    },
+
+    #[error("node `{node}` belongs to more than one rigid body")]
+    #[diagnostic(
+        code(tandem::rigid::shared),
+        help(
+            "list the node in one rigid body; to join two bodies at a point, merge them into one"
+        )
+    )]
+    RigidShared {
+        node: String,
+        #[label("listed again here")]
+        span: Span,
+        #[label("first rigid body")]
+        first: Span,
+    },
+
+    #[error("the file declares no {what}")]
+    #[diagnostic(code(tandem::model::empty))]
+    Empty {
+        what: &'static str,
+        #[label("in this file")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
+    #[error("`{name}` depends on itself")]
+    #[diagnostic(
+        code(tandem::name::cycle),
+        help("break the chain of definitions: {chain}")
+    )]
+    Cycle {
+        name: String,
+        chain: String,
+        #[label("defined in terms of itself")]
+        span: Span,
+    },
+
+    #[error("too many {what}: {count} (the limit is {limit})")]
+    #[diagnostic(code(tandem::limit), help("split the calc into smaller files"))]
+    TooMany {
+        what: &'static str,
+        count: usize,
+        limit: usize,
+        #[label("limit passed here")]
+        span: Span,
+    },
+}
+
+impl ModelError {
+    /// Errors caused only by an earlier error are not shown again.
+    #[must_use]
+    pub fn poisoned() -> Self {
+        ModelError::NotFinite {
+            what: String::new(),
+            reason: POISON.into(),
+            span: Span::default(),
+        }
+    }
+
+    #[must_use]
+    pub fn is_poisoned(&self) -> bool {
+        matches!(self, ModelError::NotFinite { reason, .. } if reason == POISON)
+    }
+}
+
+const POISON: &str = "\u{0}poisoned";

@@ -1,0 +1,478 @@
+//! Expression evaluation with units, over a [`Scope`] that resolves names.
+
+use std::f64::consts::PI;
+
+use super::did_you_mean;
+use super::error::ModelError;
+use crate::source::Span;
+use crate::syntax::ast::{AddOp, Arg, Expr, ExprKind, Ident, MulOp, UnitExpr};
+use crate::units::{lookup, Dimension, Quantity, UnitError};
+
+/// A cross-section from a section helper: area and second moments about the
+/// two principal axes, in SI (m², m⁴).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Section {
+    pub shape: &'static str,
+    pub area: f64,
+    pub ix: f64,
+    pub iy: f64,
+}
+
+impl Section {
+    /// The smaller principal second moment, which governs buckling.
+    #[must_use]
+    pub fn inertia(&self) -> f64 {
+        self.ix.min(self.iy)
+    }
+}
+
+/// What an expression evaluates to.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum Val {
+    Q(Quantity),
+    Section(Section),
+}
+
+impl Val {
+    /// A section stands for its area wherever a number is needed.
+    #[must_use]
+    pub fn quantity(self) -> Quantity {
+        match self {
+            Val::Q(q) => q,
+            Val::Section(s) => Quantity::new(s.area, Dimension::AREA),
+        }
+    }
+}
+
+/// Resolves names while evaluating.
+pub trait Scope {
+    /// The value of a bare name (a `let`, a constant).
+    ///
+    /// # Errors
+    /// Unknown or not-yet-valid names.
+    fn name(&self, id: &Ident) -> Result<Quantity, ModelError>;
+    /// The value of `object.field` (a result, inside checks).
+    ///
+    /// # Errors
+    /// Results outside checks, unknown objects or fields.
+    fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError>;
+}
+
+/// Built-in constant names.
+pub const CONSTANTS: &[&str] = &["pi"];
+
+/// Built-in function names.
+pub const FUNCTIONS: &[&str] = &[
+    "sqrt", "abs", "min", "max", "circle", "ring", "rect", "box", "ishape",
+];
+
+/// The value of a built-in constant.
+#[must_use]
+pub fn constant(name: &str) -> Option<f64> {
+    match name {
+        "pi" => Some(PI),
+        _ => None,
+    }
+}
+
+/// Evaluate to a quantity (sections give their area).
+///
+/// # Errors
+/// Unit mismatches, unknown names, bad arguments, non-finite results.
+pub fn eval(e: &Expr, scope: &dyn Scope) -> Result<Quantity, ModelError> {
+    eval_val(e, scope).map(Val::quantity)
+}
+
+/// The factor to SI and the dimension of a unit expression.
+///
+/// # Errors
+/// An unknown unit name.
+pub fn unit_value(u: &UnitExpr) -> Result<Quantity, ModelError> {
+    let mut q = Quantity::number(1.0);
+    for f in &u.factors {
+        let unit = lookup(&f.name).ok_or_else(|| ModelError::UnknownName {
+            kind: "unit",
+            name: f.name.clone(),
+            span: f.span,
+            help: Some("`tandem units` lists the units".into()),
+        })?;
+        let mut power = f.power;
+        if f.divide {
+            power = -power;
+        }
+        let base = Quantity::new(unit.factor, unit.dim);
+        let p = base
+            .pow(Quantity::number(f64::from(power)))
+            .map_err(|e| unit_error(&e, f.span, "raise"))?;
+        q = q.mul(p).map_err(|e| unit_error(&e, f.span, "multiply"))?;
+    }
+    Ok(q)
+}
+
+fn unit_error(e: &UnitError, span: Span, op: &'static str) -> ModelError {
+    match e {
+        UnitError::Mismatch { left, right } => {
+            let (op, op_word) = match op {
+                "add" => ("add", "+"),
+                "subtract" => ("subtract", "-"),
+                "compare" => ("compare", "vs"),
+                other => (other, "with"),
+            };
+            ModelError::Incompatible {
+                op,
+                left: left.describe(),
+                right: right.describe(),
+                span,
+                op_word,
+            }
+        }
+        UnitError::BadPower { base, exponent } => ModelError::BadPower {
+            message: format!("cannot raise {} to the power {exponent}", base.describe()),
+            span,
+            help: Some("only whole and half powers of a quantity with units have a meaning; divide by a unit first, e.g. `(fc / psi)^0.3`".into()),
+        },
+        UnitError::DimensionedExponent(d) => ModelError::BadPower {
+            message: format!("an exponent must be a plain number, found {}", d.describe()),
+            span,
+            help: Some("divide the exponent by its unit".into()),
+        },
+        UnitError::NotFinite(reason) => ModelError::NotFinite {
+            what: "this expression".into(),
+            reason: (*reason).to_string(),
+            span,
+        },
+    }
+}
+
+/// Evaluate, keeping sections as sections.
+///
+/// # Errors
+/// As [`eval`].
+pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
+    let q = match &e.kind {
+        ExprKind::Quantity { value, unit } => {
+            let n = Quantity::number(*value);
+            match unit {
+                Some(u) => n
+                    .mul(unit_value(u)?)
+                    .map_err(|err| unit_error(&err, e.span, "multiply"))?,
+                None => n,
+            }
+        }
+        ExprKind::Unit(u) => unit_value(u)?,
+        ExprKind::Name(id) => scope.name(id)?,
+        ExprKind::Field(a, b) => scope.field(a, b)?,
+        ExprKind::Neg(inner) => {
+            let q = eval(inner, scope)?;
+            Quantity::new(-q.value, q.dim)
+        }
+        ExprKind::Sum(first, rest) => {
+            let mut acc = eval(first, scope)?;
+            for (op, x) in rest {
+                let v = eval(x, scope)?;
+                let span = first.span.to(x.span);
+                acc = match op {
+                    AddOp::Add => acc.add(v).map_err(|err| unit_error(&err, span, "add"))?,
+                    AddOp::Sub => acc
+                        .sub(v)
+                        .map_err(|err| unit_error(&err, span, "subtract"))?,
+                };
+            }
+            acc
+        }
+        ExprKind::Product(first, rest) => {
+            let mut acc = eval(first, scope)?;
+            for (op, x) in rest {
+                let v = eval(x, scope)?;
+                let span = first.span.to(x.span);
+                acc = match op {
+                    MulOp::Mul => acc
+                        .mul(v)
+                        .map_err(|err| unit_error(&err, span, "multiply"))?,
+                    MulOp::Div => acc.div(v).map_err(|err| unit_error(&err, span, "divide"))?,
+                };
+            }
+            acc
+        }
+        ExprKind::Power(base, exp) => {
+            let b = eval(base, scope)?;
+            let x = eval(exp, scope)?;
+            b.pow(x).map_err(|err| unit_error(&err, e.span, "raise"))?
+        }
+        ExprKind::Call { func, args } => return call(func, args, e.span, scope),
+    };
+    if q.value.is_finite() {
+        Ok(Val::Q(q))
+    } else {
+        Err(ModelError::NotFinite {
+            what: "this expression".into(),
+            reason: "the result overflows".into(),
+            span: e.span,
+        })
+    }
+}
+
+fn positional<'a>(
+    func: &Ident,
+    args: &'a [Arg],
+    count: Option<usize>,
+    span: Span,
+) -> Result<Vec<&'a Expr>, ModelError> {
+    if let Some(a) = args.iter().find(|a| a.name.is_some()) {
+        return Err(ModelError::BadArguments {
+            message: format!("`{}` takes its arguments without names", func.name),
+            span: a.span,
+            label: "named argument".into(),
+            help: Some(format!("write `{}(x)`", func.name)),
+        });
+    }
+    let ok = match count {
+        Some(n) => args.len() == n,
+        None => !args.is_empty(),
+    };
+    if !ok {
+        let want = match count {
+            Some(1) => "one argument".to_string(),
+            Some(n) => format!("{n} arguments"),
+            None => "at least one argument".to_string(),
+        };
+        return Err(ModelError::BadArguments {
+            message: format!("`{}` takes {want}, found {}", func.name, args.len()),
+            span,
+            label: format!("{} argument(s)", args.len()),
+            help: None,
+        });
+    }
+    Ok(args.iter().map(|a| &a.value).collect())
+}
+
+/// Named length arguments of a section helper, in the order of `names`.
+fn lengths(
+    func: &Ident,
+    args: &[Arg],
+    names: &[&'static str],
+    span: Span,
+    scope: &dyn Scope,
+) -> Result<Vec<f64>, ModelError> {
+    let expected = names
+        .iter()
+        .map(|n| format!("`{n}`"))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let mut values: Vec<Option<(f64, Span)>> = vec![None; names.len()];
+    for a in args {
+        let Some(name) = &a.name else {
+            return Err(ModelError::BadArguments {
+                message: format!("`{}` takes named arguments", func.name),
+                span: a.span,
+                label: "argument without a name".into(),
+                help: Some(format!(
+                    "write e.g. `{}({} = 10 in, ...)`; it takes {expected}",
+                    func.name, names[0]
+                )),
+            });
+        };
+        let Some(i) = names.iter().position(|n| *n == name.name) else {
+            let mut help = format!("`{}` takes {expected}", func.name);
+            if let Some(s) = did_you_mean(&name.name, names.iter().copied()) {
+                help = format!("{s} {help}");
+            }
+            return Err(ModelError::BadArguments {
+                message: format!("unknown argument `{}` of `{}`", name.name, func.name),
+                span: name.span,
+                label: "unknown argument".into(),
+                help: Some(help),
+            });
+        };
+        if values[i].is_some() {
+            return Err(ModelError::BadArguments {
+                message: format!("argument `{}` is given twice", name.name),
+                span: a.span,
+                label: "again here".into(),
+                help: None,
+            });
+        }
+        let q = eval(&a.value, scope)?;
+        if q.dim != Dimension::LENGTH {
+            return Err(ModelError::WrongDimension {
+                what: format!("`{}` of `{}`", name.name, func.name),
+                expected: "a length".into(),
+                found: q.dim.describe(),
+                span: a.value.span,
+                help: Some("expected a length such as `0.365 in` or `10 mm`".into()),
+            });
+        }
+        if q.value <= 0.0 {
+            return Err(ModelError::NotPositive {
+                what: format!("`{}` of `{}`", name.name, func.name),
+                value: "zero or less".into(),
+                span: a.value.span,
+                help: None,
+            });
+        }
+        values[i] = Some((q.value, a.value.span));
+    }
+    let mut out = Vec::with_capacity(names.len());
+    for (n, v) in names.iter().zip(values) {
+        match v {
+            Some((x, _)) => out.push(x),
+            None => {
+                return Err(ModelError::BadArguments {
+                    message: format!("`{}` needs `{n}`", func.name),
+                    span,
+                    label: format!("`{n}` missing"),
+                    help: Some(format!("`{}` takes {expected}", func.name)),
+                })
+            }
+        }
+    }
+    Ok(out)
+}
+
+fn too_thick(func: &Ident, span: Span, rule: &str) -> ModelError {
+    ModelError::BadArguments {
+        message: format!("the walls of this `{}` overlap", func.name),
+        span,
+        label: "not a hollow section".into(),
+        help: Some(format!("`{}` needs {rule}", func.name)),
+    }
+}
+
+fn call(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Val, ModelError> {
+    let name = func.name.as_str();
+    let q = match name {
+        "sqrt" => {
+            let a = positional(func, args, Some(1), span)?;
+            let x = eval(a[0], scope)?;
+            x.sqrt()
+                .map_err(|e| unit_error(&e, span, "take the root of"))?
+        }
+        "abs" => {
+            let a = positional(func, args, Some(1), span)?;
+            let x = eval(a[0], scope)?;
+            Quantity::new(x.value.abs(), x.dim)
+        }
+        "min" | "max" => {
+            let a = positional(func, args, None, span)?;
+            let mut acc = eval(a[0], scope)?;
+            for x in &a[1..] {
+                let v = eval(x, scope)?;
+                acc.same(v)
+                    .map_err(|e| unit_error(&e, a[0].span.to(x.span), "compare"))?;
+                let pick = if name == "min" {
+                    v.value < acc.value
+                } else {
+                    v.value > acc.value
+                };
+                if pick {
+                    acc = v;
+                }
+            }
+            acc
+        }
+        "circle" => {
+            let v = lengths(func, args, &["d"], span, scope)?;
+            return Ok(Val::Section(circle(v[0])));
+        }
+        "ring" => {
+            let v = lengths(func, args, &["d", "t"], span, scope)?;
+            if 2.0 * v[1] > v[0] {
+                return Err(too_thick(func, span, "`t` at most half of `d`"));
+            }
+            return Ok(Val::Section(ring(v[0], v[1])));
+        }
+        "rect" => {
+            let v = lengths(func, args, &["b", "h"], span, scope)?;
+            return Ok(Val::Section(rect(v[0], v[1])));
+        }
+        "box" => {
+            let v = lengths(func, args, &["b", "h", "t"], span, scope)?;
+            if 2.0 * v[2] >= v[0].min(v[1]) {
+                return Err(too_thick(func, span, "`t` less than half of `b` and `h`"));
+            }
+            return Ok(Val::Section(hollow_rect(v[0], v[1], v[2])));
+        }
+        "ishape" => {
+            let v = lengths(func, args, &["d", "bf", "tf", "tw"], span, scope)?;
+            if 2.0 * v[2] >= v[0] || v[3] > v[1] {
+                return Err(too_thick(
+                    func,
+                    span,
+                    "`tf` less than half of `d` and `tw` at most `bf`",
+                ));
+            }
+            return Ok(Val::Section(ishape(v[0], v[1], v[2], v[3])));
+        }
+        _ => {
+            return Err(ModelError::UnknownFunction {
+                name: func.name.clone(),
+                span: func.span,
+                help: Some(match did_you_mean(name, FUNCTIONS.iter().copied()) {
+                    Some(s) => s,
+                    None => format!("the functions are {}", FUNCTIONS.join(", ")),
+                }),
+            })
+        }
+    };
+    Ok(Val::Q(q))
+}
+
+/// Solid circle of diameter `d`.
+#[must_use]
+pub fn circle(d: f64) -> Section {
+    let i = PI * d.powi(4) / 64.0;
+    Section {
+        shape: "circle",
+        area: PI * d * d / 4.0,
+        ix: i,
+        iy: i,
+    }
+}
+
+/// Hollow circle, outside diameter `d`, wall `t`.
+#[must_use]
+pub fn ring(d: f64, t: f64) -> Section {
+    let di = d - 2.0 * t;
+    let i = PI * (d.powi(4) - di.powi(4)) / 64.0;
+    Section {
+        shape: "ring",
+        area: PI * (d * d - di * di) / 4.0,
+        ix: i,
+        iy: i,
+    }
+}
+
+/// Solid rectangle, width `b`, depth `h`.
+#[must_use]
+pub fn rect(b: f64, h: f64) -> Section {
+    Section {
+        shape: "rect",
+        area: b * h,
+        ix: b * h.powi(3) / 12.0,
+        iy: h * b.powi(3) / 12.0,
+    }
+}
+
+/// Hollow rectangle, outside `b` × `h`, wall `t`.
+#[must_use]
+pub fn hollow_rect(b: f64, h: f64, t: f64) -> Section {
+    let (bi, hi) = (b - 2.0 * t, h - 2.0 * t);
+    Section {
+        shape: "box",
+        area: b * h - bi * hi,
+        ix: (b * h.powi(3) - bi * hi.powi(3)) / 12.0,
+        iy: (h * b.powi(3) - hi * bi.powi(3)) / 12.0,
+    }
+}
+
+/// Doubly symmetric I from plates: depth `d`, flange `bf` × `tf`, web `tw`.
+#[must_use]
+pub fn ishape(d: f64, bf: f64, tf: f64, tw: f64) -> Section {
+    let hw = d - 2.0 * tf;
+    Section {
+        shape: "ishape",
+        area: 2.0 * bf * tf + hw * tw,
+        ix: (bf * d.powi(3) - (bf - tw) * hw.powi(3)) / 12.0,
+        iy: 2.0 * tf * bf.powi(3) / 12.0 + hw * tw.powi(3) / 12.0,
+    }
+}

@@ -1,0 +1,364 @@
+//! Names resolved, expressions evaluated, dimensions checked: the typed
+//! [`Model`] the solver works on. [`build`] collects every error in a file
+//! rather than stopping at the first.
+
+mod build;
+mod error;
+pub mod eval;
+
+pub use build::{build, Limits};
+pub use error::ModelError;
+
+use uom::si::f64::{
+    Area, Force, Length, Pressure, Ratio, TemperatureCoefficient, TemperatureInterval,
+};
+
+use crate::source::Span;
+use crate::syntax::ast::{Compare, Expr};
+use crate::units::Quantity;
+
+/// Axial stiffness (force per length). uom files this dimension under
+/// surface tension; the alias gives it the engineer's name.
+pub type Stiffness = uom::si::f64::SurfaceTension;
+
+/// One displacement per node along an axis, or two per node in a plane.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Kind {
+    Axial,
+    Plane,
+}
+
+impl Kind {
+    #[must_use]
+    pub fn name(self) -> &'static str {
+        match self {
+            Kind::Axial => "axial",
+            Kind::Plane => "plane",
+        }
+    }
+
+    /// Displacement components per node.
+    #[must_use]
+    pub fn dofs(self) -> usize {
+        match self {
+            Kind::Axial => 1,
+            Kind::Plane => 2,
+        }
+    }
+}
+
+/// The `calc { }` title block.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Title {
+    /// `(key, value)` in the order the keys are shown.
+    pub fields: Vec<(&'static str, String)>,
+}
+
+impl Title {
+    /// The keys a title block may hold, in report order.
+    pub const KEYS: &'static [&'static str] = &[
+        "title", "project", "number", "revision", "by", "checked", "date", "basis",
+    ];
+
+    #[must_use]
+    pub fn get(&self, key: &str) -> Option<&str> {
+        self.fields
+            .iter()
+            .find(|(k, _)| *k == key)
+            .map(|(_, v)| v.as_str())
+    }
+}
+
+/// A `let` with its evaluated value.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LetValue {
+    pub name: String,
+    pub value: Quantity,
+    pub expr: Expr,
+    pub span: Span,
+}
+
+/// A material law.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Material {
+    pub name: String,
+    pub e: Pressure,
+    pub alpha: Option<TemperatureCoefficient>,
+    pub yield_strength: Option<Pressure>,
+    pub yield_compression: Option<Pressure>,
+    pub allowable: Option<Pressure>,
+    pub allowable_tension: Option<Pressure>,
+    pub allowable_compression: Option<Pressure>,
+    pub creep: Option<f64>,
+    pub span: Span,
+}
+
+/// A node and its supports.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Node {
+    pub name: String,
+    pub x: Length,
+    /// Zero in axial models.
+    pub y: Length,
+    /// Fixed directions: `[x, y]` (axial models use `x` only).
+    pub fixed: [bool; 2],
+    pub span: Span,
+}
+
+/// Which sense of force a part can carry.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Carries {
+    Both,
+    Tension,
+    Compression,
+}
+
+impl Carries {
+    #[must_use]
+    pub fn name(self) -> &'static str {
+        match self {
+            Carries::Both => "both",
+            Carries::Tension => "tension",
+            Carries::Compression => "compression",
+        }
+    }
+}
+
+/// How a part resists elongation.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Law {
+    /// A member of a material and cross-section: k = E A / L.
+    Member {
+        material: usize,
+        area: Area,
+        /// Smaller principal second moment (m⁴) when a section or `inertia` gives it.
+        inertia: Option<f64>,
+        section: Option<&'static str>,
+    },
+    /// A spring of given stiffness.
+    Spring { stiffness: Stiffness },
+}
+
+/// An axial part between two nodes.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Part {
+    pub name: String,
+    /// Elongation is measured from `ends[0]` to `ends[1]`.
+    pub ends: [usize; 2],
+    pub law: Law,
+    pub length: Length,
+    pub misfit: Length,
+    pub carries: Carries,
+    pub slack: Length,
+    pub buckling_length: Option<Length>,
+    pub span: Span,
+}
+
+impl Part {
+    /// Axial stiffness k = E A / L (or the spring's).
+    #[must_use]
+    pub fn stiffness(&self, materials: &[Material]) -> Stiffness {
+        match &self.law {
+            Law::Member { material, area, .. } => {
+                // E·A/L is a force per length; uom files that under another
+                // kind, so the value is carried over explicitly.
+                let k = materials[*material].e * *area / self.length;
+                Stiffness::new::<uom::si::surface_tension::newton_per_meter>(k.value)
+            }
+            Law::Spring { stiffness } => *stiffness,
+        }
+    }
+
+    /// The area, for members.
+    #[must_use]
+    pub fn area(&self) -> Option<Area> {
+        match &self.law {
+            Law::Member { area, .. } => Some(*area),
+            Law::Spring { .. } => None,
+        }
+    }
+
+    /// The material index, for members.
+    #[must_use]
+    pub fn material(&self) -> Option<usize> {
+        match &self.law {
+            Law::Member { material, .. } => Some(*material),
+            Law::Spring { .. } => None,
+        }
+    }
+}
+
+/// A set of nodes that move as one rigid body.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Rigid {
+    pub name: String,
+    pub nodes: Vec<usize>,
+    pub span: Span,
+}
+
+/// Nodes that move together (`tie`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Tie {
+    pub nodes: Vec<usize>,
+    pub span: Span,
+}
+
+/// A nodal load.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Load {
+    pub node: usize,
+    /// `[x, y]`; axial models use `x`.
+    pub force: [Force; 2],
+    pub span: Span,
+}
+
+/// A prescribed support movement.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Settlement {
+    pub node: usize,
+    /// 0 for x (or the axis), 1 for y.
+    pub direction: usize,
+    pub movement: Length,
+    pub span: Span,
+}
+
+/// A temperature change acting on one part or (with `part: None`) all.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Temperature {
+    pub part: Option<usize>,
+    pub change: TemperatureInterval,
+    pub span: Span,
+}
+
+/// A free strain (shrinkage, swelling) on one part.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FreeStrain {
+    pub part: usize,
+    pub strain: Ratio,
+    pub span: Span,
+}
+
+/// A load case.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Case {
+    pub name: String,
+    pub sustained: bool,
+    pub loads: Vec<Load>,
+    pub temperatures: Vec<Temperature>,
+    pub strains: Vec<FreeStrain>,
+    pub settlements: Vec<Settlement>,
+    pub span: Span,
+}
+
+/// A load combination: factored cases, solved directly.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Combination {
+    pub name: String,
+    /// `(case index, factor)`.
+    pub terms: Vec<(usize, f64)>,
+    /// False when made from a lone case because the file has no `combine`.
+    pub declared: bool,
+    pub span: Span,
+}
+
+/// A design check, evaluated after solving.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Check {
+    pub label: String,
+    pub lhs: Expr,
+    pub op: Compare,
+    pub rhs: Expr,
+    pub span: Span,
+}
+
+/// Display units chosen by `units`.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub enum UnitChoice {
+    /// Decide from the units the file uses most.
+    #[default]
+    Auto,
+    Us,
+    Si,
+    /// An explicit list of unit expressions (as written), one per dimension.
+    List(Vec<(String, Quantity)>),
+}
+
+/// The checked model of one calc file.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Model {
+    pub title: Title,
+    pub kind: Kind,
+    pub lets: Vec<LetValue>,
+    pub materials: Vec<Material>,
+    pub nodes: Vec<Node>,
+    pub parts: Vec<Part>,
+    pub rigids: Vec<Rigid>,
+    pub ties: Vec<Tie>,
+    pub cases: Vec<Case>,
+    pub combinations: Vec<Combination>,
+    pub checks: Vec<Check>,
+    pub units: UnitChoice,
+    /// How often each unit name is written in the file (for display defaults).
+    pub unit_usage: Vec<(String, usize)>,
+}
+
+impl Model {
+    /// The value of a `let`, for evaluating checks.
+    #[must_use]
+    pub fn let_value(&self, name: &str) -> Option<Quantity> {
+        self.lets.iter().find(|l| l.name == name).map(|l| l.value)
+    }
+
+    #[must_use]
+    pub fn node_index(&self, name: &str) -> Option<usize> {
+        self.nodes.iter().position(|n| n.name == name)
+    }
+
+    #[must_use]
+    pub fn part_index(&self, name: &str) -> Option<usize> {
+        self.parts.iter().position(|p| p.name == name)
+    }
+}
+
+/// A "did you mean `x`?" hint for a misspelled name, when one is close.
+pub(crate) fn did_you_mean<'a>(
+    name: &str,
+    candidates: impl IntoIterator<Item = &'a str>,
+) -> Option<String> {
+    let mut best: Option<(f64, &str)> = None;
+    for c in candidates {
+        let score = strsim::jaro_winkler(name, c);
+        // An edit or two is a typo only in a name long enough to carry it.
+        let close = name.len() >= 3
+            && strsim::damerau_levenshtein(name, c) <= (name.len().max(c.len()) / 3).max(1);
+        if ((score > 0.85 && name.len() >= 2) || close) && best.is_none_or(|(s, _)| score > s) {
+            best = Some((score, c));
+        }
+    }
+    best.map(|(_, c)| format!("did you mean `{c}`?"))
+}
+
+fn plural(n: usize, word: &str) -> String {
+    if n == 1 {
+        format!("{n} {word}")
+    } else {
+        format!("{n} {word}s")
+    }
+}
+
+/// A one-line description: model kind and counts.
+#[must_use]
+pub fn summary(m: &Model) -> String {
+    let mut s = format!(
+        "{} model, {}, {}, {}, {}",
+        m.kind.name(),
+        plural(m.materials.len(), "material"),
+        plural(m.parts.len(), "part"),
+        plural(m.nodes.len(), "node"),
+        plural(m.combinations.len(), "combination"),
+    );
+    if !m.checks.is_empty() {
+        s.push_str(&format!(", {}", plural(m.checks.len(), "check")));
+    }
+    s
+}

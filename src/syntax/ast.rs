@@ -1,0 +1,301 @@
+//! The owned syntax tree of a calc file. Every node carries the [`Span`] of
+//! the text it came from; nothing here knows about pest.
+
+use crate::source::Span;
+
+/// A name as written, with its span.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Ident {
+    pub name: String,
+    pub span: Span,
+}
+
+/// A whole calc file: its declarations in file order.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct File {
+    pub decls: Vec<Decl>,
+}
+
+/// One top-level declaration.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Decl {
+    Calc(Block),
+    Let(Let),
+    Material(NamedBlock),
+    Part(NamedBlock),
+    Rigid(NamedBlock),
+    Node(Node),
+    Fix(Vec<Support>),
+    Tie(Tie),
+    Case(Case),
+    Combine(Combine),
+    Check(Check),
+    Units(Units),
+    /// A case statement standing at top level (the file's single case).
+    Stmt(Stmt),
+}
+
+/// `let NAME = EXPR`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Let {
+    pub name: Ident,
+    pub value: Expr,
+    pub span: Span,
+}
+
+/// `{ key = value ... }`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Block {
+    pub entries: Vec<Entry>,
+    pub span: Span,
+}
+
+/// `KEYWORD NAME { ... }`
+#[derive(Clone, Debug, PartialEq)]
+pub struct NamedBlock {
+    pub name: Ident,
+    pub block: Block,
+    pub span: Span,
+}
+
+/// `key = value` inside a block.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Entry {
+    pub key: Ident,
+    pub value: Value,
+    pub span: Span,
+}
+
+/// The right side of an entry: a string, or one or more expressions.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Value {
+    Str(Str),
+    Exprs(Vec<Expr>),
+}
+
+/// A string literal with escapes resolved.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Str {
+    pub text: String,
+    pub span: Span,
+}
+
+/// A position or load: one value (axial) or a pair (plane).
+#[derive(Clone, Debug, PartialEq)]
+pub enum Coord {
+    Axial(Expr),
+    Plane(Expr, Expr, Span),
+}
+
+impl Coord {
+    #[must_use]
+    pub fn span(&self) -> Span {
+        match self {
+            Coord::Axial(e) => e.span,
+            Coord::Plane(_, _, s) => *s,
+        }
+    }
+}
+
+/// `node NAME at POSITION`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Node {
+    pub name: Ident,
+    pub at: Coord,
+    pub span: Span,
+}
+
+/// A direction in a plane model.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Axis {
+    X,
+    Y,
+}
+
+/// One `NAME [x|y]` of a `fix` line.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Support {
+    pub node: Ident,
+    pub axis: Option<(Axis, Span)>,
+    pub span: Span,
+}
+
+/// `tie a, b, ...`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Tie {
+    pub nodes: Vec<Ident>,
+    pub span: Span,
+}
+
+/// `case NAME [sustained] { ... }`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Case {
+    pub name: Ident,
+    pub flags: Vec<Ident>,
+    pub stmts: Vec<Stmt>,
+    pub span: Span,
+}
+
+/// Statements that make up a load case.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Stmt {
+    Load {
+        node: Ident,
+        force: Coord,
+        span: Span,
+    },
+    /// `temperature [PART] = DT`
+    Temperature {
+        part: Option<Ident>,
+        change: Expr,
+        span: Span,
+    },
+    /// `strain PART = VALUE`
+    Strain {
+        part: Ident,
+        value: Expr,
+        span: Span,
+    },
+    /// `settle NODE [x|y] = MOVEMENT`
+    Settle {
+        node: Ident,
+        axis: Option<(Axis, Span)>,
+        movement: Expr,
+        span: Span,
+    },
+}
+
+impl Stmt {
+    #[must_use]
+    pub fn span(&self) -> Span {
+        match self {
+            Stmt::Load { span, .. }
+            | Stmt::Temperature { span, .. }
+            | Stmt::Strain { span, .. }
+            | Stmt::Settle { span, .. } => *span,
+        }
+    }
+}
+
+/// `combine NAME = 1.2 dead + 1.6 live`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Combine {
+    pub name: Ident,
+    pub terms: Vec<ComboTerm>,
+    pub span: Span,
+}
+
+/// One `factor case` term of a combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ComboTerm {
+    pub factor: f64,
+    pub case: Ident,
+    pub span: Span,
+}
+
+/// A comparison operator of a check.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Compare {
+    Le,
+    Lt,
+    Ge,
+    Gt,
+}
+
+impl Compare {
+    #[must_use]
+    pub fn symbol(self) -> &'static str {
+        match self {
+            Compare::Le => "≤",
+            Compare::Lt => "<",
+            Compare::Ge => "≥",
+            Compare::Gt => ">",
+        }
+    }
+}
+
+/// `check "label" : LHS op RHS`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Check {
+    pub label: Str,
+    pub lhs: Expr,
+    pub op: Compare,
+    pub rhs: Expr,
+    pub span: Span,
+}
+
+/// `units us`, `units si` or `units kip, in, ksi`
+#[derive(Clone, Debug, PartialEq)]
+pub enum Units {
+    System(Ident),
+    List(Vec<UnitExpr>),
+}
+
+/// An expression.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Expr {
+    pub kind: ExprKind,
+    pub span: Span,
+}
+
+/// The shapes of expression. Sums and products are flat lists so that long
+/// chains (`a + b + c + ...`) never nest deeply.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ExprKind {
+    /// A number with an optional unit: `29000 ksi`, `0.45`.
+    Quantity { value: f64, unit: Option<UnitExpr> },
+    /// A unit standing alone: `psi` in `sqrt(fc / psi) * psi`.
+    Unit(UnitExpr),
+    /// A name: a `let`, a constant, or (in some keys) a material or node.
+    Name(Ident),
+    /// `PART.force`, `NODE.displacement`.
+    Field(Ident, Ident),
+    /// Unary minus.
+    Neg(Box<Expr>),
+    /// `first (op operand)*` with `+`/`-`.
+    Sum(Box<Expr>, Vec<(AddOp, Expr)>),
+    /// `first (op operand)*` with `*`/`/`.
+    Product(Box<Expr>, Vec<(MulOp, Expr)>),
+    /// `base ^ exponent` (right-associative chains are nested).
+    Power(Box<Expr>, Box<Expr>),
+    /// `f(args)`.
+    Call { func: Ident, args: Vec<Arg> },
+}
+
+/// `+` or `-`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum AddOp {
+    Add,
+    Sub,
+}
+
+/// `*` or `/`.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MulOp {
+    Mul,
+    Div,
+}
+
+/// A call argument, named (`d = 10 in`) or positional.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Arg {
+    pub name: Option<Ident>,
+    pub value: Expr,
+    pub span: Span,
+}
+
+/// A unit expression such as `kip/in` or `kN/m^3`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct UnitExpr {
+    pub factors: Vec<UnitFactor>,
+    pub span: Span,
+}
+
+/// One unit name with its power; `divide` when it follows a `/`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct UnitFactor {
+    pub name: String,
+    pub power: i32,
+    pub divide: bool,
+    pub span: Span,
+}

@@ -1,0 +1,794 @@
+//! pest pairs to the owned syntax tree, and pest errors to [`SyntaxError`].
+
+use pest::iterators::Pair;
+use pest::Parser;
+
+use super::ast::{
+    AddOp, Arg, Axis, Block, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry, Expr,
+    ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
+    UnitFactor, Units, Value,
+};
+use super::parser::{CalcParser, Rule};
+use super::{SyntaxError, MAX_NESTING};
+use crate::source::Span;
+
+type Result<T> = std::result::Result<T, SyntaxError>;
+
+/// Parse a calc file's text into its syntax tree.
+///
+/// # Errors
+/// The syntax errors found: unbalanced braces, unterminated strings and
+/// too-deep nesting from a pre-scan, else pest's first error, worded.
+pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
+    let pre = prescan(text);
+    if !pre.is_empty() {
+        return Err(pre);
+    }
+    let mut pairs = CalcParser::parse(Rule::file, text).map_err(|e| vec![from_pest(&e, text)])?;
+    let file = pairs.next().ok_or_else(|| vec![eof_error(text)])?;
+    let mut decls = Vec::new();
+    let mut errors = Vec::new();
+    for p in file.into_inner() {
+        match p.as_rule() {
+            Rule::EOI | Rule::eol => {}
+            _ => match decl(p) {
+                Ok(d) => decls.push(d),
+                Err(e) => errors.push(e),
+            },
+        }
+    }
+    if errors.is_empty() {
+        Ok(File { decls })
+    } else {
+        Err(errors)
+    }
+}
+
+fn eof_error(text: &str) -> SyntaxError {
+    SyntaxError::Expected {
+        expected: "a declaration".into(),
+        after: String::new(),
+        span: Span::new(text.len(), text.len()),
+        found: "end of file".into(),
+        help: None,
+    }
+}
+
+/// Braces, strings and nesting depth, checked before pest runs so that the
+/// messages can point at the opening brace or quote, and so that hostile
+/// nesting never reaches the recursive parser.
+fn prescan(text: &str) -> Vec<SyntaxError> {
+    let mut errors = Vec::new();
+    let mut braces: Vec<usize> = Vec::new();
+    let mut depth = 0usize;
+    let bytes = text.as_bytes();
+    let mut i = 0;
+    while i < bytes.len() {
+        match bytes[i] {
+            b'#' => {
+                while i < bytes.len() && bytes[i] != b'\n' {
+                    i += 1;
+                }
+                continue;
+            }
+            b'"' => {
+                let start = i;
+                i += 1;
+                loop {
+                    match bytes.get(i) {
+                        None | Some(b'\n' | b'\r') => {
+                            errors.push(SyntaxError::UnclosedString {
+                                span: Span::new(start, i),
+                            });
+                            break;
+                        }
+                        Some(b'\\') => i += 2,
+                        Some(b'"') => break,
+                        Some(_) => i += 1,
+                    }
+                }
+            }
+            b'{' => braces.push(i),
+            b'}' if braces.pop().is_none() => {
+                errors.push(SyntaxError::StrayBrace {
+                    span: Span::new(i, i + 1),
+                });
+            }
+            b'(' => {
+                depth += 1;
+                if depth > MAX_NESTING {
+                    errors.push(SyntaxError::TooDeep {
+                        span: Span::new(i, i + 1),
+                        limit: MAX_NESTING,
+                    });
+                    return errors;
+                }
+            }
+            b')' => depth = depth.saturating_sub(1),
+            b'\n' => depth = 0,
+            _ => {}
+        }
+        i += 1;
+    }
+    for open in braces {
+        errors.push(SyntaxError::UnclosedBlock {
+            span: Span::new(open, open + 1),
+        });
+    }
+    errors
+}
+
+/// What the user is told a rule stands for.
+fn describe(rule: Rule) -> Option<&'static str> {
+    Some(match rule {
+        Rule::expr
+        | Rule::term
+        | Rule::power
+        | Rule::unary
+        | Rule::signed
+        | Rule::quantity
+        | Rule::paren
+        | Rule::path
+        | Rule::call
+        | Rule::number
+        | Rule::neg
+        | Rule::arg => "a value",
+        Rule::unit_expr | Rule::unit_name | Rule::unit_power | Rule::unit_atom => "a unit",
+        Rule::mul_op | Rule::add_op | Rule::unit_op => "an operator",
+        Rule::eol => "the end of the line",
+        Rule::EOI => "the end of the file",
+        Rule::name => "a name",
+        Rule::string => "a quoted string",
+        Rule::open => "`{`",
+        Rule::close => "`}`",
+        Rule::eq => "`=`",
+        Rule::lparen => "`(`",
+        Rule::rparen => "`)`",
+        Rule::comma => "`,`",
+        Rule::colon => "`:`",
+        Rule::compare => "a comparison (`<=`, `<`, `>=`, `>`)",
+        Rule::pair => "a pair `(x, y)`",
+        Rule::axis => "`x` or `y`",
+        Rule::sign => "`+` or `-`",
+        Rule::combo_term => "a case name",
+        Rule::case_flag => "`sustained`",
+        Rule::unit_system => "`us`, `si`",
+        Rule::kw_at => "`at`",
+        Rule::entry => "a `key = value` line",
+        Rule::kw_load | Rule::kw_temperature | Rule::kw_strain | Rule::kw_settle => {
+            "a case statement (`load`, `temperature`, `strain`, `settle`)"
+        }
+        Rule::kw_calc
+        | Rule::kw_let
+        | Rule::kw_material
+        | Rule::kw_node
+        | Rule::kw_fix
+        | Rule::kw_part
+        | Rule::kw_rigid
+        | Rule::kw_tie
+        | Rule::kw_case
+        | Rule::kw_combine
+        | Rule::kw_check
+        | Rule::kw_units => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
+        _ => return None,
+    })
+}
+
+fn join_or(words: &[&str]) -> String {
+    match words {
+        [] => "something else".into(),
+        [one] => (*one).to_string(),
+        [init @ .., last] => format!("{} or {last}", init.join(", ")),
+    }
+}
+
+/// The word or symbol that starts at `pos`, for "found ..." labels.
+fn token_at(text: &str, pos: usize) -> String {
+    let rest = text.get(pos..).unwrap_or("");
+    let Some(c) = rest.chars().next() else {
+        return "end of file".into();
+    };
+    if c == '\n' || c == '\r' {
+        return "end of line".into();
+    }
+    let word: String = if c.is_ascii_alphanumeric() || c == '_' || c == '.' {
+        rest.chars()
+            .take_while(|c| c.is_ascii_alphanumeric() || *c == '_' || *c == '.')
+            .collect()
+    } else {
+        c.to_string()
+    };
+    format!("found `{word}`")
+}
+
+/// The token just before `pos` on the same line, for "after ...".
+fn token_before(text: &str, pos: usize) -> String {
+    let head = text.get(..pos).unwrap_or("");
+    let line = head.rsplit('\n').next().unwrap_or("");
+    let line = line.split('#').next().unwrap_or("").trim_end();
+    let word: String = line
+        .chars()
+        .rev()
+        .take_while(|c| !c.is_whitespace())
+        .collect::<Vec<_>>()
+        .into_iter()
+        .rev()
+        .collect();
+    if word.is_empty() {
+        String::new()
+    } else {
+        format!(" after `{word}`")
+    }
+}
+
+fn from_pest(e: &pest::error::Error<Rule>, text: &str) -> SyntaxError {
+    let pos = match e.location {
+        pest::error::InputLocation::Pos(p) => p,
+        pest::error::InputLocation::Span((s, _)) => s,
+    };
+    let mut words: Vec<&str> = Vec::new();
+    if let pest::error::ErrorVariant::ParsingError { positives, .. } = &e.variant {
+        for r in positives {
+            if let Some(w) = describe(*r) {
+                if !words.contains(&w) {
+                    words.push(w);
+                }
+            }
+        }
+    }
+    // Order from the most to the least specific for a readable message.
+    let rank = |w: &str| match w {
+        "a unit" => 0,
+        "an operator" => 1,
+        "the end of the line" => 9,
+        "the end of the file" => 10,
+        _ => 5,
+    };
+    words.sort_by_key(|w| rank(w));
+    let line_start = text
+        .get(..pos)
+        .unwrap_or("")
+        .rsplit('\n')
+        .next()
+        .is_some_and(|l| l.trim().is_empty());
+    if line_start {
+        words.retain(|w| *w != "the end of the line");
+    }
+    if words.contains(&"the end of the line") {
+        words.retain(|w| *w != "the end of the file");
+    }
+    let found = token_at(text, pos);
+    let help = if found.starts_with("found `") && words.contains(&"a unit") {
+        Some(
+            "units are written after the number, e.g. `29000 ksi`; `tandem units` lists them"
+                .into(),
+        )
+    } else if words.iter().any(|w| w.starts_with("a declaration")) {
+        Some("each line starts with a keyword such as `let`, `material`, `node`, `part`, `case`, `combine` or `check`".into())
+    } else {
+        None
+    };
+    let end = (pos + found.len().saturating_sub(9).max(1)).min(text.len());
+    let end = if text.is_char_boundary(end) { end } else { pos };
+    SyntaxError::Expected {
+        expected: join_or(&words),
+        after: token_before(text, pos),
+        span: Span::new(pos, end.max(pos)),
+        found,
+        help,
+    }
+}
+
+fn span(p: &Pair<'_, Rule>) -> Span {
+    let s = p.as_span();
+    Span::new(s.start(), s.end())
+}
+
+fn ident(p: &Pair<'_, Rule>) -> Ident {
+    Ident {
+        name: p.as_str().to_string(),
+        span: span(p),
+    }
+}
+
+/// Inner pairs without punctuation and line ends.
+fn parts(p: Pair<'_, Rule>) -> impl Iterator<Item = Pair<'_, Rule>> {
+    p.into_inner().filter(|q| {
+        !matches!(
+            q.as_rule(),
+            Rule::eol
+                | Rule::eq
+                | Rule::open
+                | Rule::close
+                | Rule::lparen
+                | Rule::rparen
+                | Rule::comma
+                | Rule::colon
+                | Rule::kw_calc
+                | Rule::kw_let
+                | Rule::kw_material
+                | Rule::kw_node
+                | Rule::kw_at
+                | Rule::kw_fix
+                | Rule::kw_settle
+                | Rule::kw_part
+                | Rule::kw_rigid
+                | Rule::kw_tie
+                | Rule::kw_case
+                | Rule::kw_combine
+                | Rule::kw_check
+                | Rule::kw_units
+                | Rule::kw_load
+                | Rule::kw_temperature
+                | Rule::kw_strain
+        )
+    })
+}
+
+fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
+    let sp = span(&p);
+    let rule = p.as_rule();
+    if matches!(
+        rule,
+        Rule::load_stmt | Rule::temperature_stmt | Rule::strain_stmt | Rule::settle_stmt
+    ) {
+        return Ok(Decl::Stmt(stmt(p)?));
+    }
+    let mut it = parts(p);
+    let mut next = || it.next();
+    Ok(match rule {
+        Rule::calc_decl => Decl::Calc(block(need(next(), sp)?)?),
+        Rule::let_decl => {
+            let name = ident(&need(next(), sp)?);
+            let value = expr(need(next(), sp)?)?;
+            Decl::Let(Let {
+                name,
+                value,
+                span: sp,
+            })
+        }
+        Rule::material_decl | Rule::part_decl | Rule::rigid_decl => {
+            let name = ident(&need(next(), sp)?);
+            let nb = NamedBlock {
+                name,
+                block: block(need(next(), sp)?)?,
+                span: sp,
+            };
+            match rule {
+                Rule::material_decl => Decl::Material(nb),
+                Rule::part_decl => Decl::Part(nb),
+                _ => Decl::Rigid(nb),
+            }
+        }
+        Rule::node_decl => {
+            let name = ident(&need(next(), sp)?);
+            let at = coord(need(next(), sp)?)?;
+            Decl::Node(Node { name, at, span: sp })
+        }
+        Rule::fix_decl => {
+            let mut supports = Vec::new();
+            while let Some(s) = next() {
+                let ssp = span(&s);
+                let mut inner = parts(s);
+                let node = ident(&need(inner.next(), ssp)?);
+                let axis = inner.next().map(|a| axis(&a));
+                supports.push(Support {
+                    node,
+                    axis,
+                    span: ssp,
+                });
+            }
+            Decl::Fix(supports)
+        }
+        Rule::tie_decl => {
+            let mut nodes = Vec::new();
+            while let Some(n) = next() {
+                nodes.push(ident(&n));
+            }
+            Decl::Tie(Tie { nodes, span: sp })
+        }
+        Rule::case_decl => {
+            let name = ident(&need(next(), sp)?);
+            let mut flags = Vec::new();
+            let mut stmts = Vec::new();
+            while let Some(q) = next() {
+                match q.as_rule() {
+                    Rule::case_flag => flags.push(ident(&q)),
+                    Rule::case_body => {
+                        for s in parts(q) {
+                            stmts.push(stmt(s)?);
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            Decl::Case(Case {
+                name,
+                flags,
+                stmts,
+                span: sp,
+            })
+        }
+        Rule::combine_decl => {
+            let name = ident(&need(next(), sp)?);
+            let mut terms = Vec::new();
+            let mut negative = false;
+            while let Some(q) = next() {
+                match q.as_rule() {
+                    Rule::sign => negative = q.as_str() == "-",
+                    Rule::combo_term => {
+                        let tsp = span(&q);
+                        let mut factor = 1.0;
+                        let mut case = None;
+                        for t in parts(q) {
+                            match t.as_rule() {
+                                Rule::number => factor = number(&t)?,
+                                _ => case = Some(ident(&t)),
+                            }
+                        }
+                        if negative {
+                            factor = -factor;
+                        }
+                        negative = false;
+                        terms.push(ComboTerm {
+                            factor,
+                            case: need_ident(case, tsp)?,
+                            span: tsp,
+                        });
+                    }
+                    _ => {}
+                }
+            }
+            Decl::Combine(Combine {
+                name,
+                terms,
+                span: sp,
+            })
+        }
+        Rule::check_decl => {
+            let label = string(&need(next(), sp)?);
+            let lhs = expr(need(next(), sp)?)?;
+            let op = match need(next(), sp)?.as_str() {
+                "<=" => Compare::Le,
+                "<" => Compare::Lt,
+                ">=" => Compare::Ge,
+                _ => Compare::Gt,
+            };
+            let rhs = expr(need(next(), sp)?)?;
+            Decl::Check(Check {
+                label,
+                lhs,
+                op,
+                rhs,
+                span: sp,
+            })
+        }
+        Rule::units_decl => {
+            let first = need(next(), sp)?;
+            if first.as_rule() == Rule::unit_system {
+                Decl::Units(Units::System(ident(&first)))
+            } else {
+                let mut list = vec![unit_expr(first)?];
+                while let Some(q) = next() {
+                    list.push(unit_expr(q)?);
+                }
+                Decl::Units(Units::List(list))
+            }
+        }
+        _ => return Err(internal(sp)),
+    })
+}
+
+fn internal(sp: Span) -> SyntaxError {
+    SyntaxError::Expected {
+        expected: "a declaration".into(),
+        after: String::new(),
+        span: sp,
+        found: "not understood".into(),
+        help: None,
+    }
+}
+
+fn need(p: Option<Pair<'_, Rule>>, sp: Span) -> Result<Pair<'_, Rule>> {
+    p.ok_or_else(|| internal(sp))
+}
+
+fn need_ident(i: Option<Ident>, sp: Span) -> Result<Ident> {
+    i.ok_or_else(|| internal(sp))
+}
+
+fn axis(p: &Pair<'_, Rule>) -> (Axis, Span) {
+    let a = if p.as_str() == "x" { Axis::X } else { Axis::Y };
+    (a, span(p))
+}
+
+fn stmt(p: Pair<'_, Rule>) -> Result<Stmt> {
+    let sp = span(&p);
+    let rule = p.as_rule();
+    let mut it = parts(p);
+    Ok(match rule {
+        Rule::load_stmt => Stmt::Load {
+            node: ident(&need(it.next(), sp)?),
+            force: coord(need(it.next(), sp)?)?,
+            span: sp,
+        },
+        Rule::temperature_stmt => {
+            let a = need(it.next(), sp)?;
+            if a.as_rule() == Rule::name {
+                Stmt::Temperature {
+                    part: Some(ident(&a)),
+                    change: expr(need(it.next(), sp)?)?,
+                    span: sp,
+                }
+            } else {
+                Stmt::Temperature {
+                    part: None,
+                    change: expr(a)?,
+                    span: sp,
+                }
+            }
+        }
+        Rule::strain_stmt => Stmt::Strain {
+            part: ident(&need(it.next(), sp)?),
+            value: expr(need(it.next(), sp)?)?,
+            span: sp,
+        },
+        Rule::settle_stmt => {
+            let node = ident(&need(it.next(), sp)?);
+            let mut q = need(it.next(), sp)?;
+            let mut ax = None;
+            if q.as_rule() == Rule::axis {
+                ax = Some(axis(&q));
+                q = need(it.next(), sp)?;
+            }
+            Stmt::Settle {
+                node,
+                axis: ax,
+                movement: expr(q)?,
+                span: sp,
+            }
+        }
+        _ => return Err(internal(sp)),
+    })
+}
+
+fn coord(p: Pair<'_, Rule>) -> Result<Coord> {
+    let sp = span(&p);
+    if p.as_rule() == Rule::pair {
+        let mut it = parts(p);
+        let x = expr(need(it.next(), sp)?)?;
+        let y = expr(need(it.next(), sp)?)?;
+        Ok(Coord::Plane(x, y, sp))
+    } else {
+        Ok(Coord::Axial(expr(p)?))
+    }
+}
+
+fn block(p: Pair<'_, Rule>) -> Result<Block> {
+    let sp = span(&p);
+    let mut entries = Vec::new();
+    for e in parts(p) {
+        let esp = span(&e);
+        let mut it = parts(e);
+        let key = ident(&need(it.next(), esp)?);
+        let first = need(it.next(), esp)?;
+        let value = if first.as_rule() == Rule::string {
+            Value::Str(string(&first))
+        } else {
+            let mut list = vec![expr(first)?];
+            for q in it {
+                list.push(expr(q)?);
+            }
+            Value::Exprs(list)
+        };
+        entries.push(Entry {
+            key,
+            value,
+            span: esp,
+        });
+    }
+    Ok(Block { entries, span: sp })
+}
+
+fn string(p: &Pair<'_, Rule>) -> Str {
+    let raw = p.as_str();
+    let body = raw.get(1..raw.len().saturating_sub(1)).unwrap_or("");
+    let mut text = String::with_capacity(body.len());
+    let mut chars = body.chars();
+    while let Some(c) = chars.next() {
+        if c == '\\' {
+            if let Some(n) = chars.next() {
+                text.push(n);
+            }
+        } else {
+            text.push(c);
+        }
+    }
+    Str {
+        text,
+        span: span(p),
+    }
+}
+
+fn number(p: &Pair<'_, Rule>) -> Result<f64> {
+    let clean: String = p.as_str().chars().filter(|c| *c != '_').collect();
+    match clean.parse::<f64>() {
+        Ok(v) if v.is_finite() => Ok(v),
+        _ => Err(SyntaxError::BadNumber { span: span(p) }),
+    }
+}
+
+fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
+    let sp = span(&p);
+    let mut factors = Vec::new();
+    let mut divide = false;
+    for q in parts(p) {
+        match q.as_rule() {
+            Rule::unit_op => divide = q.as_str() == "/",
+            Rule::unit_power => {
+                let fsp = span(&q);
+                let mut it = parts(q);
+                let name = need(it.next(), fsp)?.as_str().to_string();
+                let power = match it.next() {
+                    Some(e) => e
+                        .as_str()
+                        .parse::<i32>()
+                        .ok()
+                        .filter(|p| p.abs() <= 12)
+                        .ok_or(SyntaxError::BadUnitPower { span: span(&e) })?,
+                    None => 1,
+                };
+                factors.push(UnitFactor {
+                    name,
+                    power,
+                    divide,
+                    span: fsp,
+                });
+            }
+            _ => {}
+        }
+    }
+    Ok(UnitExpr { factors, span: sp })
+}
+
+fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
+    let sp = span(&p);
+    match p.as_rule() {
+        Rule::expr => {
+            let mut it = parts(p);
+            let first = expr(need(it.next(), sp)?)?;
+            let mut rest = Vec::new();
+            while let Some(op) = it.next() {
+                let op = if op.as_str() == "+" {
+                    AddOp::Add
+                } else {
+                    AddOp::Sub
+                };
+                rest.push((op, expr(need(it.next(), sp)?)?));
+            }
+            Ok(flat(first, rest, sp, ExprKind::Sum))
+        }
+        Rule::term => {
+            let mut it = parts(p);
+            let first = expr(need(it.next(), sp)?)?;
+            let mut rest = Vec::new();
+            while let Some(op) = it.next() {
+                let op = if op.as_str() == "*" {
+                    MulOp::Mul
+                } else {
+                    MulOp::Div
+                };
+                rest.push((op, expr(need(it.next(), sp)?)?));
+            }
+            Ok(flat(first, rest, sp, ExprKind::Product))
+        }
+        Rule::power => {
+            let mut operands = parts(p).map(expr).collect::<Result<Vec<_>>>()?;
+            // right-associative: a ^ b ^ c = a ^ (b ^ c)
+            let mut acc = operands.pop().ok_or_else(|| internal(sp))?;
+            while let Some(base) = operands.pop() {
+                let s = base.span.to(acc.span);
+                acc = Expr {
+                    kind: ExprKind::Power(Box::new(base), Box::new(acc)),
+                    span: s,
+                };
+            }
+            Ok(acc)
+        }
+        Rule::unary | Rule::signed => {
+            let mut negs = 0usize;
+            let mut atom = None;
+            for q in parts(p) {
+                if q.as_rule() == Rule::neg {
+                    negs += 1;
+                } else {
+                    atom = Some(expr(q)?);
+                }
+            }
+            let mut e = atom.ok_or_else(|| internal(sp))?;
+            if negs % 2 == 1 {
+                e = Expr {
+                    kind: ExprKind::Neg(Box::new(e)),
+                    span: sp,
+                };
+            }
+            Ok(e)
+        }
+        Rule::paren => {
+            let inner = expr(need(parts(p).next(), sp)?)?;
+            Ok(Expr {
+                kind: inner.kind,
+                span: sp,
+            })
+        }
+        Rule::quantity => {
+            let mut it = parts(p);
+            let value = number(&need(it.next(), sp)?)?;
+            let unit = it.next().map(unit_expr).transpose()?;
+            Ok(Expr {
+                kind: ExprKind::Quantity { value, unit },
+                span: sp,
+            })
+        }
+        Rule::unit_atom => {
+            let u = unit_expr(need(parts(p).next(), sp)?)?;
+            Ok(Expr {
+                kind: ExprKind::Unit(u),
+                span: sp,
+            })
+        }
+        Rule::path => {
+            let mut it = parts(p);
+            let a = ident(&need(it.next(), sp)?);
+            let kind = match it.next() {
+                Some(f) => ExprKind::Field(a, ident(&f)),
+                None => ExprKind::Name(a),
+            };
+            Ok(Expr { kind, span: sp })
+        }
+        Rule::call => {
+            let mut it = parts(p);
+            let func = ident(&need(it.next(), sp)?);
+            let mut args = Vec::new();
+            for a in it {
+                let asp = span(&a);
+                let inner: Vec<_> = parts(a).collect();
+                let arg = match inner.as_slice() {
+                    [n, v] if n.as_rule() == Rule::name => Arg {
+                        name: Some(ident(n)),
+                        value: expr(v.clone())?,
+                        span: asp,
+                    },
+                    [v] => Arg {
+                        name: None,
+                        value: expr(v.clone())?,
+                        span: asp,
+                    },
+                    _ => return Err(internal(asp)),
+                };
+                args.push(arg);
+            }
+            Ok(Expr {
+                kind: ExprKind::Call { func, args },
+                span: sp,
+            })
+        }
+        _ => Err(internal(sp)),
+    }
+}
+
+fn flat<O>(
+    first: Expr,
+    rest: Vec<(O, Expr)>,
+    sp: Span,
+    make: fn(Box<Expr>, Vec<(O, Expr)>) -> ExprKind,
+) -> Expr {
+    if rest.is_empty() {
+        first
+    } else {
+        Expr {
+            kind: make(Box::new(first), rest),
+            span: sp,
+        }
+    }
+}

@@ -1,0 +1,42 @@
+//! Helpers shared by the integration tests.
+#![allow(dead_code)]
+
+use tandem::source::Source;
+use tandem::units::Quantity;
+
+/// A minimal assembly to append to `let` lines so that a file checks.
+pub const ASSEMBLY: &str = "
+material helper_steel { E = 29000 ksi }
+node helper_a at 0 ft
+node helper_b at 10 ft
+fix helper_a
+part helper_p {
+  material = helper_steel
+  area     = 1 in^2
+  ends     = helper_a, helper_b
+}
+";
+
+/// Check `text`, panicking with the rendered diagnostics on failure.
+pub fn model(text: &str) -> tandem::model::Model {
+    let src = Source::new("test.tandem", text);
+    match tandem::check(&src) {
+        Ok(m) => m,
+        Err(e) => panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)),
+    }
+}
+
+/// The value of `let name` in `lets` (plus a minimal assembly).
+pub fn value(lets: &str, name: &str) -> Quantity {
+    let m = model(&format!("{lets}\n{ASSEMBLY}"));
+    m.let_value(name).unwrap_or_else(|| panic!("no let {name}"))
+}
+
+/// Relative difference.
+pub fn rel(a: f64, b: f64) -> f64 {
+    if b == 0.0 {
+        a.abs()
+    } else {
+        ((a - b) / b).abs()
+    }
+}
