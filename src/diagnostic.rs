@@ -17,6 +17,9 @@ pub enum Error {
     #[error(transparent)]
     #[diagnostic(transparent)]
     Model(#[from] ModelError),
+    #[error(transparent)]
+    #[diagnostic(transparent)]
+    Solve(#[from] crate::solve::SolveError),
 }
 
 /// Render diagnostics against their source, without colour unless asked,

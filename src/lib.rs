@@ -10,6 +10,7 @@
 
 pub mod diagnostic;
 pub mod model;
+pub mod solve;
 pub mod source;
 pub mod syntax;
 pub mod units;

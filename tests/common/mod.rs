@@ -40,3 +40,43 @@ pub fn rel(a: f64, b: f64) -> f64 {
         ((a - b) / b).abs()
     }
 }
+
+/// Check and solve `text`.
+pub fn solve(text: &str) -> (tandem::model::Model, tandem::solve::Solution) {
+    let m = model(text);
+    let src = Source::new("test.tandem", text);
+    match tandem::solve::solve(&m) {
+        Ok(s) => (m, s),
+        Err(e) => panic!(
+            "{}",
+            tandem::diagnostic::render(&[tandem::Error::from(e)], &src, 100, false)
+        ),
+    }
+}
+
+/// Solve and return the solver's error.
+pub fn solve_err(text: &str) -> String {
+    let m = model(text);
+    let src = Source::new("test.tandem", text);
+    match tandem::solve::solve(&m) {
+        Ok(_) => panic!("expected a solver error"),
+        Err(e) => tandem::diagnostic::render(&[tandem::Error::from(e)], &src, 100, false),
+    }
+}
+
+/// Force in part `name` of combination `combo`, in newtons.
+pub fn force(
+    m: &tandem::model::Model,
+    s: &tandem::solve::Solution,
+    combo: &str,
+    name: &str,
+) -> f64 {
+    let c = s
+        .combinations
+        .iter()
+        .find(|c| c.name == combo)
+        .unwrap_or_else(|| panic!("combination {combo}"));
+    c.parts[m.part_index(name).unwrap_or_else(|| panic!("part {name}"))]
+        .force
+        .value
+}

@@ -1,0 +1,739 @@
+//! Direct stiffness solution of a [`Model`] in every load combination.
+//!
+//! Node displacements are expressed in the free unknowns (supports, ties and
+//! rigid bodies eliminated exactly, see `dofs`); each part adds k·g·gᵀ to a
+//! sparse matrix whose pattern and symbolic factorisation are built once per
+//! model. Parts that carry one sense only or have a gap are solved by an
+//! active-set iteration that refactorises only when the set of engaged parts
+//! changes. Results are checked afterwards against equilibrium computed
+//! from the part forces, loads and reactions alone.
+
+mod dofs;
+mod error;
+mod sparse;
+
+pub use error::SolveError;
+
+use std::collections::HashSet;
+use std::hash::{Hash, Hasher};
+
+use uom::si::f64::{Force, Length, Pressure};
+use uom::si::force::newton;
+use uom::si::length::meter;
+use uom::si::pressure::pascal;
+
+use crate::model::{Carries, Kind, Model};
+use dofs::{DofMap, Unknown};
+use sparse::{Failure, Pattern};
+
+/// Most active-set trials per combination before giving up.
+pub const MAX_TRIALS: usize = 200;
+
+/// Whether a part carries force in a combination.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum PartState {
+    Elastic,
+    Slack,
+}
+
+impl PartState {
+    #[must_use]
+    pub fn name(self) -> &'static str {
+        match self {
+            PartState::Elastic => "elastic",
+            PartState::Slack => "slack",
+        }
+    }
+}
+
+/// One part's results in one combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PartResult {
+    /// Axial force, tension positive.
+    pub force: Force,
+    /// Force over area (members only).
+    pub stress: Option<Pressure>,
+    /// Elongation over length (zero for zero-length springs).
+    pub strain: f64,
+    /// Change of length, from the node displacements.
+    pub elongation: Length,
+    /// Elongation the part would take free of force (misfit, temperature, free strain).
+    pub free_elongation: Length,
+    pub state: PartState,
+}
+
+/// One node's results in one combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct NodeResult {
+    /// `[x, y]`; axial models use `x`.
+    pub displacement: [Length; 2],
+    /// Support reaction, `[x, y]`; zero in free directions.
+    pub reaction: [Force; 2],
+}
+
+/// Results of one combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CombinationResult {
+    pub name: String,
+    pub parts: Vec<PartResult>,
+    pub nodes: Vec<NodeResult>,
+    /// Rotation of each rigid body (radians; zero in axial models).
+    pub rotations: Vec<f64>,
+    /// Largest out-of-balance force, from part forces, loads and reactions.
+    pub equilibrium_residual: Force,
+    /// Largest load, part force or reaction: the scale of the residual.
+    pub force_scale: Force,
+    /// Active-set trials used (1 for a linear model).
+    pub trials: usize,
+}
+
+/// Results of every combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Solution {
+    pub unknowns: usize,
+    pub combinations: Vec<CombinationResult>,
+    pub warnings: Vec<String>,
+}
+
+/// A part's contribution: elongation = `Σ g·q + c·(u0[b] − u0[a])`.
+struct Element {
+    g: Vec<(usize, f64)>,
+    /// Direction cosines per component.
+    dir: [f64; 2],
+    k: f64,
+    /// Positions in the value array of each (i ≤ j) pair of `g`, with gi·gj.
+    pos: Vec<(usize, f64)>,
+}
+
+/// How a nonlinear part is currently treated.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+enum Mode {
+    /// Engaged with no offset (linear parts).
+    Linear,
+    /// Engaged in tension past its gap.
+    Tension,
+    /// Engaged in compression past its gap.
+    Compression,
+    Slack,
+}
+
+fn elements(model: &Model, map: &DofMap) -> Vec<Element> {
+    let nd = map.ndof;
+    model
+        .parts
+        .iter()
+        .map(|p| {
+            let (a, b) = (&model.nodes[p.ends[0]], &model.nodes[p.ends[1]]);
+            let dir = match model.kind {
+                Kind::Axial => [1.0, 0.0],
+                Kind::Plane => {
+                    let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
+                    let l = dx.hypot(dy);
+                    [dx / l, dy / l]
+                }
+            };
+            let mut g: Vec<(usize, f64)> = Vec::with_capacity(4);
+            for (d, c) in dir.iter().enumerate().take(nd) {
+                for (i, v) in map.terms[p.ends[1] * nd + d].iter() {
+                    g.push((i, c * v));
+                }
+                for (i, v) in map.terms[p.ends[0] * nd + d].iter() {
+                    g.push((i, -c * v));
+                }
+            }
+            g.sort_by_key(|x| x.0);
+            let mut merged: Vec<(usize, f64)> = Vec::with_capacity(g.len());
+            for (i, v) in g {
+                match merged.last_mut() {
+                    Some(last) if last.0 == i => last.1 += v,
+                    _ => merged.push((i, v)),
+                }
+            }
+            merged.retain(|x| x.1 != 0.0);
+            Element {
+                g: merged,
+                dir,
+                k: p.stiffness(&model.materials).value,
+                pos: Vec::new(),
+            }
+        })
+        .collect()
+}
+
+fn state_hash(modes: &[Mode]) -> u64 {
+    let mut h = std::collections::hash_map::DefaultHasher::new();
+    modes.hash(&mut h);
+    h.finish()
+}
+
+/// The largest component of a free motion, in words.
+fn describe_unknown(
+    model: &Model,
+    map: &DofMap,
+    index: usize,
+) -> (String, crate::source::Span, String) {
+    let axis = |d: usize| match (model.kind, d) {
+        (Kind::Axial, _) => String::new(),
+        (Kind::Plane, 0) => " in x".into(),
+        (Kind::Plane, _) => " in y".into(),
+    };
+    let fix_dir = |d: usize| match (model.kind, d) {
+        (Kind::Axial, _) => String::new(),
+        (Kind::Plane, 0) => " x".into(),
+        (Kind::Plane, _) => " y".into(),
+    };
+    match &map.unknowns[index] {
+        Unknown::Node(i, d) => {
+            let n = &model.nodes[*i];
+            (
+                format!("node `{}`{}", n.name, axis(*d)),
+                n.span,
+                format!(
+                    "add a support (`fix {}{}`) or a part that holds node `{}`{}",
+                    n.name,
+                    fix_dir(*d),
+                    n.name,
+                    axis(*d)
+                ),
+            )
+        }
+        Unknown::Tie(i, d) => {
+            let n = &model.nodes[*i];
+            (
+                format!("the nodes tied to `{}`{}", n.name, axis(*d)),
+                n.span,
+                format!(
+                    "add a support or a part that holds the tied nodes{}",
+                    axis(*d)
+                ),
+            )
+        }
+        Unknown::Rigid(r, c) => {
+            let body = &model.rigids[*r];
+            let what = match c {
+                0 => "moving in x",
+                1 => "moving in y",
+                _ => "rotating",
+            };
+            (
+                format!("rigid body `{}` ({what})", body.name),
+                body.span,
+                format!(
+                    "support rigid body `{}` at another point, or add a part that holds it",
+                    body.name
+                ),
+            )
+        }
+    }
+}
+
+fn mechanism(model: &Model, map: &DofMap, index: usize, slack: &[usize]) -> SolveError {
+    let (what, span, help) = describe_unknown(model, map, index);
+    let when = if slack.is_empty() {
+        String::new()
+    } else {
+        let names: Vec<String> = slack
+            .iter()
+            .take(4)
+            .map(|&i| format!("`{}`", model.parts[i].name))
+            .collect();
+        let more = if slack.len() > 4 { ", ..." } else { "" };
+        format!(" once {}{more} go slack", names.join(", "))
+    };
+    SolveError::Mechanism {
+        what,
+        when,
+        span,
+        help: Some(help),
+    }
+}
+
+/// Solve every combination of a model.
+///
+/// # Errors
+/// Mechanisms (naming the node or body and direction), active sets that do
+/// not settle, conflicting support movements.
+#[allow(clippy::too_many_lines)]
+pub fn solve(model: &Model) -> Result<Solution, SolveError> {
+    let map = dofs::number(model)?;
+    let nd = map.ndof;
+    let nn = model.nodes.len();
+    let mut elems = elements(model, &map);
+    let mut keys = Vec::new();
+    for e in &elems {
+        for (a, &(i, _)) in e.g.iter().enumerate() {
+            for &(j, _) in &e.g[a..] {
+                keys.push(Pattern::key(i, j));
+            }
+        }
+    }
+    let numeric = |reason: String| SolveError::Numeric {
+        reason,
+        span: model.parts.first().map(|p| p.span).unwrap_or_default(),
+    };
+    let pattern = Pattern::new(map.n, keys).map_err(numeric)?;
+    for e in &mut elems {
+        let mut pos = Vec::with_capacity(e.g.len() * (e.g.len() + 1) / 2);
+        for (a, &(i, gi)) in e.g.iter().enumerate() {
+            for &(j, gj) in &e.g[a..] {
+                pos.push((pattern.position(i, j), gi * gj));
+            }
+        }
+        e.pos = pos;
+    }
+
+    let mut warnings = Vec::new();
+    let (kmin, kmax) = elems.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), e| {
+        (lo.min(e.k), hi.max(e.k))
+    });
+    if kmax > 1e12 * kmin {
+        warnings.push(format!(
+            "part stiffnesses differ by a factor of {:.1e}; results may lose precision",
+            kmax / kmin
+        ));
+    }
+
+    let linear_mode = |c: Carries, slack: f64| match (c, slack > 0.0) {
+        (Carries::Both, false) => Mode::Linear,
+        (Carries::Tension, _) => Mode::Tension,
+        (Carries::Compression, _) => Mode::Compression,
+        (Carries::Both, true) => Mode::Slack,
+    };
+    let initial: Vec<Mode> = model
+        .parts
+        .iter()
+        .map(|p| linear_mode(p.carries, p.slack.value))
+        .collect();
+    let nonlinear: Vec<usize> = (0..model.parts.len())
+        .filter(|&i| initial[i] != Mode::Linear)
+        .collect();
+
+    let mut cache: Option<(u64, sparse::Factor<'_>)> = None;
+    let mut combinations = Vec::new();
+    for combo in &model.combinations {
+        // Prescribed movements, loads, free elongations.
+        let mut u0 = vec![0.0; nn * nd];
+        let mut loads = vec![0.0; nn * nd];
+        let mut free = vec![0.0; model.parts.len()];
+        for (i, p) in model.parts.iter().enumerate() {
+            free[i] = p.misfit.value;
+        }
+        let mut moved: std::collections::HashMap<(usize, usize), f64> =
+            std::collections::HashMap::new();
+        for &(ci, factor) in &combo.terms {
+            let case = &model.cases[ci];
+            for s in &case.settlements {
+                *moved.entry((s.node, s.direction)).or_default() += factor * s.movement.value;
+            }
+            for l in &case.loads {
+                for d in 0..nd {
+                    loads[l.node * nd + d] += factor * l.force[d].value;
+                }
+            }
+            let global = case.temperatures.iter().find(|t| t.part.is_none());
+            for (i, p) in model.parts.iter().enumerate() {
+                let Some(m) = p.material() else { continue };
+                let own = case.temperatures.iter().find(|t| t.part == Some(i));
+                if let Some(t) = own.or(global) {
+                    if let Some(alpha) = model.materials[m].alpha {
+                        free[i] += factor * alpha.value * t.change.value * p.length.value;
+                    }
+                }
+            }
+            for s in &case.strains {
+                free[s.part] += factor * s.strain.value * model.parts[s.part].length.value;
+            }
+        }
+        for (&(node, d), &v) in &moved {
+            if map.node_body[node].is_none() {
+                u0[node * nd + d] = v;
+            }
+        }
+        for body in &map.bodies {
+            if body.constraints.is_empty() {
+                continue;
+            }
+            let mv: Vec<f64> = body
+                .constraints
+                .iter()
+                .map(|(n, d, _)| moved.get(&(*n, *d)).copied().unwrap_or(0.0))
+                .collect();
+            if mv.iter().all(|v| *v == 0.0) {
+                continue;
+            }
+            let q = body.particular(&mv).map_err(|k| {
+                let (n, _, _) = body.constraints[k];
+                SolveError::SettlementConflict {
+                    body: match body.rigid {
+                        Some(r) => format!("rigid body `{}`", model.rigids[r].name),
+                        None => format!("the nodes tied to `{}`", model.nodes[n].name),
+                    },
+                    combination: combo.name.clone(),
+                    span: model.nodes[n].span,
+                }
+            })?;
+            for &(m, px, py) in &body.members {
+                for d in 0..nd {
+                    let row = body.kin(d, px, py);
+                    u0[m * nd + d] = row.iter().zip(q).map(|(a, b)| a * b).sum();
+                }
+            }
+        }
+        let e0: Vec<f64> = model
+            .parts
+            .iter()
+            .zip(&elems)
+            .map(|(p, e)| {
+                (0..nd)
+                    .map(|d| e.dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
+                    .sum()
+            })
+            .collect();
+        let mut f_loads = vec![0.0; map.n];
+        for (c, &f) in loads.iter().enumerate() {
+            if f != 0.0 {
+                for (i, v) in map.terms[c].iter() {
+                    f_loads[i] += v * f;
+                }
+            }
+        }
+
+        // Active-set iteration.
+        let mut modes = initial.clone();
+        let mut seen: HashSet<u64> = HashSet::new();
+        let mut trials = 0;
+        let (q, elong) = loop {
+            trials += 1;
+            let key = state_hash(&modes);
+            if !seen.insert(key) {
+                let flipping: Vec<String> = nonlinear
+                    .iter()
+                    .take(4)
+                    .map(|&i| format!("`{}`", model.parts[i].name))
+                    .collect();
+                return Err(SolveError::Cycling {
+                    combination: combo.name.clone(),
+                    parts: flipping.join(", "),
+                    span: combo.span,
+                });
+            }
+            if trials > MAX_TRIALS {
+                return Err(SolveError::TooManyTrials {
+                    combination: combo.name.clone(),
+                    limit: MAX_TRIALS,
+                    span: combo.span,
+                });
+            }
+            let slack_parts: Vec<usize> = nonlinear
+                .iter()
+                .copied()
+                .filter(|&i| modes[i] == Mode::Slack)
+                .collect();
+            if cache.as_ref().is_none_or(|(k, _)| *k != key) {
+                let mut values = vec![0.0; pattern.nnz()];
+                for (e, m) in elems.iter().zip(&modes) {
+                    if *m != Mode::Slack {
+                        for &(p, c) in &e.pos {
+                            values[p] += e.k * c;
+                        }
+                    }
+                }
+                match pattern.factor(&values) {
+                    Ok(f) => cache = Some((key, f)),
+                    Err(Failure::Unsupported(j)) => {
+                        return Err(mechanism(model, &map, j, &slack_parts))
+                    }
+                    Err(Failure::Mechanism(mode)) => {
+                        let j = dominant(model, &map, &mode);
+                        return Err(mechanism(model, &map, j, &slack_parts));
+                    }
+                    Err(Failure::Other(reason)) => return Err(numeric(reason)),
+                }
+            }
+            let mut rhs = f_loads.clone();
+            for (i, (e, m)) in elems.iter().zip(&modes).enumerate() {
+                let offset = match m {
+                    Mode::Slack => continue,
+                    Mode::Linear => 0.0,
+                    Mode::Tension => model.parts[i].slack.value,
+                    Mode::Compression => -model.parts[i].slack.value,
+                };
+                let target = free[i] + offset - e0[i];
+                if target != 0.0 {
+                    for &(j, g) in &e.g {
+                        rhs[j] += e.k * target * g;
+                    }
+                }
+            }
+            if let Some((_, f)) = &cache {
+                f.solve(&mut rhs);
+            }
+            let q = rhs;
+            let elong: Vec<f64> = elems
+                .iter()
+                .zip(&e0)
+                .map(|(e, base)| base + e.g.iter().map(|&(j, g)| g * q[j]).sum::<f64>())
+                .collect();
+            let mut changed = false;
+            for &i in &nonlinear {
+                let p = &model.parts[i];
+                let delta = elong[i] - free[i];
+                let s = p.slack.value;
+                let want = match p.carries {
+                    Carries::Tension => {
+                        if delta > s {
+                            Mode::Tension
+                        } else {
+                            Mode::Slack
+                        }
+                    }
+                    Carries::Compression => {
+                        if delta < -s {
+                            Mode::Compression
+                        } else {
+                            Mode::Slack
+                        }
+                    }
+                    Carries::Both => {
+                        if delta > s {
+                            Mode::Tension
+                        } else if delta < -s {
+                            Mode::Compression
+                        } else {
+                            Mode::Slack
+                        }
+                    }
+                };
+                if want != modes[i] {
+                    modes[i] = want;
+                    changed = true;
+                }
+            }
+            if !changed {
+                break (q, elong);
+            }
+        };
+
+        combinations.push(results(
+            model,
+            &map,
+            &elems,
+            combo.name.clone(),
+            &ResultInputs {
+                q: &q,
+                u0: &u0,
+                loads: &loads,
+                elong: &elong,
+                free: &free,
+                modes: &modes,
+                trials,
+            },
+        ));
+    }
+    Ok(Solution {
+        unknowns: map.n,
+        combinations,
+        warnings,
+    })
+}
+
+/// The unknown that moves most in a free motion (rotations weighed by the
+/// size of their body).
+fn dominant(model: &Model, map: &DofMap, mode: &[f64]) -> usize {
+    let mut best = (0.0, 0usize);
+    for (i, v) in mode.iter().enumerate() {
+        let w = match &map.unknowns[i] {
+            Unknown::Rigid(r, 2) => {
+                let nodes = &model.rigids[*r].nodes;
+                let x0 = model.nodes[nodes[0]].x.value;
+                let y0 = model.nodes[nodes[0]].y.value;
+                nodes
+                    .iter()
+                    .map(|&n| (model.nodes[n].x.value - x0).hypot(model.nodes[n].y.value - y0))
+                    .fold(0.0, f64::max)
+            }
+            _ => 1.0,
+        };
+        let a = v.abs() * w;
+        if a > best.0 {
+            best = (a, i);
+        }
+    }
+    best.1
+}
+
+struct ResultInputs<'a> {
+    q: &'a [f64],
+    u0: &'a [f64],
+    loads: &'a [f64],
+    elong: &'a [f64],
+    free: &'a [f64],
+    modes: &'a [Mode],
+    trials: usize,
+}
+
+fn results(
+    model: &Model,
+    map: &DofMap,
+    elems: &[Element],
+    name: String,
+    r: &ResultInputs<'_>,
+) -> CombinationResult {
+    let nd = map.ndof;
+    let nn = model.nodes.len();
+    let mut u = r.u0.to_vec();
+    for (c, t) in map.terms.iter().enumerate() {
+        for (i, v) in t.iter() {
+            u[c] += v * r.q[i];
+        }
+    }
+    let mut parts = Vec::with_capacity(model.parts.len());
+    // Net force on each node component from parts and loads.
+    let mut net = r.loads.to_vec();
+    let mut scale = r.loads.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+    for (i, p) in model.parts.iter().enumerate() {
+        let e = &elems[i];
+        let delta = r.elong[i] - r.free[i];
+        let (force, state) = match r.modes[i] {
+            Mode::Slack => (0.0, PartState::Slack),
+            Mode::Linear => (e.k * delta, PartState::Elastic),
+            Mode::Tension => (e.k * (delta - p.slack.value), PartState::Elastic),
+            Mode::Compression => (e.k * (delta + p.slack.value), PartState::Elastic),
+        };
+        scale = scale.max(force.abs());
+        for d in 0..nd {
+            net[p.ends[0] * nd + d] += force * e.dir[d];
+            net[p.ends[1] * nd + d] -= force * e.dir[d];
+        }
+        let len = p.length.value;
+        parts.push(PartResult {
+            force: Force::new::<newton>(force),
+            stress: p.area().map(|a| Pressure::new::<pascal>(force / a.value)),
+            strain: if len > 0.0 { r.elong[i] / len } else { 0.0 },
+            elongation: Length::new::<meter>(r.elong[i]),
+            free_elongation: Length::new::<meter>(r.free[i]),
+            state,
+        });
+    }
+    // Reactions: plain supported components take their own imbalance; a body
+    // shares its imbalance among its independent supports.
+    let mut reaction = vec![0.0; nn * nd];
+    for i in 0..nn {
+        if map.node_body[i].is_some() {
+            continue;
+        }
+        for d in 0..nd {
+            if model.nodes[i].fixed[d] {
+                reaction[i * nd + d] = -net[i * nd + d];
+            }
+        }
+    }
+    for body in &map.bodies {
+        if body.pivot_rows.is_empty() {
+            continue;
+        }
+        let mut rq = [0.0; 3];
+        for &(m, px, py) in &body.members {
+            for d in 0..nd {
+                let row = body.kin(d, px, py);
+                for c in 0..body.coords {
+                    rq[c] += row[c] * net[m * nd + d];
+                }
+            }
+        }
+        let k = body.pivot_rows.len();
+        for a in 0..k {
+            // λ = −inv^T · rq[pivot cols]
+            let mut lam = 0.0;
+            for b in 0..k {
+                lam -= body.inv[b][a] * rq[body.pivot_cols[b]];
+            }
+            let (n, d, _) = body.constraints[body.pivot_rows[a]];
+            reaction[n * nd + d] += lam;
+        }
+    }
+    // Independent equilibrium check: free plain components must balance;
+    // loads and reactions must balance as a whole, in force and moment.
+    let mut residual = 0.0f64;
+    for i in 0..nn {
+        if map.node_body[i].is_some() {
+            continue;
+        }
+        for d in 0..nd {
+            if !model.nodes[i].fixed[d] {
+                residual = residual.max(net[i * nd + d].abs());
+            }
+        }
+    }
+    let mut sum = [0.0; 2];
+    let mut moment = 0.0;
+    let mut extent = 0.0f64;
+    for i in 0..nn {
+        let (x, y) = (model.nodes[i].x.value, model.nodes[i].y.value);
+        extent = extent.max(x.abs()).max(y.abs());
+        for d in 0..nd {
+            let f = r.loads[i * nd + d] + reaction[i * nd + d];
+            sum[d] += f;
+            scale = scale.max(reaction[i * nd + d].abs());
+        }
+        if nd == 2 {
+            moment += x * (r.loads[i * 2 + 1] + reaction[i * 2 + 1])
+                - y * (r.loads[i * 2] + reaction[i * 2]);
+        }
+    }
+    residual = residual.max(sum[0].abs()).max(sum[1].abs());
+    if extent > 0.0 {
+        residual = residual.max(moment.abs() / extent);
+    }
+    let nodes = (0..nn)
+        .map(|i| NodeResult {
+            displacement: [
+                Length::new::<meter>(u[i * nd]),
+                Length::new::<meter>(if nd == 2 { u[i * nd + 1] } else { 0.0 }),
+            ],
+            reaction: [
+                Force::new::<newton>(reaction[i * nd]),
+                Force::new::<newton>(if nd == 2 { reaction[i * nd + 1] } else { 0.0 }),
+            ],
+        })
+        .collect();
+    let rotations = model
+        .rigids
+        .iter()
+        .enumerate()
+        .map(|(ri, rb)| {
+            if model.kind == Kind::Axial {
+                return 0.0;
+            }
+            // rotation from two nodes of the body: (u_y difference, x difference)
+            let a = rb.nodes[0];
+            let _ = ri;
+            rb.nodes
+                .iter()
+                .skip(1)
+                .map(|&b| {
+                    let (dx, dy) = (
+                        model.nodes[b].x.value - model.nodes[a].x.value,
+                        model.nodes[b].y.value - model.nodes[a].y.value,
+                    );
+                    let l2 = dx * dx + dy * dy;
+                    if l2 == 0.0 {
+                        return 0.0;
+                    }
+                    // θ = (r × Δu) / |r|²
+                    (dx * (u[b * 2 + 1] - u[a * 2 + 1]) - dy * (u[b * 2] - u[a * 2])) / l2
+                })
+                .find(|t| *t != 0.0)
+                .unwrap_or(0.0)
+        })
+        .collect();
+    CombinationResult {
+        name,
+        parts,
+        nodes,
+        rotations,
+        equilibrium_residual: Force::new::<newton>(residual),
+        force_scale: Force::new::<newton>(scale),
+        trials: r.trials,
+    }
+}

@@ -1,0 +1,254 @@
+//! The sparse stiffness system: a fixed pattern, numeric assembly into it,
+//! symmetric diagonal scaling and a supernodal Cholesky factorisation (faer)
+//! whose symbolic part is computed once per model.
+//!
+//! A pivot that falls below a small fraction of its diagonal means the
+//! assembly can move without straining any part (a mechanism). The
+//! factorisation then regularises that pivot, and one solve with a generic
+//! right-hand side shows the free motion, from which the caller names the
+//! node and direction.
+
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::cholesky::llt::factor::LltRegularization;
+use faer::sparse::linalg::cholesky::LltRef;
+use faer::sparse::linalg::cholesky::{
+    factorize_symbolic_cholesky, CholeskySymbolicParams, SymbolicCholesky, SymmetricOrdering,
+};
+use faer::sparse::{SparseColMatRef, SymbolicSparseColMat, SymbolicSparseColMatRef};
+use faer::{Conj, MatMut, Par, Side, Spec};
+
+/// Pivots below this fraction of their (unit, after scaling) diagonal mark a mechanism.
+const PIVOT_FLOOR: f64 = 1e-13;
+/// The value a regularised pivot is given: far below any sound pivot.
+const REGULARISED: f64 = 1e-15;
+
+/// The upper-triangle pattern of the stiffness matrix.
+pub(crate) struct Pattern {
+    pub n: usize,
+    col_ptr: Vec<usize>,
+    row_idx: Vec<usize>,
+    diag: Vec<usize>,
+    symbolic: SymbolicCholesky<usize>,
+}
+
+/// Why a factorisation failed.
+pub(crate) enum Failure {
+    /// Unknown `index` has no stiffness at all.
+    Unsupported(usize),
+    /// The free motion of a mechanism, per unknown (physical, unnormalised).
+    Mechanism(Vec<f64>),
+    Other(String),
+}
+
+impl Pattern {
+    /// Build the pattern from the (row, col) pairs each element touches.
+    /// `pairs` yields unknown-index pairs; the diagonal is always present.
+    pub fn new(n: usize, mut keys: Vec<u64>) -> Result<Self, String> {
+        for i in 0..n as u64 {
+            keys.push((i << 32) | i);
+        }
+        keys.sort_unstable();
+        keys.dedup();
+        let mut col_ptr = vec![0usize; n + 1];
+        let mut row_idx = Vec::with_capacity(keys.len());
+        for k in &keys {
+            let col = (k >> 32) as usize;
+            col_ptr[col + 1] += 1;
+            row_idx.push((k & 0xFFFF_FFFF) as usize);
+        }
+        for j in 0..n {
+            col_ptr[j + 1] += col_ptr[j];
+        }
+        let mut diag = vec![0usize; n];
+        for (j, d) in diag.iter_mut().enumerate() {
+            // rows within a column are sorted; the diagonal is the last of the upper part
+            *d = col_ptr[j + 1] - 1;
+        }
+        let sym = SymbolicSparseColMatRef::new_checked(n, n, &col_ptr, None, &row_idx);
+        let symbolic = factorize_symbolic_cholesky(
+            sym,
+            Side::Upper,
+            SymmetricOrdering::Amd,
+            CholeskySymbolicParams::default(),
+        )
+        .map_err(|e| format!("{e:?}"))?;
+        Ok(Self {
+            n,
+            col_ptr,
+            row_idx,
+            diag,
+            symbolic,
+        })
+    }
+
+    /// Key for an upper-triangle entry (row ≤ col).
+    pub fn key(a: usize, b: usize) -> u64 {
+        let (r, c) = if a <= b { (a, b) } else { (b, a) };
+        ((c as u64) << 32) | r as u64
+    }
+
+    /// Position of entry (a, b) in the value array.
+    pub fn position(&self, a: usize, b: usize) -> usize {
+        let (r, c) = if a <= b { (a, b) } else { (b, a) };
+        let start = self.col_ptr[c];
+        let rows = &self.row_idx[start..self.col_ptr[c + 1]];
+        start + rows.partition_point(|&x| x < r)
+    }
+
+    pub fn nnz(&self) -> usize {
+        self.row_idx.len()
+    }
+
+    /// Factorise the matrix with these values.
+    pub fn factor(&self, values: &[f64]) -> Result<Factor<'_>, Failure> {
+        let n = self.n;
+        let mut scale = vec![0.0; n];
+        for (j, s) in scale.iter_mut().enumerate() {
+            let d = values[self.diag[j]];
+            if d.is_nan() || d <= 0.0 || !d.is_finite() {
+                return Err(Failure::Unsupported(j));
+            }
+            *s = 1.0 / d.sqrt();
+        }
+        let mut scaled = values.to_vec();
+        for j in 0..n {
+            for p in self.col_ptr[j]..self.col_ptr[j + 1] {
+                scaled[p] *= scale[self.row_idx[p]] * scale[j];
+            }
+        }
+        let mut l = vec![0.0; self.symbolic.len_val()];
+        let par = Par::Seq;
+        let mut mem = MemBuffer::new(
+            self.symbolic
+                .factorize_numeric_llt_scratch::<f64>(par, Spec::default()),
+        );
+        let sym = SymbolicSparseColMatRef::new_checked(n, n, &self.col_ptr, None, &self.row_idx);
+        let a = SparseColMatRef::new(sym, &scaled);
+        let info = self
+            .symbolic
+            .factorize_numeric_llt(
+                &mut l,
+                a,
+                Side::Upper,
+                LltRegularization {
+                    dynamic_regularization_delta: REGULARISED,
+                    dynamic_regularization_epsilon: PIVOT_FLOOR,
+                },
+                par,
+                MemStack::new(&mut mem),
+                Spec::default(),
+            )
+            .map(|_| ());
+        if let Err(e) = info {
+            return Err(Failure::Other(format!("{e:?}")));
+        }
+        // faer does not hand back the count of regularised pivots, so the
+        // factor's diagonal is read instead (a regularised pivot is exactly
+        // the tiny value given above).
+        let factor = Factor {
+            pattern: self,
+            l,
+            scale,
+        };
+        if let Some(mode) = factor.mechanism_mode(values) {
+            return Err(Failure::Mechanism(mode));
+        }
+        Ok(factor)
+    }
+}
+
+/// A numeric factorisation ready to solve.
+pub(crate) struct Factor<'p> {
+    pattern: &'p Pattern,
+    l: Vec<f64>,
+    scale: Vec<f64>,
+}
+
+impl Factor<'_> {
+    /// Solve K x = b in place.
+    pub fn solve(&self, b: &mut [f64]) {
+        let n = self.pattern.n;
+        for (x, s) in b.iter_mut().zip(&self.scale) {
+            *x *= s;
+        }
+        let llt = LltRef::new(&self.pattern.symbolic, &self.l);
+        let par = Par::Seq;
+        let mut mem = MemBuffer::new(self.pattern.symbolic.solve_in_place_scratch::<f64>(1, par));
+        let rhs = MatMut::from_column_major_slice_mut(b, n, 1);
+        llt.solve_in_place_with_conj(Conj::No, rhs, par, MemStack::new(&mut mem));
+        for (x, s) in b.iter_mut().zip(&self.scale) {
+            *x *= s;
+        }
+    }
+
+    /// The diagonal of L, in the factor's (permuted) order.
+    fn l_diagonal(&self) -> Vec<f64> {
+        use faer::sparse::linalg::cholesky::SymbolicCholeskyRaw;
+        let sym = &self.pattern.symbolic;
+        match sym.raw() {
+            SymbolicCholeskyRaw::Simplicial(s) => {
+                let cp = s.col_ptr();
+                (0..s.nrows()).map(|j| self.l[cp[j]]).collect()
+            }
+            SymbolicCholeskyRaw::Supernodal(s) => {
+                let mut d = Vec::with_capacity(s.nrows());
+                let begin = s.supernode_begin();
+                let end = s.supernode_end();
+                let vp = s.col_ptr_for_val();
+                for k in 0..s.n_supernodes() {
+                    let ncols = end[k] - begin[k];
+                    let len = vp[k + 1] - vp[k];
+                    let nrows = len / ncols.max(1);
+                    for c in 0..ncols {
+                        d.push(self.l[vp[k] + c * nrows + c]);
+                    }
+                }
+                d
+            }
+        }
+    }
+
+    /// When a pivot was regularised, the free motion it stands for: one
+    /// solve with a generic right-hand side, dominated by that motion.
+    fn mechanism_mode(&self, _values: &[f64]) -> Option<Vec<f64>> {
+        let n = self.pattern.n;
+        let diag = self.l_diagonal();
+        let regularised = diag.iter().any(|d| d * d <= 2.0 * REGULARISED);
+        if !regularised {
+            return None;
+        }
+        // Deterministic pseudo-random right-hand side in scaled coordinates.
+        let mut seed: u64 = 0x2545_F491_4F6C_DD1D;
+        let mut y: Vec<f64> = (0..n)
+            .map(|_| {
+                seed ^= seed << 13;
+                seed ^= seed >> 7;
+                seed ^= seed << 17;
+                ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
+            })
+            .collect();
+        let llt = LltRef::new(&self.pattern.symbolic, &self.l);
+        let par = Par::Seq;
+        let mut mem = MemBuffer::new(self.pattern.symbolic.solve_in_place_scratch::<f64>(1, par));
+        llt.solve_in_place_with_conj(
+            Conj::No,
+            MatMut::from_column_major_slice_mut(&mut y, n, 1),
+            par,
+            MemStack::new(&mut mem),
+        );
+        Some(y.iter().zip(&self.scale).map(|(v, s)| v * s).collect())
+    }
+}
+
+/// Build the symbolic pattern of an n×n matrix from its column structure,
+/// for tests of the pattern itself.
+#[allow(dead_code)]
+pub(crate) fn symbolic_of(pattern: &Pattern) -> SymbolicSparseColMat<usize> {
+    SymbolicSparseColMat::new_checked(
+        pattern.n,
+        pattern.n,
+        pattern.col_ptr.clone(),
+        None,
+        pattern.row_idx.clone(),
+    )
+}
