@@ -2,7 +2,7 @@
 
 use std::path::PathBuf;
 
-use clap::{Parser, Subcommand};
+use clap::{Args, Parser, Subcommand};
 
 /// Load sharing in statically indeterminate assemblies: write the assembly as
 /// a unit-carrying calc file, and tandem checks it, solves it and writes a
@@ -17,6 +17,19 @@ pub struct Cli {
     pub command: Command,
 }
 
+/// How results are shown.
+#[derive(Debug, Args)]
+pub struct Show {
+    /// Units to show results in: `us`, `si`, or a list such as `kip,in,ksi`
+    /// (one per dimension). Default: the file's `units` line, else the units
+    /// the file writes most.
+    #[arg(long, value_name = "UNITS")]
+    pub units: Option<String>,
+    /// Significant figures in printed values.
+    #[arg(long, default_value_t = 4, value_parser = clap::value_parser!(u8).range(2..=10))]
+    pub digits: u8,
+}
+
 #[derive(Debug, Subcommand)]
 pub enum Command {
     /// Check calc files: syntax, names and units, without solving.
@@ -27,6 +40,20 @@ pub enum Command {
         /// Calc files (`.tandem`).
         #[arg(required = true)]
         files: Vec<PathBuf>,
+    },
+    /// Solve a calc file: part forces, stresses, displacements and reactions
+    /// in every load combination, and the design checks.
+    ///
+    /// Exit code 0 when every check passes, 1 when a check fails, 2 when the
+    /// file has an error or the assembly cannot stand (a mechanism).
+    Solve {
+        /// The calc file.
+        file: PathBuf,
+        /// Write machine-readable JSON (SI units) instead of tables.
+        #[arg(long)]
+        json: bool,
+        #[command(flatten)]
+        show: Show,
     },
     /// List every unit tandem knows, with its dimension and factor to SI.
     Units,

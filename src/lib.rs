@@ -8,8 +8,10 @@
 //! every stage are `miette` diagnostics that point at the offending span
 //! ([`diagnostic`]).
 
+pub mod checks;
 pub mod diagnostic;
 pub mod model;
+pub mod report;
 pub mod solve;
 pub mod source;
 pub mod syntax;
@@ -59,4 +61,51 @@ pub fn check(source: &Source) -> Result<Model, Vec<Error>> {
         .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
     model::build(&file, model::Limits::default())
         .map_err(|es| es.into_iter().map(Error::from).collect())
+}
+
+/// A checked, solved and verified calc.
+pub struct Analysis {
+    pub model: Model,
+    pub solution: solve::Solution,
+    pub checks: checks::Checks,
+}
+
+/// Check, solve and evaluate the checks of a calc file.
+///
+/// # Errors
+/// Every error of the first stage that fails.
+pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
+    let model = check(source)?;
+    let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
+    let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
+    Ok(Analysis {
+        model,
+        solution,
+        checks,
+    })
+}
+
+/// Parse a display-unit choice as the `--units` flag takes it: `us`, `si`,
+/// or a comma-separated list such as `kip,in,ksi`.
+///
+/// # Errors
+/// A message naming what is not a unit.
+pub fn parse_units(text: &str) -> Result<model::UnitChoice, String> {
+    match text.trim() {
+        "us" => return Ok(model::UnitChoice::Us),
+        "si" => return Ok(model::UnitChoice::Si),
+        _ => {}
+    }
+    let file = syntax::parse(&format!("units {text}")).map_err(|_| {
+        format!("`{text}` is not `us`, `si` or a list of units such as `kip,in,ksi`")
+    })?;
+    let Some(syntax::ast::Decl::Units(syntax::ast::Units::List(list))) = file.decls.first() else {
+        return Err(format!("`{text}` is not a list of units"));
+    };
+    let mut out = Vec::new();
+    for (u, name) in list.iter().zip(text.split(',')) {
+        let q = model::eval::unit_value(u).map_err(|e| e.to_string())?;
+        out.push((name.trim().to_string(), q));
+    }
+    Ok(model::UnitChoice::List(out))
 }

@@ -338,6 +338,16 @@ pub(crate) fn did_you_mean<'a>(
     best.map(|(_, c)| format!("did you mean `{c}`?"))
 }
 
+/// `2 parts, 1 node, ...`
+#[must_use]
+pub fn counts(items: &[(usize, &str)]) -> String {
+    items
+        .iter()
+        .map(|(n, w)| plural(*n, w))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
 fn plural(n: usize, word: &str) -> String {
     if n == 1 {
         format!("{n} {word}")

@@ -682,6 +682,12 @@ fn results(
         }
     }
     residual = residual.max(sum[0].abs()).max(sum[1].abs());
+    // Reactions at round-off level of the largest force read as zero.
+    for v in &mut reaction {
+        if v.abs() < 1e-12 * scale {
+            *v = 0.0;
+        }
+    }
     if extent > 0.0 {
         residual = residual.max(moment.abs() / extent);
     }

@@ -1,0 +1,238 @@
+//! Design checks evaluated on solved results: every `check` line and the
+//! automatic material checks (`allowable*`), in every combination, plus
+//! flags where a part passes its material's yield strength.
+
+use crate::model::eval::{constant, eval, Scope};
+use crate::model::{Kind, Model, ModelError};
+use crate::solve::{CombinationResult, Solution};
+use crate::syntax::ast::{Compare, Ident};
+use crate::units::{Dimension, Quantity};
+
+/// Where a check comes from.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Origin {
+    /// The index of a `check` line.
+    Line(usize),
+    /// A material allowable on a part (part index).
+    Allowable(usize),
+}
+
+/// One check in one combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Outcome {
+    pub label: String,
+    pub origin: Origin,
+    pub combination: usize,
+    pub demand: Quantity,
+    pub capacity: Quantity,
+    pub op: Compare,
+    /// Demand over capacity; `None` when the capacity is not positive.
+    pub utilization: Option<f64>,
+    pub pass: bool,
+}
+
+/// All outcomes, grouped by check in file order, combinations in order.
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct Checks {
+    pub outcomes: Vec<Outcome>,
+    /// Parts stressed past yield: (combination, part, |σ| / yield).
+    pub yielded: Vec<(usize, usize, f64)>,
+}
+
+impl Checks {
+    /// Each check's governing outcome (highest utilization, failures first).
+    pub fn governing(&self) -> Vec<&Outcome> {
+        let mut out: Vec<&Outcome> = Vec::new();
+        for o in &self.outcomes {
+            match out.iter_mut().find(|g| g.label == o.label && g.origin == o.origin) {
+                Some(g) => {
+                    if rank(o) > rank(g) {
+                        *g = o;
+                    }
+                }
+                None => out.push(o),
+            }
+        }
+        out
+    }
+
+    /// Checks that fail in some combination.
+    pub fn failures(&self) -> usize {
+        self.governing().iter().filter(|o| !o.pass).count()
+    }
+
+    /// The outcome with the highest utilization overall.
+    pub fn highest(&self) -> Option<&Outcome> {
+        self.outcomes
+            .iter()
+            .fold(None, |best: Option<&Outcome>, o| match best {
+                Some(b) if rank(b) >= rank(o) => Some(b),
+                _ => Some(o),
+            })
+    }
+}
+
+fn rank(o: &Outcome) -> (bool, f64) {
+    (!o.pass, o.utilization.unwrap_or(f64::INFINITY))
+}
+
+/// Looks up results of one combination while evaluating a check.
+pub struct ResultScope<'a> {
+    pub model: &'a Model,
+    pub result: &'a CombinationResult,
+}
+
+impl Scope for ResultScope<'_> {
+    fn name(&self, id: &Ident) -> Result<Quantity, ModelError> {
+        if let Some(v) = constant(&id.name) {
+            return Ok(Quantity::number(v));
+        }
+        self.model
+            .let_value(&id.name)
+            .ok_or_else(ModelError::poisoned)
+    }
+
+    fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
+        let m = self.model;
+        if let Some(i) = m.part_index(&object.name) {
+            let p = &self.result.parts[i];
+            return Ok(match field.name.as_str() {
+                "force" => Quantity::new(p.force.value, Dimension::FORCE),
+                "stress" => Quantity::new(
+                    p.stress.map_or(0.0, |s| s.value),
+                    Dimension::PRESSURE,
+                ),
+                "strain" => Quantity::number(p.strain),
+                _ => Quantity::new(p.elongation.value, Dimension::LENGTH),
+            });
+        }
+        if let Some(i) = m.node_index(&object.name) {
+            let n = &self.result.nodes[i];
+            return Ok(match (m.kind, field.name.as_str()) {
+                (Kind::Axial, "displacement") | (Kind::Plane, "dx") => {
+                    Quantity::new(n.displacement[0].value, Dimension::LENGTH)
+                }
+                (Kind::Plane, "dy") => Quantity::new(n.displacement[1].value, Dimension::LENGTH),
+                (Kind::Plane, "ry") => Quantity::new(n.reaction[1].value, Dimension::FORCE),
+                _ => Quantity::new(n.reaction[0].value, Dimension::FORCE),
+            });
+        }
+        Err(ModelError::poisoned())
+    }
+}
+
+fn outcome(
+    label: String,
+    origin: Origin,
+    combination: usize,
+    lhs: Quantity,
+    op: Compare,
+    rhs: Quantity,
+) -> Outcome {
+    let pass = match op {
+        Compare::Le => lhs.value <= rhs.value,
+        Compare::Lt => lhs.value < rhs.value,
+        Compare::Ge => lhs.value >= rhs.value,
+        Compare::Gt => lhs.value > rhs.value,
+    };
+    // For `a <= b` the demand is a and the capacity b; for `a >= b` the
+    // requirement reads "a must reach b", so b is the demand.
+    let (demand, capacity) = match op {
+        Compare::Le | Compare::Lt => (lhs, rhs),
+        Compare::Ge | Compare::Gt => (rhs, lhs),
+    };
+    let utilization = if capacity.value > 0.0 {
+        Some(demand.value / capacity.value)
+    } else if capacity.value == 0.0 && demand.value <= 0.0 {
+        Some(0.0)
+    } else {
+        None
+    };
+    Outcome {
+        label,
+        origin,
+        combination,
+        demand,
+        capacity,
+        op,
+        utilization,
+        pass,
+    }
+}
+
+/// Evaluate every check in every combination.
+///
+/// # Errors
+/// A check that cannot be evaluated (e.g. a division by a zero result).
+pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError> {
+    let mut out = Checks::default();
+    for (ci, check) in model.checks.iter().enumerate() {
+        for (k, result) in solution.combinations.iter().enumerate() {
+            let scope = ResultScope { model, result };
+            let l = eval(&check.lhs, &scope)?;
+            let r = eval(&check.rhs, &scope)?;
+            out.outcomes.push(outcome(
+                check.label.clone(),
+                Origin::Line(ci),
+                k,
+                l,
+                check.op,
+                r,
+            ));
+        }
+    }
+    for (pi, part) in model.parts.iter().enumerate() {
+        let Some(mi) = part.material() else { continue };
+        let mat = &model.materials[mi];
+        let tension = mat.allowable_tension.or(mat.allowable);
+        let compression = mat.allowable_compression.or(mat.allowable);
+        if tension.is_none() && compression.is_none() {
+            continue;
+        }
+        for (k, result) in solution.combinations.iter().enumerate() {
+            let sigma = result.parts[pi].stress.map_or(0.0, |s| s.value);
+            let (demand, limit, sense) = if sigma >= 0.0 {
+                (sigma, tension, "tension")
+            } else {
+                (-sigma, compression, "compression")
+            };
+            let Some(limit) = limit else {
+                continue;
+            };
+            out.outcomes.push(outcome(
+                format!("{}: {sense} stress within allowable ({})", part.name, mat.name),
+                Origin::Allowable(pi),
+                k,
+                Quantity::new(demand, Dimension::PRESSURE),
+                Compare::Le,
+                Quantity::new(limit.value, Dimension::PRESSURE),
+            ));
+        }
+    }
+    // Allowable checks are one check per part whatever the sense.
+    for o in &mut out.outcomes {
+        if let Origin::Allowable(pi) = o.origin {
+            let p = &model.parts[pi];
+            let mat = p.material().map_or("", |m| model.materials[m].name.as_str());
+            o.label = format!("{}: stress within allowable ({mat})", p.name);
+        }
+    }
+    for (k, result) in solution.combinations.iter().enumerate() {
+        for (pi, part) in model.parts.iter().enumerate() {
+            let Some(mi) = part.material() else { continue };
+            let mat = &model.materials[mi];
+            let sigma = result.parts[pi].stress.map_or(0.0, |s| s.value);
+            let fy = if sigma < 0.0 {
+                mat.yield_compression.or(mat.yield_strength)
+            } else {
+                mat.yield_strength
+            };
+            if let Some(fy) = fy {
+                if sigma.abs() > fy.value {
+                    out.yielded.push((k, pi, sigma.abs() / fy.value));
+                }
+            }
+        }
+    }
+    Ok(out)
+}

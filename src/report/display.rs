@@ -1,0 +1,231 @@
+//! Display units and engineering number formatting.
+
+use crate::model::{Model, UnitChoice};
+use crate::units::{lookup, Dimension, Quantity};
+
+/// A unit to show values in.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Shown {
+    pub name: String,
+    pub factor: f64,
+}
+
+impl Shown {
+    fn of(name: &str) -> Self {
+        Self {
+            name: name.to_string(),
+            factor: lookup(name).map_or(1.0, |u| u.factor),
+        }
+    }
+
+    /// A compound such as `kip/in` from its parts.
+    fn ratio(a: &Shown, b: &Shown) -> Self {
+        Self {
+            name: format!("{}/{}", a.name, b.name),
+            factor: a.factor / b.factor,
+        }
+    }
+
+    fn squared(a: &Shown) -> Self {
+        Self {
+            name: format!("{}²", a.name),
+            factor: a.factor * a.factor,
+        }
+    }
+
+    /// The value of an SI amount in this unit.
+    pub fn value(&self, si: f64) -> f64 {
+        si / self.factor
+    }
+}
+
+/// The units and precision a report or table uses.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Display {
+    pub force: Shown,
+    pub stress: Shown,
+    /// Lengths of parts and node positions.
+    pub length: Shown,
+    /// Displacements, elongations, misfits, gaps.
+    pub small: Shown,
+    pub area: Shown,
+    pub stiffness: Shown,
+    pub temperature: Shown,
+    /// Significant figures.
+    pub digits: usize,
+}
+
+const US: &[&str] = &[
+    "in", "ft", "lbf", "kip", "psi", "ksi", "psf", "ksf", "degF", "pcf",
+];
+
+impl Display {
+    /// US customary: kip, ksi, ft, in.
+    pub fn us(digits: usize) -> Self {
+        let small = Shown::of("in");
+        Self {
+            force: Shown::of("kip"),
+            stress: Shown::of("ksi"),
+            length: Shown::of("ft"),
+            area: Shown::squared(&small),
+            stiffness: Shown::ratio(&Shown::of("kip"), &small),
+            small,
+            temperature: Shown::of("degF"),
+            digits,
+        }
+    }
+
+    /// SI: kN, MPa, m, mm.
+    pub fn si(digits: usize) -> Self {
+        let small = Shown::of("mm");
+        Self {
+            force: Shown::of("kN"),
+            stress: Shown::of("MPa"),
+            length: Shown::of("m"),
+            area: Shown::squared(&small),
+            stiffness: Shown::ratio(&Shown::of("kN"), &small),
+            small,
+            temperature: Shown::of("degC"),
+            digits,
+        }
+    }
+
+    /// From the file's `units` line, else from the units it writes most.
+    pub fn for_model(model: &Model, digits: usize) -> Self {
+        Self::choose(&model.units, &model.unit_usage, digits)
+    }
+
+    /// Resolve a choice against the file's unit usage.
+    pub fn choose(choice: &UnitChoice, usage: &[(String, usize)], digits: usize) -> Self {
+        match choice {
+            UnitChoice::Us => Self::us(digits),
+            UnitChoice::Si => Self::si(digits),
+            UnitChoice::Auto => {
+                let us: usize = usage
+                    .iter()
+                    .filter(|(n, _)| US.contains(&n.as_str()))
+                    .map(|(_, c)| c)
+                    .sum();
+                let all: usize = usage.iter().map(|(_, c)| c).sum();
+                let mut d = if us * 2 >= all && us > 0 {
+                    Self::us(digits)
+                } else {
+                    Self::si(digits)
+                };
+                let system_us = d.force.name == "kip";
+                // Within the system, the force and stress units written most.
+                let most = |dim: Dimension| {
+                    usage
+                        .iter()
+                        .filter(|(n, _)| {
+                            lookup(n).is_some_and(|u| u.dim == dim)
+                                && US.contains(&n.as_str()) == system_us
+                        })
+                        .max_by_key(|(_, c)| *c)
+                        .map(|(n, _)| Shown::of(n))
+                };
+                if let Some(f) = most(Dimension::FORCE) {
+                    d.stiffness = Shown::ratio(&f, &d.small);
+                    d.force = f;
+                }
+                if let Some(s) = most(Dimension::PRESSURE) {
+                    d.stress = s;
+                }
+                d
+            }
+            UnitChoice::List(list) => {
+                let us = list
+                    .iter()
+                    .filter(|(n, _)| n.split(['/', '*', '^']).any(|p| US.contains(&p)))
+                    .count();
+                let mut d = if us * 2 >= list.len() {
+                    Self::us(digits)
+                } else {
+                    Self::si(digits)
+                };
+                for (name, q) in list {
+                    let s = Shown {
+                        name: name.clone(),
+                        factor: q.value,
+                    };
+                    match q.dim {
+                        Dimension::FORCE => d.force = s,
+                        Dimension::PRESSURE => d.stress = s,
+                        Dimension::LENGTH => {
+                            d.length = s.clone();
+                            d.small = s;
+                        }
+                        Dimension::AREA => d.area = s,
+                        Dimension::STIFFNESS => d.stiffness = s,
+                        Dimension::TEMPERATURE => d.temperature = s,
+                        _ => {}
+                    }
+                }
+                d
+            }
+        }
+    }
+
+    /// The unit for a quantity of this dimension, if the display has one.
+    pub fn unit_for(&self, dim: Dimension) -> Option<&Shown> {
+        Some(match dim {
+            Dimension::FORCE => &self.force,
+            Dimension::PRESSURE => &self.stress,
+            Dimension::LENGTH => &self.small,
+            Dimension::AREA => &self.area,
+            Dimension::STIFFNESS => &self.stiffness,
+            Dimension::TEMPERATURE => &self.temperature,
+            _ => return None,
+        })
+    }
+
+    /// A quantity as `value unit` (SI base form for unnamed dimensions).
+    pub fn quantity(&self, q: Quantity) -> String {
+        match self.unit_for(q.dim) {
+            Some(u) => format!("{} {}", number(u.value(q.value), self.digits), u.name),
+            None if q.dim.is_none() => number(q.value, self.digits),
+            None if q.dim == Dimension::PER_TEMPERATURE => format!(
+                "{} /{}",
+                number(q.value * self.temperature.factor, self.digits),
+                self.temperature.name
+            ),
+            None if q.dim == Dimension::SECOND_MOMENT => {
+                let f = self.small.factor.powi(4);
+                format!("{} {}⁴", number(q.value / f, self.digits), self.small.name)
+            }
+            None => format!("{} {}", number(q.value, self.digits), q.dim),
+        }
+    }
+}
+
+/// Format with `digits` significant figures, in plain decimal notation for
+/// everyday magnitudes and scientific notation outside them.
+pub fn number(v: f64, digits: usize) -> String {
+    if !v.is_finite() {
+        return if v.is_nan() { "—".into() } else { "∞".into() };
+    }
+    if v == 0.0 {
+        return "0".into();
+    }
+    let digits = digits.clamp(1, 15);
+    let mag = v.abs().log10().floor();
+    if !(-4.0..9.0).contains(&mag) {
+        let s = format!("{:.*e}", digits - 1, v);
+        return s;
+    }
+    // `mag` is within -4..9 here, so the conversion is exact
+    #[allow(clippy::cast_possible_truncation)]
+    let mag = mag as i32;
+    let sig = i32::try_from(digits).unwrap_or(4);
+    let scale = 10f64.powi(sig - 1 - mag);
+    let rounded = (v * scale).round() / scale;
+    // rounding may carry into the next decade (9.9996 -> 10.00)
+    let mag = if rounded.abs() >= 10f64.powi(mag + 1) { mag + 1 } else { mag };
+    let decimals = usize::try_from((sig - 1 - mag).max(0)).unwrap_or(0);
+    let s = format!("{rounded:.decimals$}");
+    if s.trim_start_matches('-').chars().all(|c| c == '0' || c == '.') {
+        "0".into()
+    } else {
+        s
+    }
+}

@@ -1,0 +1,195 @@
+//! The compact, aligned results tables of `tandem solve`.
+
+use super::display::{number, Display};
+use crate::checks::Checks;
+use crate::model::{Kind, Model};
+use crate::solve::Solution;
+
+/// Columns padded to a common width: text columns (those in `left`) flush
+/// left, number columns flush right.
+pub(crate) fn aligned(rows: &[Vec<String>], left: &[usize], indent: &str) -> String {
+    let cols = rows.iter().map(Vec::len).max().unwrap_or(0);
+    let mut width = vec![0usize; cols];
+    for r in rows {
+        for (i, c) in r.iter().enumerate() {
+            width[i] = width[i].max(c.chars().count());
+        }
+    }
+    let mut out = String::new();
+    for r in rows {
+        let mut line = String::from(indent);
+        for (i, c) in r.iter().enumerate() {
+            let pad = " ".repeat(width[i] - c.chars().count());
+            if left.contains(&i) {
+                line.push_str(c);
+                line.push_str(&pad);
+            } else {
+                line.push_str(&pad);
+                line.push_str(c);
+            }
+            line.push_str("   ");
+        }
+        out.push_str(line.trim_end());
+        out.push('\n');
+    }
+    out
+}
+
+/// How a combination is made, e.g. `1.2 dead + 1.6 live`.
+pub fn combination_text(model: &Model, index: usize) -> String {
+    let c = &model.combinations[index];
+    let mut s = String::new();
+    for (k, (case, f)) in c.terms.iter().enumerate() {
+        let name = &model.cases[*case].name;
+        let (sign, mag) = if *f < 0.0 { ("-", -f) } else { ("+", *f) };
+        if k == 0 {
+            if sign == "-" {
+                s.push('-');
+            }
+        } else {
+            s.push_str(&format!(" {sign} "));
+        }
+        if (mag - 1.0).abs() > 0.0 {
+            s.push_str(&format!("{mag} "));
+        }
+        s.push_str(name);
+    }
+    if s.is_empty() {
+        s.push_str("no loads");
+    }
+    s
+}
+
+/// The text `tandem solve` prints.
+pub fn solve_text(model: &Model, solution: &Solution, checks: &Checks, d: &Display) -> String {
+    let mut out = String::new();
+    out.push_str(&format!(
+        "{} model: {}\n",
+        model.kind.name(),
+        crate::model::counts(&[
+            (model.parts.len(), "part"),
+            (model.nodes.len(), "node"),
+            (solution.unknowns, "unknown"),
+        ])
+    ));
+    for w in &solution.warnings {
+        out.push_str(&format!("warning: {w}\n"));
+    }
+    for (ci, r) in solution.combinations.iter().enumerate() {
+        out.push_str(&format!(
+            "\ncombination {} = {}\n",
+            r.name,
+            combination_text(model, ci)
+        ));
+        let mut rows = vec![vec![
+            "part".to_string(),
+            format!("force ({})", d.force.name),
+            format!("stress ({})", d.stress.name),
+            "strain (µε)".to_string(),
+            format!("elongation ({})", d.small.name),
+            "state".to_string(),
+        ]];
+        for (p, pr) in model.parts.iter().zip(&r.parts) {
+            rows.push(vec![
+                p.name.clone(),
+                number(d.force.value(pr.force.value), d.digits),
+                pr.stress
+                    .map_or("—".into(), |s| number(d.stress.value(s.value), d.digits)),
+                number(pr.strain * 1e6, d.digits),
+                number(d.small.value(pr.elongation.value), d.digits),
+                pr.state.name().to_string(),
+            ]);
+        }
+        out.push_str(&aligned(&rows, &[0, 5], "  "));
+        let mut rows = match model.kind {
+            Kind::Axial => vec![vec![
+                "node".to_string(),
+                format!("displacement ({})", d.small.name),
+                format!("reaction ({})", d.force.name),
+            ]],
+            Kind::Plane => vec![vec![
+                "node".to_string(),
+                format!("dx ({})", d.small.name),
+                format!("dy ({})", d.small.name),
+                format!("rx ({})", d.force.name),
+                format!("ry ({})", d.force.name),
+            ]],
+        };
+        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+            let react = |k: usize| {
+                if n.fixed[k] {
+                    number(d.force.value(nr.reaction[k].value), d.digits)
+                } else {
+                    "—".to_string()
+                }
+            };
+            let mut row = vec![
+                n.name.clone(),
+                number(d.small.value(nr.displacement[0].value), d.digits),
+            ];
+            if model.kind == Kind::Plane {
+                row.push(number(d.small.value(nr.displacement[1].value), d.digits));
+                row.push(react(0));
+                row.push(react(1));
+            } else {
+                row.push(react(0));
+            }
+            rows.push(row);
+        }
+        out.push('\n');
+        out.push_str(&aligned(&rows, &[0], "  "));
+        for (k, rb) in model.rigids.iter().enumerate() {
+            if model.kind == Kind::Plane {
+                out.push_str(&format!(
+                    "  rigid body {} rotates {} rad\n",
+                    rb.name,
+                    number(r.rotations[k], d.digits)
+                ));
+            }
+        }
+        out.push_str(&format!(
+            "  equilibrium residual {} {} (largest force {} {})\n",
+            number(d.force.value(r.equilibrium_residual.value), 2),
+            d.force.name,
+            number(d.force.value(r.force_scale.value), d.digits),
+            d.force.name
+        ));
+    }
+    for (k, pi, ratio) in &checks.yielded {
+        out.push_str(&format!(
+            "\nwarning: in {} part {} is stressed to {} × its yield strength; elastic results are not valid beyond yield\n",
+            solution.combinations[*k].name,
+            model.parts[*pi].name,
+            number(*ratio, 3)
+        ));
+    }
+    if !checks.outcomes.is_empty() {
+        out.push_str("\nchecks (governing combination)\n");
+        let mut rows = vec![vec![
+            "check".to_string(),
+            "combination".to_string(),
+            "demand".to_string(),
+            "capacity".to_string(),
+            "utilization".to_string(),
+            "result".to_string(),
+        ]];
+        for o in checks.governing() {
+            rows.push(vec![
+                o.label.clone(),
+                solution.combinations[o.combination].name.clone(),
+                d.quantity(o.demand),
+                d.quantity(o.capacity),
+                o.utilization.map_or("—".into(), |u| number(u, 3)),
+                if o.pass { "pass" } else { "FAIL" }.to_string(),
+            ]);
+        }
+        out.push_str(&aligned(&rows, &[0, 1, 5], "  "));
+        let fails = checks.failures();
+        out.push_str(&if fails == 0 {
+            "  all checks pass\n".to_string()
+        } else {
+            format!("  {fails} check{} FAIL\n", if fails == 1 { "" } else { "s" })
+        });
+    }
+    out
+}
