@@ -44,7 +44,10 @@ impl Checks {
     pub fn governing(&self) -> Vec<&Outcome> {
         let mut out: Vec<&Outcome> = Vec::new();
         for o in &self.outcomes {
-            match out.iter_mut().find(|g| g.label == o.label && g.origin == o.origin) {
+            match out
+                .iter_mut()
+                .find(|g| g.label == o.label && g.origin == o.origin)
+            {
                 Some(g) => {
                     if rank(o) > rank(g) {
                         *g = o;
@@ -98,10 +101,7 @@ impl Scope for ResultScope<'_> {
             let p = &self.result.parts[i];
             return Ok(match field.name.as_str() {
                 "force" => Quantity::new(p.force.value, Dimension::FORCE),
-                "stress" => Quantity::new(
-                    p.stress.map_or(0.0, |s| s.value),
-                    Dimension::PRESSURE,
-                ),
+                "stress" => Quantity::new(p.stress.map_or(0.0, |s| s.value), Dimension::PRESSURE),
                 "strain" => Quantity::number(p.strain),
                 _ => Quantity::new(p.elongation.value, Dimension::LENGTH),
             });
@@ -200,7 +200,10 @@ pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError
                 continue;
             };
             out.outcomes.push(outcome(
-                format!("{}: {sense} stress within allowable ({})", part.name, mat.name),
+                format!(
+                    "{}: {sense} stress within allowable ({})",
+                    part.name, mat.name
+                ),
                 Origin::Allowable(pi),
                 k,
                 Quantity::new(demand, Dimension::PRESSURE),
@@ -213,7 +216,9 @@ pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError
     for o in &mut out.outcomes {
         if let Origin::Allowable(pi) = o.origin {
             let p = &model.parts[pi];
-            let mat = p.material().map_or("", |m| model.materials[m].name.as_str());
+            let mat = p
+                .material()
+                .map_or("", |m| model.materials[m].name.as_str());
             o.label = format!("{}: stress within allowable ({mat})", p.name);
         }
     }

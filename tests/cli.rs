@@ -76,3 +76,99 @@ fn units_lists_the_table() {
         assert!(s.lines().any(|l| l.starts_with(name)), "{name} missing");
     }
 }
+
+#[test]
+fn every_example_solves() {
+    for f in examples() {
+        let out = tandem(&["solve", &f]);
+        let code = out.status.code();
+        assert!(
+            code == Some(0) || code == Some(1),
+            "{f}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        assert!(String::from_utf8_lossy(&out.stdout).contains("equilibrium residual"));
+    }
+}
+
+#[test]
+fn failing_check_exits_1() {
+    // the bolted sleeve's surge case overstresses the bolt on purpose
+    let out = tandem(&["solve", "examples/bolted_sleeve.tandem"]);
+    assert_eq!(out.status.code(), Some(1));
+    assert!(String::from_utf8_lossy(&out.stdout).contains("FAIL"));
+}
+
+#[test]
+fn mechanism_exits_2_and_names_the_node() {
+    let out = tandem(&["solve", "tests/solve/mechanism.tandem"]);
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("mechanism") && err.contains("node `"), "{err}");
+}
+
+/// The JSON follows the documented shape: SI units, unit-carrying keys.
+#[test]
+fn json_shape() {
+    let out = tandem(&["solve", "examples/filled_post.tandem", "--json"]);
+    assert_eq!(out.status.code(), Some(0));
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
+    assert_eq!(v["model"]["kind"], "axial");
+    assert_eq!(v["model"]["parts"], 2);
+    let c = &v["combinations"][0];
+    assert_eq!(c["name"], "service");
+    for key in ["force_N", "stress_Pa", "strain", "elongation_m", "state"] {
+        assert!(!c["parts"][0][key].is_null(), "{key}");
+    }
+    for key in ["displacement_m", "reaction_N"] {
+        assert!(c["nodes"][0][key].is_number(), "{key}");
+    }
+    assert!(c["equilibrium_residual_N"].is_number());
+    let check = &v["checks"][0];
+    for key in [
+        "label",
+        "combination",
+        "demand",
+        "capacity",
+        "utilization",
+        "pass",
+    ] {
+        assert!(!check[key].is_null(), "{key}");
+    }
+    // the base reaction balances the factored load: 1.2 x 95 + 1.6 x 60 = 210 kip
+    let r = v["combinations"][1]["nodes"][0]["reaction_N"]
+        .as_f64()
+        .unwrap_or(0.0);
+    assert!((r - 210.0 * 4_448.221_615_260_5).abs() < 1e-6 * r);
+}
+
+#[test]
+fn plane_json_uses_pairs() {
+    let out = tandem(&["solve", "examples/hung_platform.tandem", "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("valid JSON");
+    assert!(v["combinations"][0]["nodes"][0]["displacement_m"].is_array());
+    assert!(v["combinations"][0]["nodes"][0]["reaction_N"].is_array());
+}
+
+#[test]
+fn units_flag_changes_display() {
+    let out = tandem(&["solve", "examples/filled_post.tandem", "--units", "si"]);
+    let s = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        s.contains("force (kN)") && s.contains("stress (MPa)"),
+        "{s}"
+    );
+    let out = tandem(&[
+        "solve",
+        "examples/filled_post.tandem",
+        "--units",
+        "lbf,psi,mm",
+    ]);
+    let s = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        s.contains("force (lbf)") && s.contains("stress (psi)") && s.contains("(mm)"),
+        "{s}"
+    );
+    let out = tandem(&["solve", "examples/filled_post.tandem", "--units", "furlong"]);
+    assert_eq!(out.status.code(), Some(2));
+}

@@ -202,7 +202,11 @@ impl Display {
 /// everyday magnitudes and scientific notation outside them.
 pub fn number(v: f64, digits: usize) -> String {
     if !v.is_finite() {
-        return if v.is_nan() { "—".into() } else { "∞".into() };
+        return if v.is_nan() {
+            "—".into()
+        } else {
+            "∞".into()
+        };
     }
     if v == 0.0 {
         return "0".into();
@@ -220,10 +224,17 @@ pub fn number(v: f64, digits: usize) -> String {
     let scale = 10f64.powi(sig - 1 - mag);
     let rounded = (v * scale).round() / scale;
     // rounding may carry into the next decade (9.9996 -> 10.00)
-    let mag = if rounded.abs() >= 10f64.powi(mag + 1) { mag + 1 } else { mag };
+    let mag = if rounded.abs() >= 10f64.powi(mag + 1) {
+        mag + 1
+    } else {
+        mag
+    };
     let decimals = usize::try_from((sig - 1 - mag).max(0)).unwrap_or(0);
     let s = format!("{rounded:.decimals$}");
-    if s.trim_start_matches('-').chars().all(|c| c == '0' || c == '.') {
+    if s.trim_start_matches('-')
+        .chars()
+        .all(|c| c == '0' || c == '.')
+    {
         "0".into()
     } else {
         s

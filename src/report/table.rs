@@ -188,7 +188,10 @@ pub fn solve_text(model: &Model, solution: &Solution, checks: &Checks, d: &Displ
         out.push_str(&if fails == 0 {
             "  all checks pass\n".to_string()
         } else {
-            format!("  {fails} check{} FAIL\n", if fails == 1 { "" } else { "s" })
+            format!(
+                "  {fails} check{} FAIL\n",
+                if fails == 1 { "" } else { "s" }
+            )
         });
     }
     out

@@ -1,0 +1,159 @@
+//! Scaling benchmark: generated assemblies of 10^2 to 10^6 parts, timed for
+//! parse + check and for solve, with the peak memory of the process.
+//!
+//! `cargo bench --bench scale` runs every size; `cargo bench --bench scale --
+//! 100000` stops at that many parts. Figures go in docs/performance.md.
+
+use std::fmt::Write as _;
+use std::time::Instant;
+
+use tandem::source::Source;
+
+/// An axial chain fixed at one end and loaded at the other.
+fn chain(n: usize) -> String {
+    let mut t = String::with_capacity(n * 60);
+    t.push_str("material s { E = 29000 ksi }\nlet a = 2 in^2\nnode n0 at 0 in\nfix n0\n");
+    for i in 1..=n {
+        let _ = writeln!(t, "node n{i} at {i} in");
+    }
+    for i in 1..=n {
+        let _ = writeln!(
+            t,
+            "part p{i} {{ material = s; area = a; ends = n{}, n{i} }}",
+            i - 1
+        );
+    }
+    let _ = writeln!(t, "load n{n} = 10 kip");
+    t
+}
+
+/// Parallel parts between one pair of nodes (a bundle of strands).
+fn bundle(n: usize) -> String {
+    let mut t = String::with_capacity(n * 60);
+    t.push_str("material s { E = 29000 ksi }\nnode a at 0 in\nnode b at 120 in\nfix a\n");
+    for i in 1..=n {
+        let _ = writeln!(
+            t,
+            "part p{i} {{ material = s; area = {} in^2; ends = a, b }}",
+            1 + i % 7
+        );
+    }
+    t.push_str("load b = 500 kip\n");
+    t
+}
+
+/// A plane braced strip of bays (five parts a bay), with every fifth vertical
+/// pair of nodes made a rigid body.
+fn grid(parts: usize) -> String {
+    let bays = (parts / 5).max(1);
+    let mut t = String::with_capacity(parts * 70);
+    t.push_str("material s { E = 29000 ksi }\nlet a = 2 in^2\n");
+    for i in 0..=bays {
+        let _ = writeln!(t, "node b{i} at ({} in, 0 in)", i * 40);
+        let _ = writeln!(t, "node t{i} at ({} in, 30 in)", i * 40);
+    }
+    // pinned at the left, on a roller under every bottom node
+    t.push_str("fix b0\n");
+    for i in 0..bays {
+        let j = i + 1;
+        let _ = writeln!(t, "fix b{j} y");
+        let _ = writeln!(
+            t,
+            "part h{i} {{ material = s; area = a; ends = b{i}, b{j} }}"
+        );
+        let _ = writeln!(
+            t,
+            "part g{i} {{ material = s; area = a; ends = t{i}, t{j} }}"
+        );
+        let _ = writeln!(
+            t,
+            "part d{i} {{ material = s; area = a; ends = b{i}, t{j} }}"
+        );
+        let _ = writeln!(
+            t,
+            "part e{i} {{ material = s; area = a; ends = t{i}, b{j} }}"
+        );
+        if j % 5 == 0 {
+            let _ = writeln!(t, "rigid r{j} {{ nodes = b{j}, t{j} }}");
+        } else {
+            let _ = writeln!(
+                t,
+                "part v{j} {{ material = s; area = a; ends = b{j}, t{j} }}"
+            );
+        }
+    }
+    let _ = writeln!(t, "load t{bays} = (0 kip, -5 kip)");
+    t
+}
+
+/// Makes the text of an assembly of about `n` parts.
+type Generator = fn(usize) -> String;
+
+fn peak_rss_mib() -> f64 {
+    std::fs::read_to_string("/proc/self/status")
+        .ok()
+        .and_then(|s| {
+            s.lines().find(|l| l.starts_with("VmHWM:")).and_then(|l| {
+                l.split_whitespace()
+                    .nth(1)
+                    .and_then(|v| v.parse::<f64>().ok())
+            })
+        })
+        .map_or(0.0, |kb| kb / 1024.0)
+}
+
+fn main() {
+    let limit: usize = std::env::args()
+        .skip(1)
+        .find_map(|a| a.parse().ok())
+        .unwrap_or(1_000_000);
+    println!("| assembly | parts | unknowns | text MiB | parse+check s | solve s | peak RSS MiB |");
+    println!("|---|---|---|---|---|---|---|");
+    let kinds: [(&str, Generator); 3] =
+        [("chain", chain), ("bundle", bundle), ("plane grid", grid)];
+    for (name, make) in kinds {
+        let mut n = 100;
+        while n <= limit {
+            let text = make(n);
+            let mib = text.len() as f64 / (1024.0 * 1024.0);
+            let src = Source::new("bench.tandem", text);
+            let t0 = Instant::now();
+            let Ok(file) = tandem::syntax::parse(&src.text) else {
+                eprintln!("generated file does not parse");
+                return;
+            };
+            let tp = Instant::now();
+            let model = match tandem::model::build(&file, tandem::model::Limits::default()) {
+                Ok(m) => m,
+                Err(e) => {
+                    let e: Vec<tandem::Error> = e.into_iter().map(Into::into).collect();
+                    eprintln!("{}", tandem::diagnostic::render(&e, &src, 100, false));
+                    return;
+                }
+            };
+            let t1 = Instant::now();
+            eprintln!(
+                "  parse {:.3} s, check {:.3} s",
+                (tp - t0).as_secs_f64(),
+                (t1 - tp).as_secs_f64()
+            );
+            let sol = match tandem::solve::solve(&model) {
+                Ok(s) => s,
+                Err(e) => {
+                    eprintln!("{e}");
+                    return;
+                }
+            };
+            let t2 = Instant::now();
+            println!(
+                "| {name} | {} | {} | {mib:.1} | {:.3} | {:.3} | {:.0} |",
+                model.parts.len(),
+                sol.unknowns,
+                (t1 - t0).as_secs_f64(),
+                (t2 - t1).as_secs_f64(),
+                peak_rss_mib()
+            );
+            n *= 10;
+        }
+    }
+}
