@@ -1,3 +1,8 @@
+#![allow(
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss,
+    clippy::range_plus_one
+)]
 //! Random connected assemblies solved by tandem and again by a dense LU
 //! solve (nalgebra) as a general-purpose reference; plus equilibrium,
 //! superposition and reciprocity (Maxwell–Betti) on the same models.
