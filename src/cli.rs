@@ -55,6 +55,27 @@ pub enum Command {
         #[command(flatten)]
         show: Show,
     },
+    /// Write the calculation report: inputs, every equation with its numbers
+    /// substituted, equilibrium and compatibility, and the design checks.
+    ///
+    /// With one file and no `-o`, the Markdown goes to standard output. With
+    /// `-o FILE` it is written there; with several files, `-o DIR` writes one
+    /// report per file into that folder. Files are written atomically and an
+    /// input file is never overwritten. Exit code 0 when every check passes,
+    /// 1 when a check fails, 2 on an error.
+    Report {
+        /// Calc files (`.tandem`).
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+        /// Output file (one input) or folder (several inputs).
+        #[arg(short, long, value_name = "OUT")]
+        output: Option<PathBuf>,
+        /// Write a self-contained HTML page instead of Markdown.
+        #[arg(long)]
+        html: bool,
+        #[command(flatten)]
+        show: Show,
+    },
     /// List every unit tandem knows, with its dimension and factor to SI.
     Units,
 }

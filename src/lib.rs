@@ -11,6 +11,7 @@
 pub mod checks;
 pub mod diagnostic;
 pub mod model;
+pub mod output;
 pub mod report;
 pub mod solve;
 pub mod source;

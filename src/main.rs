@@ -27,6 +27,12 @@ fn main() -> ExitCode {
     match cli.command {
         Command::Check { files } => check(&files),
         Command::Solve { file, json, show } => solve(&file, json, &show),
+        Command::Report {
+            files,
+            output,
+            html,
+            show,
+        } => report(&files, output.as_deref(), html, &show),
         Command::Units => {
             print!("{}", tandem::units::listing());
             ExitCode::SUCCESS
@@ -121,5 +127,118 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
+    }
+}
+
+/// One report: its text and whether any check fails.
+fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool), ExitCode> {
+    let Some(source) = read(path) else {
+        return Err(bad());
+    };
+    let a = match tandem::analyse(&source) {
+        Ok(a) => a,
+        Err(errors) => {
+            report_errors(&errors, &source);
+            return Err(bad());
+        }
+    };
+    let d = display(&a.model, show).map_err(|msg| {
+        eprintln!("error: {msg}");
+        bad()
+    })?;
+    let md = tandem::report::markdown::report(&source, &a.model, &a.solution, &a.checks, &d);
+    let text = if html {
+        let title = a.model.title.get("title").unwrap_or("tandem calculation");
+        tandem::report::html(&md, title)
+    } else {
+        md
+    };
+    Ok((text, a.checks.failures() > 0))
+}
+
+fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> ExitCode {
+    let ext = if html { "html" } else { "md" };
+    // Where each report goes.
+    let targets: Vec<Option<PathBuf>> = match output {
+        None if files.len() == 1 => vec![None],
+        None => {
+            eprintln!("error: several files need `-o DIR` for the reports");
+            return bad();
+        }
+        Some(out) if files.len() == 1 && !out.is_dir() => vec![Some(out.to_path_buf())],
+        Some(dir) => {
+            if !dir.is_dir() {
+                eprintln!(
+                    "error: {} is not a folder; several files need `-o DIR`",
+                    dir.display()
+                );
+                return bad();
+            }
+            files
+                .iter()
+                .map(|f| {
+                    let stem = f
+                        .file_stem()
+                        .map_or_else(|| "report".into(), |s| s.to_string_lossy().to_string());
+                    Some(dir.join(format!("{stem}.{ext}")))
+                })
+                .collect()
+        }
+    };
+    for t in targets.iter().flatten() {
+        if tandem::output::is_input(t, files) {
+            eprintln!(
+                "error: refusing to write the report over the input file {}",
+                t.display()
+            );
+            return bad();
+        }
+    }
+    // Render in parallel, one worker per core.
+    let workers = std::thread::available_parallelism()
+        .map_or(1, std::num::NonZero::get)
+        .min(files.len())
+        .max(1);
+    let results: Vec<Result<(String, bool), ExitCode>> = std::thread::scope(|scope| {
+        let chunk = files.len().div_ceil(workers);
+        let handles: Vec<_> = files
+            .chunks(chunk)
+            .map(|group| {
+                scope.spawn(move || {
+                    group
+                        .iter()
+                        .map(|f| render_report(f, html, show))
+                        .collect::<Vec<_>>()
+                })
+            })
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| h.join().unwrap_or_default())
+            .collect()
+    });
+    let mut code = ExitCode::SUCCESS;
+    let mut failed_check = false;
+    for (result, target) in results.into_iter().zip(&targets) {
+        match result {
+            Ok((text, fails)) => {
+                failed_check |= fails;
+                match target {
+                    None => print!("{text}"),
+                    Some(path) => {
+                        if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
+                            eprintln!("error: cannot write {}: {e}", path.display());
+                            code = bad();
+                        }
+                    }
+                }
+            }
+            Err(c) => code = c,
+        }
+    }
+    if code == ExitCode::SUCCESS && failed_check {
+        ExitCode::from(1)
+    } else {
+        code
     }
 }

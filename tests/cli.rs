@@ -172,3 +172,69 @@ fn units_flag_changes_display() {
     let out = tandem(&["solve", "examples/filled_post.tandem", "--units", "furlong"]);
     assert_eq!(out.status.code(), Some(2));
 }
+
+#[test]
+fn report_to_stdout_and_exit_codes() {
+    let out = tandem(&["report", "examples/filled_post.tandem"]);
+    assert_eq!(out.status.code(), Some(0));
+    let md = String::from_utf8_lossy(&out.stdout);
+    assert!(md.starts_with("# Column C-3"));
+    assert!(md.contains("qualified engineer"));
+    let out = tandem(&["report", "examples/bolted_sleeve.tandem"]);
+    assert_eq!(out.status.code(), Some(1));
+    let out = tandem(&["report", "tests/solve/mechanism.tandem"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(out.stdout.is_empty());
+}
+
+#[test]
+fn report_many_files_into_a_folder() {
+    let dir = std::env::temp_dir().join(format!("tandem-reports-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let d = dir.display().to_string();
+    let files = examples();
+    let mut args = vec!["report", "-o", &d, "--html"];
+    args.extend(files.iter().map(String::as_str));
+    let out = tandem(&args);
+    assert_eq!(
+        out.status.code(),
+        Some(1),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    for f in &files {
+        let stem = std::path::Path::new(f)
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .unwrap_or_default();
+        let html =
+            std::fs::read_to_string(dir.join(format!("{stem}.html"))).expect("report written");
+        assert!(html.starts_with("<!DOCTYPE html>"));
+    }
+    // no temporary files are left behind
+    let leftovers = std::fs::read_dir(&dir)
+        .expect("dir")
+        .flatten()
+        .filter(|e| e.file_name().to_string_lossy().ends_with(".tmp"))
+        .count();
+    assert_eq!(leftovers, 0);
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn report_refuses_to_overwrite_its_input() {
+    let dir = std::env::temp_dir().join(format!("tandem-input-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let input = dir.join("calc.tandem");
+    let text = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/filled_post.tandem"),
+    )
+    .expect("read");
+    std::fs::write(&input, &text).expect("write");
+    let p = input.display().to_string();
+    let out = tandem(&["report", &p, "-o", &p]);
+    assert_eq!(out.status.code(), Some(2));
+    assert_eq!(std::fs::read_to_string(&input).expect("still there"), text);
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -213,7 +213,7 @@ pub fn number(v: f64, digits: usize) -> String {
     }
     let digits = digits.clamp(1, 15);
     let mag = v.abs().log10().floor();
-    if !(-4.0..9.0).contains(&mag) {
+    if !(-6.0..9.0).contains(&mag) {
         let s = format!("{:.*e}", digits - 1, v);
         return s;
     }

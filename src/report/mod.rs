@@ -3,6 +3,36 @@
 
 pub mod display;
 pub mod json;
+pub mod markdown;
 pub mod table;
 
 pub use display::{number, Display};
+
+/// A print-friendly, self-contained HTML page of a Markdown report.
+#[must_use]
+pub fn html(markdown: &str, title: &str) -> String {
+    let mut options = comrak::Options::default();
+    options.extension.table = true;
+    options.extension.strikethrough = true;
+    options.render.escape = true;
+    let body = comrak::markdown_to_html(markdown, &options);
+    let title = title
+        .replace('&', "&amp;")
+        .replace('<', "&lt;")
+        .replace('>', "&gt;");
+    format!(
+        "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>{title}</title>\n<style>\n{CSS}</style>\n</head>\n<body>\n{body}</body>\n</html>\n"
+    )
+}
+
+const CSS: &str = "body { font-family: Georgia, 'Times New Roman', serif; max-width: 52em; margin: 2em auto; padding: 0 1em; color: #111; line-height: 1.45; }
+h1 { font-size: 1.6em; border-bottom: 2px solid #111; padding-bottom: .2em; }
+h2 { font-size: 1.25em; border-bottom: 1px solid #999; margin-top: 1.8em; }
+h3 { font-size: 1.05em; margin-top: 1.3em; }
+table { border-collapse: collapse; margin: .6em 0 1em; font-size: .92em; }
+th, td { border: 1px solid #888; padding: .25em .6em; vertical-align: top; }
+th { background: #eee; }
+code { font-family: 'DejaVu Sans Mono', Menlo, monospace; font-size: .9em; }
+li { margin: .15em 0; }
+@media print { body { margin: 0; max-width: none; } h2 { page-break-after: avoid; } table { page-break-inside: avoid; } }
+";

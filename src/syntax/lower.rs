@@ -626,16 +626,20 @@ fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
         match q.as_rule() {
             Rule::unit_op => divide = q.as_str() == "/",
             Rule::unit_power => {
-                let fsp = span(&q);
+                let whole = span(&q);
                 let mut it = parts(q);
-                let name = need(it.next(), fsp)?.as_str().to_string();
+                let name_pair = need(it.next(), whole)?;
+                let name = name_pair.as_str().to_string();
+                let mut fsp = span(&name_pair);
                 let power = match it.next() {
-                    Some(e) => e
-                        .as_str()
-                        .parse::<i32>()
-                        .ok()
-                        .filter(|p| p.abs() <= 12)
-                        .ok_or(SyntaxError::BadUnitPower { span: span(&e) })?,
+                    Some(e) => {
+                        fsp = fsp.to(span(&e));
+                        e.as_str()
+                            .parse::<i32>()
+                            .ok()
+                            .filter(|p| p.abs() <= 12)
+                            .ok_or(SyntaxError::BadUnitPower { span: span(&e) })?
+                    }
                     None => 1,
                 };
                 factors.push(UnitFactor {
@@ -648,7 +652,11 @@ fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
             _ => {}
         }
     }
-    Ok(UnitExpr { factors, span: sp })
+    let span = match (factors.first(), factors.last()) {
+        (Some(a), Some(b)) => a.span.to(b.span),
+        _ => sp,
+    };
+    Ok(UnitExpr { factors, span })
 }
 
 fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
@@ -707,9 +715,10 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             }
             let mut e = atom.ok_or_else(|| internal(sp))?;
             if negs % 2 == 1 {
+                let span = Span::new(sp.start, e.span.end);
                 e = Expr {
                     kind: ExprKind::Neg(Box::new(e)),
-                    span: sp,
+                    span,
                 };
             }
             Ok(e)
@@ -723,28 +732,38 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
         }
         Rule::quantity => {
             let mut it = parts(p);
-            let value = number(&need(it.next(), sp)?)?;
+            let num = need(it.next(), sp)?;
+            let value = number(&num)?;
             let unit = it.next().map(unit_expr).transpose()?;
+            let end = unit.as_ref().map_or(span(&num).end, |u| u.span.end);
             Ok(Expr {
                 kind: ExprKind::Quantity { value, unit },
-                span: sp,
+                span: Span::new(sp.start, end),
             })
         }
         Rule::unit_atom => {
             let u = unit_expr(need(parts(p).next(), sp)?)?;
+            let span = u.span;
             Ok(Expr {
                 kind: ExprKind::Unit(u),
-                span: sp,
+                span,
             })
         }
         Rule::path => {
             let mut it = parts(p);
             let a = ident(&need(it.next(), sp)?);
-            let kind = match it.next() {
-                Some(f) => ExprKind::Field(a, ident(&f)),
-                None => ExprKind::Name(a),
+            let (kind, span) = match it.next() {
+                Some(f) => {
+                    let b = ident(&f);
+                    let span = a.span.to(b.span);
+                    (ExprKind::Field(a, b), span)
+                }
+                None => {
+                    let span = a.span;
+                    (ExprKind::Name(a), span)
+                }
             };
-            Ok(Expr { kind, span: sp })
+            Ok(Expr { kind, span })
         }
         Rule::call => {
             let mut it = parts(p);
@@ -786,9 +805,12 @@ fn flat<O>(
     if rest.is_empty() {
         first
     } else {
+        // The span runs from the first operand to the last, so that trailing
+        // blanks and comments are never part of it.
+        let span = rest.last().map_or(sp, |(_, e)| first.span.to(e.span));
         Expr {
             kind: make(Box::new(first), rest),
-            span: sp,
+            span,
         }
     }
 }

@@ -1,0 +1,1139 @@
+//! The Markdown calculation: every input, every substituted equation, the
+//! checks. Equations are plain Unicode text (σ, δ, Σ, ², ·) so they read the
+//! same on a code host, in the HTML, in a terminal and in a diff:
+//! `symbols = numbers with units = result`.
+
+use std::fmt::Write as _;
+
+use super::display::{number, Display, Shown};
+use super::table::combination_text;
+use crate::checks::{Checks, Origin};
+use crate::model::{Carries, Kind, Law, Model};
+use crate::solve::{PartState, Solution};
+use crate::source::Source;
+use crate::units::Dimension;
+
+/// The cautions every report carries.
+pub const CAUTIONS: &[&str] = &[
+    "This calculation was prepared with tandem, a design aid. Its results must be checked by a qualified engineer before they are relied on; local codes and licensed practice govern.",
+    "The model is linear-elastic and small-displacement; parts are pin-ended axial members or springs, and parts that share nodes are taken as perfectly bonded.",
+    "Checks are only those written in the calc file and the material allowables it gives; they do not replace the checks the governing code requires.",
+];
+
+struct Doc {
+    out: String,
+}
+
+impl Doc {
+    fn h(&mut self, level: usize, text: &str) {
+        let _ = write!(self.out, "\n{} {}\n\n", "#".repeat(level), text);
+    }
+    fn p(&mut self, text: &str) {
+        let _ = write!(self.out, "{text}\n\n");
+    }
+    fn eq(&mut self, text: &str) {
+        let _ = writeln!(self.out, "- {text}");
+    }
+    fn end_list(&mut self) {
+        self.out.push('\n');
+    }
+    fn table(&mut self, head: &[&str], rows: &[Vec<String>], right: &[usize]) {
+        let cell = |s: &str| s.replace('|', "\\|");
+        let _ = writeln!(
+            self.out,
+            "| {} |",
+            head.iter().map(|h| cell(h)).collect::<Vec<_>>().join(" | ")
+        );
+        let _ = writeln!(
+            self.out,
+            "|{}|",
+            (0..head.len())
+                .map(|i| if right.contains(&i) { "---:" } else { "---" })
+                .collect::<Vec<_>>()
+                .join("|")
+        );
+        for r in rows {
+            let _ = writeln!(
+                self.out,
+                "| {} |",
+                r.iter().map(|c| cell(c)).collect::<Vec<_>>().join(" | ")
+            );
+        }
+        self.out.push('\n');
+    }
+}
+
+/// Formatting helpers bound to one display.
+struct Fmt<'a> {
+    d: &'a Display,
+}
+
+impl Fmt<'_> {
+    fn n(&self, v: f64) -> String {
+        number(v, self.d.digits)
+    }
+    fn with(&self, si: f64, u: &Shown) -> String {
+        format!("{} {}", self.n(u.value(si)), u.name)
+    }
+    /// A value as it stands inside a sum or product: negatives in parentheses.
+    fn term(&self, si: f64, u: &Shown) -> String {
+        let s = self.with(si, u);
+        if s.starts_with('-') {
+            format!("({s})")
+        } else {
+            s
+        }
+    }
+    fn force(&self, si: f64) -> String {
+        self.with(si, &self.d.force)
+    }
+    fn force_t(&self, si: f64) -> String {
+        self.term(si, &self.d.force)
+    }
+    fn stress(&self, si: f64) -> String {
+        self.with(si, &self.d.stress)
+    }
+    fn small(&self, si: f64) -> String {
+        self.with(si, &self.d.small)
+    }
+    fn small_t(&self, si: f64) -> String {
+        self.term(si, &self.d.small)
+    }
+    fn length(&self, si: f64) -> String {
+        self.with(si, &self.d.length)
+    }
+    fn area(&self, si: f64) -> String {
+        self.with(si, &self.d.area)
+    }
+    fn stiffness(&self, si: f64) -> String {
+        self.with(si, &self.d.stiffness)
+    }
+    fn temp(&self, si: f64) -> String {
+        self.term(si, &self.d.temperature)
+    }
+    fn alpha(&self, si: f64) -> String {
+        let t = &self.d.temperature;
+        format!("{:.3e}/{}", si * t.factor, degree(&t.name))
+    }
+    fn plain(&self, v: f64) -> String {
+        let s = self.n(v);
+        if s.starts_with('-') {
+            format!("({s})")
+        } else {
+            s
+        }
+    }
+}
+
+fn degree(name: &str) -> String {
+    match name {
+        "degF" => "°F".into(),
+        "degC" => "°C".into(),
+        other => other.to_string(),
+    }
+}
+
+/// The unit name as shown (temperatures with a degree sign).
+fn shown_temperature(d: &Display) -> Display {
+    let mut d = d.clone();
+    d.temperature.name = degree(&d.temperature.name);
+    d
+}
+
+fn pct(u: Option<f64>) -> String {
+    u.map_or("—".into(), |u| number(u, 3))
+}
+
+/// Write the whole calculation for an analysed file.
+#[allow(clippy::too_many_lines)]
+pub fn report(
+    source: &Source,
+    model: &Model,
+    solution: &Solution,
+    checks: &Checks,
+    display: &Display,
+) -> String {
+    let display = &shown_temperature(display);
+    let f = Fmt { d: display };
+    let mut doc = Doc { out: String::new() };
+    let title = model
+        .title
+        .get("title")
+        .unwrap_or("Load-sharing calculation");
+    let _ = write!(doc.out, "# {title}\n\n");
+    let mut rows = Vec::new();
+    for key in crate::model::Title::KEYS.iter().skip(1) {
+        if let Some(v) = model.title.get(key) {
+            let mut k = (*key).to_string();
+            if let Some(c) = k.get_mut(0..1) {
+                c.make_ascii_uppercase();
+            }
+            rows.push(vec![k, v.to_string()]);
+        }
+    }
+    rows.push(vec!["Calc file".into(), format!("`{}`", source.name)]);
+    doc.table(&["Item", "Value"], &rows, &[]);
+
+    // Status line.
+    let governing = checks.governing();
+    let fails = checks.failures();
+    let status = if governing.is_empty() {
+        "no checks are written in this calc".to_string()
+    } else if fails == 0 {
+        format!("all {} checks pass", governing.len())
+    } else {
+        format!("**{fails} of {} checks fail**", governing.len())
+    };
+    let highest = checks.highest().map_or(String::new(), |o| {
+        format!(
+            "; highest utilization {} ({}, combination `{}`)",
+            pct(o.utilization),
+            o.label,
+            solution.combinations[o.combination].name
+        )
+    });
+    doc.p(&format!("**Status:** {status}{highest}."));
+
+    // Summary.
+    doc.h(2, "Summary");
+    if !governing.is_empty() {
+        let rows: Vec<Vec<String>> = governing
+            .iter()
+            .map(|o| {
+                vec![
+                    o.label.clone(),
+                    format!("`{}`", solution.combinations[o.combination].name),
+                    pct(o.utilization),
+                    if o.pass {
+                        "pass".into()
+                    } else {
+                        "**FAIL**".into()
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &["Check", "Governing combination", "Utilization", "Result"],
+            &rows,
+            &[2],
+        );
+    }
+    let mut rows = Vec::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let (mut fmax, mut cf) = (0.0f64, 0usize);
+        for (k, c) in solution.combinations.iter().enumerate() {
+            let v = c.parts[i].force.value;
+            if v.abs() > fmax.abs() {
+                fmax = v;
+                cf = k;
+            }
+        }
+        let smax = solution.combinations[cf].parts[i].stress.map(|s| s.value);
+        rows.push(vec![
+            p.name.clone(),
+            f.force(fmax),
+            smax.map_or("—".into(), |s| f.stress(s)),
+            format!("`{}`", solution.combinations[cf].name),
+        ]);
+    }
+    doc.p("Largest force in each part over all combinations (tension positive):");
+    doc.table(&["Part", "Force", "Stress", "Combination"], &rows, &[1, 2]);
+    for w in &solution.warnings {
+        doc.p(&format!("**Warning:** {w}."));
+    }
+    for (k, pi, ratio) in &checks.yielded {
+        doc.p(&format!(
+            "**Warning:** in combination `{}` part `{}` is stressed to {} × its yield strength; elastic results are not valid beyond yield.",
+            solution.combinations[*k].name,
+            model.parts[*pi].name,
+            number(*ratio, 3)
+        ));
+    }
+
+    doc.h(2, "Cautions");
+    for c in CAUTIONS {
+        doc.eq(c);
+    }
+    doc.end_list();
+
+    doc.h(2, "Method and sign convention");
+    doc.p(&format!(
+        "The assembly is statically indeterminate: statics alone cannot split the load among its parts. Each part obeys Hooke's law, N = k·(δ − δ₀), with k = E·A/L and δ₀ the elongation it would take free of force (misfit, temperature α·ΔT·L, free strain ε·L). Compatibility requires the parts' elongations to follow from the displacements of the nodes they share{}. Equilibrium holds at every free node. The three are solved together by the direct stiffness method for every load combination; supports, ties and rigid bodies are eliminated exactly.",
+        if model.rigids.is_empty() { "" } else { " and from the small rigid-body motions of the rigid bodies" }
+    ));
+    doc.p(&match model.kind {
+        Kind::Axial => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along the axis (toward increasing position).".to_string(),
+        Kind::Plane => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along +x and +y; rotations are positive counter-clockwise.".to_string(),
+    });
+    doc.p(&format!(
+        "Values are shown to {} significant figures; each equation is written in symbols, then with its numbers and units substituted, then its result.",
+        display.digits
+    ));
+
+    inputs(&mut doc, &f, source, model);
+
+    for (ci, r) in solution.combinations.iter().enumerate() {
+        combination(&mut doc, &f, model, solution, ci);
+        let _ = r;
+    }
+
+    doc.h(2, "Design checks");
+    if checks.outcomes.is_empty() {
+        doc.p("The calc file writes no checks and its materials give no allowable stresses.");
+    } else {
+        let gov: Vec<*const crate::checks::Outcome> = governing
+            .iter()
+            .map(|o| std::ptr::from_ref::<crate::checks::Outcome>(*o))
+            .collect();
+        let rows: Vec<Vec<String>> = checks
+            .outcomes
+            .iter()
+            .map(|o| {
+                let is_gov = gov.contains(&std::ptr::from_ref(o));
+                vec![
+                    o.label.clone(),
+                    if is_gov {
+                        format!("`{}` (governs)", solution.combinations[o.combination].name)
+                    } else {
+                        format!("`{}`", solution.combinations[o.combination].name)
+                    },
+                    display.quantity(o.demand),
+                    format!("{} {}", o.op.symbol(), display.quantity(o.capacity)),
+                    pct(o.utilization),
+                    if o.pass {
+                        "pass".into()
+                    } else {
+                        "**FAIL**".into()
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &[
+                "Check",
+                "Combination",
+                "Demand",
+                "Capacity",
+                "Utilization",
+                "Result",
+            ],
+            &rows,
+            &[2, 3, 4],
+        );
+        let lines: Vec<String> = model
+            .checks
+            .iter()
+            .map(|c| {
+                format!(
+                    "\"{}\": {} {} {}",
+                    c.label,
+                    source.slice(c.lhs.span).trim(),
+                    c.op.symbol(),
+                    source.slice(c.rhs.span).trim()
+                )
+            })
+            .collect();
+        if !lines.is_empty() {
+            doc.p("As written in the calc file (utilization is demand over capacity):");
+            for l in lines {
+                doc.eq(&l);
+            }
+            doc.end_list();
+        }
+        if checks
+            .outcomes
+            .iter()
+            .any(|o| matches!(o.origin, Origin::Allowable(_)))
+        {
+            doc.p("Allowable-stress checks compare each part's stress in its sense (tension or compression) with its material's allowable for that sense.");
+        }
+    }
+    doc.out.trim_end().to_string() + "\n"
+}
+
+fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
+    doc.h(2, "Inputs");
+    if !model.lets.is_empty() {
+        doc.h(3, "Design quantities");
+        let rows: Vec<Vec<String>> = model
+            .lets
+            .iter()
+            .map(|l| {
+                let expr = source.slice(l.expr.span).trim().replace('\n', " ");
+                let value = if l.value.dim == Dimension::LENGTH {
+                    f.length(l.value.value)
+                } else {
+                    f.d.quantity(l.value)
+                };
+                vec![l.name.clone(), expr, value]
+            })
+            .collect();
+        doc.table(&["Name", "Expression", "Value"], &rows, &[2]);
+    }
+    doc.h(3, "Materials");
+    let rows: Vec<Vec<String>> = model
+        .materials
+        .iter()
+        .map(|m| {
+            let opt =
+                |p: Option<uom::si::f64::Pressure>| p.map_or("—".into(), |p| f.stress(p.value));
+            let allow = match (
+                m.allowable_tension.or(m.allowable),
+                m.allowable_compression.or(m.allowable),
+            ) {
+                (None, None) => "—".to_string(),
+                (t, c) if t == c => opt(t),
+                (t, c) => format!("{} tension, {} compression", opt(t), opt(c)),
+            };
+            vec![
+                m.name.clone(),
+                f.stress(m.e.value),
+                m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
+                opt(m.yield_strength),
+                allow,
+            ]
+        })
+        .collect();
+    doc.table(
+        &["Material", "E", "α", "Yield", "Allowable"],
+        &rows,
+        &[1, 2, 3],
+    );
+
+    doc.h(3, "Nodes and supports");
+    let rows: Vec<Vec<String>> = model
+        .nodes
+        .iter()
+        .map(|n| {
+            let at = match model.kind {
+                Kind::Axial => f.length(n.x.value),
+                Kind::Plane => format!("({}, {})", f.length(n.x.value), f.length(n.y.value)),
+            };
+            let sup = match (model.kind, n.fixed) {
+                (Kind::Axial, [true, _]) | (Kind::Plane, [true, true]) => "fixed",
+                (Kind::Plane, [true, false]) => "fixed in x (roller)",
+                (Kind::Plane, [false, true]) => "fixed in y (roller)",
+                _ => "free",
+            };
+            vec![n.name.clone(), at, sup.to_string()]
+        })
+        .collect();
+    doc.table(&["Node", "Position", "Support"], &rows, &[1]);
+    for r in &model.rigids {
+        let names: Vec<String> = r
+            .nodes
+            .iter()
+            .map(|&n| format!("`{}`", model.nodes[n].name))
+            .collect();
+        doc.p(&format!(
+            "Rigid body `{}`: nodes {} move as one rigid body{}.",
+            r.name,
+            names.join(", "),
+            if model.kind == Kind::Plane {
+                format!(
+                    " (two translations and a small rotation θ about `{}`)",
+                    model.nodes[r.nodes[0]].name
+                )
+            } else {
+                String::new()
+            }
+        ));
+    }
+    for t in &model.ties {
+        let names: Vec<String> = t
+            .nodes
+            .iter()
+            .map(|&n| format!("`{}`", model.nodes[n].name))
+            .collect();
+        doc.p(&format!("Tie: nodes {} move together.", names.join(", ")));
+    }
+
+    doc.h(3, "Parts");
+    let rows: Vec<Vec<String>> = model
+        .parts
+        .iter()
+        .map(|p| {
+            let ends = format!(
+                "`{}` → `{}`",
+                model.nodes[p.ends[0]].name, model.nodes[p.ends[1]].name
+            );
+            let (mat, area) = match &p.law {
+                Law::Member {
+                    material,
+                    area,
+                    section,
+                    ..
+                } => (
+                    model.materials[*material].name.clone(),
+                    match section {
+                        Some(s) => format!("{} ({s})", f.area(area.value)),
+                        None => f.area(area.value),
+                    },
+                ),
+                Law::Spring { .. } => ("spring".into(), "—".into()),
+            };
+            let mut notes = Vec::new();
+            if p.carries != Carries::Both {
+                notes.push(format!("{} only", p.carries.name()));
+            }
+            if p.slack.value > 0.0 {
+                notes.push(format!("gap {}", f.small(p.slack.value)));
+            }
+            if p.misfit.value != 0.0 {
+                notes.push(format!("misfit {}", f.small(p.misfit.value)));
+            }
+            vec![
+                p.name.clone(),
+                ends,
+                mat,
+                area,
+                f.length(p.length.value),
+                f.stiffness(p.stiffness(&model.materials).value),
+                if notes.is_empty() {
+                    "—".into()
+                } else {
+                    notes.join(", ")
+                },
+            ]
+        })
+        .collect();
+    doc.table(
+        &["Part", "Ends", "Material", "A", "L", "k", "Notes"],
+        &rows,
+        &[3, 4, 5],
+    );
+    doc.p("Axial stiffness of each part:");
+    for p in &model.parts {
+        let k = p.stiffness(&model.materials).value;
+        match &p.law {
+            Law::Member { material, area, .. } => {
+                let e = model.materials[*material].e.value;
+                doc.eq(&format!(
+                    "k({}) = E·A / L = {} · {} / {} = {}",
+                    p.name,
+                    f.stress(e),
+                    f.area(area.value),
+                    f.with(p.length.value, &f.d.small),
+                    f.stiffness(k)
+                ));
+            }
+            Law::Spring { .. } => doc.eq(&format!(
+                "k({}) = {} (spring, as given)",
+                p.name,
+                f.stiffness(k)
+            )),
+        }
+    }
+    doc.end_list();
+
+    doc.h(3, "Load cases and combinations");
+    let mut rows = Vec::new();
+    for c in &model.cases {
+        let mut parts: Vec<String> = Vec::new();
+        for l in &c.loads {
+            let node = &model.nodes[l.node].name;
+            parts.push(match model.kind {
+                Kind::Axial => format!("load `{node}` {}", f.force(l.force[0].value)),
+                Kind::Plane => format!(
+                    "load `{node}` ({}, {})",
+                    f.force(l.force[0].value),
+                    f.force(l.force[1].value)
+                ),
+            });
+        }
+        for t in &c.temperatures {
+            let on = t.part.map_or("all parts".to_string(), |i| {
+                format!("`{}`", model.parts[i].name)
+            });
+            parts.push(format!(
+                "ΔT {} on {on}",
+                f.temp(t.change.value).trim_matches(['(', ')'])
+            ));
+        }
+        for s in &c.strains {
+            parts.push(format!(
+                "free strain {} µε on `{}`",
+                f.n(s.strain.value * 1e6),
+                model.parts[s.part].name
+            ));
+        }
+        for s in &c.settlements {
+            let dir = if model.kind == Kind::Plane {
+                if s.direction == 0 {
+                    " x"
+                } else {
+                    " y"
+                }
+            } else {
+                ""
+            };
+            parts.push(format!(
+                "`{}`{dir} moves {}",
+                model.nodes[s.node].name,
+                f.small(s.movement.value)
+            ));
+        }
+        rows.push(vec![
+            format!(
+                "`{}`{}",
+                c.name,
+                if c.sustained { " (sustained)" } else { "" }
+            ),
+            if parts.is_empty() {
+                "no loads (misfits only)".into()
+            } else {
+                parts.join("; ")
+            },
+        ]);
+    }
+    doc.table(&["Case", "Actions"], &rows, &[]);
+    let rows: Vec<Vec<String>> = (0..model.combinations.len())
+        .map(|i| {
+            vec![
+                format!("`{}`", model.combinations[i].name),
+                combination_text(model, i),
+            ]
+        })
+        .collect();
+    doc.table(&["Combination", "Definition"], &rows, &[]);
+    doc.p("Every combination is solved directly with its factored actions (never by adding case results), so parts that go slack behave right; misfits act in every combination at full value.");
+}
+
+/// Forces on the node components from parts (tension pulls end A toward B).
+fn part_terms(model: &Model, node: usize) -> Vec<(usize, f64, [f64; 2])> {
+    let mut out = Vec::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        for (end, sign) in [(0usize, 1.0), (1, -1.0)] {
+            if p.ends[end] == node {
+                let (a, b) = (&model.nodes[p.ends[0]], &model.nodes[p.ends[1]]);
+                let dir = match model.kind {
+                    Kind::Axial => [1.0, 0.0],
+                    Kind::Plane => {
+                        let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
+                        let l = dx.hypot(dy);
+                        [dx / l, dy / l]
+                    }
+                };
+                out.push((i, sign, dir));
+            }
+        }
+    }
+    out
+}
+
+#[allow(clippy::too_many_lines)]
+fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, ci: usize) {
+    let r = &solution.combinations[ci];
+    let combo = &model.combinations[ci];
+    doc.h(
+        2,
+        &format!("Combination `{}` = {}", r.name, combination_text(model, ci)),
+    );
+    let nd = model.kind.dofs();
+    let axis = ["x", "y"];
+    // Loads on each node component.
+    let mut loads = vec![[0.0f64; 2]; model.nodes.len()];
+    for &(case, factor) in &combo.terms {
+        for l in &model.cases[case].loads {
+            for d in 0..nd {
+                loads[l.node][d] += factor * l.force[d].value;
+            }
+        }
+    }
+    let in_body: Vec<bool> = (0..model.nodes.len())
+        .map(|n| {
+            model.rigids.iter().any(|b| b.nodes.contains(&n))
+                || model.ties.iter().any(|t| t.nodes.contains(&n))
+        })
+        .collect();
+
+    doc.h(3, "Equilibrium");
+    let mut first_equation = true;
+    for (n, node) in model.nodes.iter().enumerate() {
+        if in_body[n] {
+            continue;
+        }
+        for d in 0..nd {
+            if node.fixed[d] {
+                continue;
+            }
+            let terms = part_terms(model, n);
+            let mut sym = Vec::new();
+            let mut num = Vec::new();
+            for (i, sign, dir) in &terms {
+                let c = sign * dir[d];
+                if c == 0.0 {
+                    continue;
+                }
+                let name = &model.parts[*i].name;
+                let force = r.parts[*i].force.value;
+                if model.kind == Kind::Axial {
+                    sym.push(format!("{}N({name})", if c > 0.0 { "+ " } else { "- " }));
+                    num.push(format!(
+                        "{}{}",
+                        if c > 0.0 { "+ " } else { "- " },
+                        f.force_t(force)
+                    ));
+                } else {
+                    sym.push(format!("+ N({name})·c{}({name})", axis[d]));
+                    num.push(format!("+ {} · {}", f.force_t(force), f.plain(c)));
+                }
+            }
+            if loads[n][d] != 0.0 {
+                sym.push(format!("+ P{}", if nd == 2 { axis[d] } else { "" }));
+                num.push(format!("+ {}", f.force_t(loads[n][d])));
+            }
+            if num.is_empty() {
+                continue;
+            }
+            let clean = |v: Vec<String>| {
+                let s = v.join(" ");
+                s.strip_prefix("+ ").map_or(s.clone(), str::to_string)
+            };
+            let label = if nd == 2 {
+                format!("ΣF{} at `{}`", axis[d], node.name)
+            } else {
+                format!("ΣF at `{}`", node.name)
+            };
+            if first_equation {
+                doc.p("At each free node the part forces (N, tension positive, pulling the node toward the part's other end) and the loads (P) balance:");
+                first_equation = false;
+            }
+            doc.eq(&format!(
+                "{label}: {} = {} = {}",
+                clean(sym),
+                clean(num),
+                f.force(0.0)
+            ));
+        }
+    }
+    doc.end_list();
+    for b in &model.rigids {
+        if model.kind != Kind::Plane {
+            continue;
+        }
+        let x0 = model.nodes[b.nodes[0]].x.value;
+        let y0 = model.nodes[b.nodes[0]].y.value;
+        // Net force on each member from parts, loads and reactions.
+        let mut fx = Vec::new();
+        let mut moment_terms = Vec::new();
+        let mut fsum = [Vec::new(), Vec::new()];
+        for &n in &b.nodes {
+            let mut net = [loads[n][0], loads[n][1]];
+            for (i, sign, dir) in part_terms(model, n) {
+                for d in 0..2 {
+                    net[d] += sign * dir[d] * r.parts[i].force.value;
+                }
+            }
+            for d in 0..2 {
+                net[d] += r.nodes[n].reaction[d].value;
+            }
+            fx.push((n, net));
+        }
+        for (n, net) in &fx {
+            for d in 0..2 {
+                if net[d] != 0.0 {
+                    fsum[d].push(f.force_t(net[d]));
+                }
+            }
+            let (dx, dy) = (model.nodes[*n].x.value - x0, model.nodes[*n].y.value - y0);
+            if dx != 0.0 && net[1] != 0.0 {
+                moment_terms.push(format!("{} · {}", f.small_t(dx), f.force_t(net[1])));
+            }
+            if dy != 0.0 && net[0] != 0.0 {
+                moment_terms.push(format!("- {} · {}", f.small_t(dy), f.force_t(net[0])));
+            }
+        }
+        doc.p(&format!(
+            "Rigid body `{}`: the net forces on its nodes (parts, loads and reactions) balance in both directions and in moment about `{}`:",
+            b.name,
+            model.nodes[b.nodes[0]].name
+        ));
+        for d in 0..2 {
+            if !fsum[d].is_empty() {
+                doc.eq(&format!(
+                    "ΣF{} = {} = {}",
+                    axis[d],
+                    fsum[d].join(" + "),
+                    f.force(0.0)
+                ));
+            }
+        }
+        if !moment_terms.is_empty() {
+            let joined = moment_terms.join(" + ").replace("+ - ", "- ");
+            doc.eq(&format!(
+                "ΣM = Σ (Δx·Fy − Δy·Fx) = {joined} = 0 {}·{}",
+                f.d.force.name, f.d.small.name
+            ));
+        }
+        doc.end_list();
+    }
+
+    doc.h(3, "Compatibility");
+    // Parts that span the same two nodes share one elongation.
+    let mut groups: Vec<(usize, usize, Vec<usize>)> = Vec::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
+        match groups.iter_mut().find(|g| (g.0, g.1) == key) {
+            Some(g) => g.2.push(i),
+            None => groups.push((key.0, key.1, vec![i])),
+        }
+    }
+    doc.p("Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:");
+    for p in model.parts.iter().enumerate() {
+        let (i, p) = p;
+        let (a, b) = (p.ends[0], p.ends[1]);
+        let (na, nb) = (&model.nodes[a].name, &model.nodes[b].name);
+        let ua = &r.nodes[a].displacement;
+        let ub = &r.nodes[b].displacement;
+        match model.kind {
+            Kind::Axial => doc.eq(&format!(
+                "δ({}) = u({nb}) - u({na}) = {} - {} = {}",
+                p.name,
+                f.small_t(ub[0].value),
+                f.small_t(ua[0].value),
+                f.small(r.parts[i].elongation.value)
+            )),
+            Kind::Plane => {
+                let (ax, ay) = (model.nodes[a].x.value, model.nodes[a].y.value);
+                let (bx, by) = (model.nodes[b].x.value, model.nodes[b].y.value);
+                let l = (bx - ax).hypot(by - ay);
+                let (cx, cy) = ((bx - ax) / l, (by - ay) / l);
+                doc.eq(&format!(
+                    "δ({}) = (u({nb}) - u({na}))·cx + (v({nb}) - v({na}))·cy = ({} - {}) · {} + ({} - {}) · {} = {}",
+                    p.name,
+                    f.small_t(ub[0].value),
+                    f.small_t(ua[0].value),
+                    f.plain(cx),
+                    f.small_t(ub[1].value),
+                    f.small_t(ua[1].value),
+                    f.plain(cy),
+                    f.small(r.parts[i].elongation.value)
+                ));
+            }
+        }
+    }
+    doc.end_list();
+    for (_, _, g) in groups.iter().filter(|g| g.2.len() > 1) {
+        let names: Vec<String> = g
+            .iter()
+            .map(|&i| format!("δ({})", model.parts[i].name))
+            .collect();
+        doc.p(&format!(
+            "Parts spanning the same two nodes share one elongation: {} = {}.",
+            names.join(" = "),
+            f.small(r.parts[g[0]].elongation.value)
+        ));
+    }
+    if model.kind == Kind::Plane {
+        for (k, b) in model.rigids.iter().enumerate() {
+            let n0 = b.nodes[0];
+            let theta = r.rotations[k];
+            doc.p(&format!(
+                "Rigid body `{}` rotates θ = {} rad about `{}`; each of its nodes moves with it, v = v({}) + θ·Δx and u = u({}) − θ·Δy:",
+                b.name,
+                f.n(theta),
+                model.nodes[n0].name,
+                model.nodes[n0].name,
+                model.nodes[n0].name
+            ));
+            for &n in &b.nodes[1..] {
+                let dx = model.nodes[n].x.value - model.nodes[n0].x.value;
+                let dy = model.nodes[n].y.value - model.nodes[n0].y.value;
+                doc.eq(&format!(
+                    "v({}) = {} + {} · {} = {}",
+                    model.nodes[n].name,
+                    f.small_t(r.nodes[n0].displacement[1].value),
+                    f.plain_rad(theta),
+                    f.small_t(dx),
+                    f.small(r.nodes[n].displacement[1].value)
+                ));
+                if dy != 0.0 {
+                    doc.eq(&format!(
+                        "u({}) = {} - {} · {} = {}",
+                        model.nodes[n].name,
+                        f.small_t(r.nodes[n0].displacement[0].value),
+                        f.plain_rad(theta),
+                        f.small_t(dy),
+                        f.small(r.nodes[n].displacement[0].value)
+                    ));
+                }
+            }
+            doc.end_list();
+        }
+    }
+
+    doc.h(3, "Part forces and stresses");
+    for (i, p) in model.parts.iter().enumerate() {
+        let pr = &r.parts[i];
+        let k = p.stiffness(&model.materials).value;
+        let free = pr.free_elongation.value;
+        let _ = writeln!(doc.out, "**{}**\n", p.name);
+        // Free elongation from its sources.
+        let mut sources = Vec::new();
+        let mut num = Vec::new();
+        if p.misfit.value != 0.0 {
+            sources.push("misfit".to_string());
+            num.push(f.small_t(p.misfit.value));
+        }
+        if let Some(m) = p.material() {
+            let mat = &model.materials[m];
+            for &(case, factor) in &combo.terms {
+                let c = &model.cases[case];
+                let t = c
+                    .temperatures
+                    .iter()
+                    .find(|t| t.part == Some(i))
+                    .or_else(|| c.temperatures.iter().find(|t| t.part.is_none()));
+                if let (Some(t), Some(alpha)) = (t, mat.alpha) {
+                    sources.push(if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor}·α·ΔT·L")
+                    } else {
+                        "α·ΔT·L".into()
+                    });
+                    let fac = if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor} · ")
+                    } else {
+                        String::new()
+                    };
+                    num.push(format!(
+                        "{fac}{} · {} · {}",
+                        f.alpha(alpha.value),
+                        f.temp(t.change.value),
+                        f.with(p.length.value, &f.d.small)
+                    ));
+                }
+                if let Some(s) = c.strains.iter().find(|s| s.part == i) {
+                    let fac = if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor} · ")
+                    } else {
+                        String::new()
+                    };
+                    sources.push(if fac.is_empty() {
+                        "ε·L".into()
+                    } else {
+                        format!("{factor}·ε·L")
+                    });
+                    num.push(format!(
+                        "{fac}{} · {}",
+                        f.plain(s.strain.value),
+                        f.with(p.length.value, &f.d.small)
+                    ));
+                }
+            }
+        }
+        if !sources.is_empty() {
+            doc.eq(&format!(
+                "δ₀ = {} = {} = {}",
+                sources.join(" + "),
+                num.join(" + "),
+                f.small(free)
+            ));
+        }
+        match pr.state {
+            PartState::Slack => {
+                let gap = if p.slack.value > 0.0 {
+                    format!("within its gap of {}", f.small(p.slack.value))
+                } else {
+                    format!("in the sense it cannot carry ({} only)", p.carries.name())
+                };
+                let _ = writeln!(
+                    doc.out,
+                    "- N = 0 {}: the part is slack; its free movement δ − δ₀ of {} is {gap}",
+                    f.d.force.name,
+                    f.small(pr.elongation.value - free)
+                );
+            }
+            PartState::Elastic => {
+                let offset = match p.carries {
+                    _ if p.slack.value == 0.0 => 0.0,
+                    Carries::Tension => p.slack.value,
+                    Carries::Compression => -p.slack.value,
+                    Carries::Both => {
+                        if pr.force.value >= 0.0 {
+                            p.slack.value
+                        } else {
+                            -p.slack.value
+                        }
+                    }
+                };
+                if offset == 0.0 {
+                    doc.eq(&format!(
+                        "N = k·(δ − δ₀) = {} · ({} - {}) = {}",
+                        f.stiffness(k),
+                        f.small_t(pr.elongation.value),
+                        f.small_t(free),
+                        f.force(pr.force.value)
+                    ));
+                } else {
+                    doc.eq(&format!(
+                        "N = k·(δ − δ₀ − gap) = {} · ({} - {} - {}) = {}",
+                        f.stiffness(k),
+                        f.small_t(pr.elongation.value),
+                        f.small_t(free),
+                        f.small_t(offset),
+                        f.force(pr.force.value)
+                    ));
+                }
+                if let (Some(area), Some(stress)) = (p.area(), pr.stress) {
+                    doc.eq(&format!(
+                        "σ = N / A = {} / {} = {}",
+                        f.force_t(pr.force.value),
+                        f.area(area.value),
+                        f.stress(stress.value)
+                    ));
+                    let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
+                    let extra = if offset == 0.0 {
+                        String::new()
+                    } else {
+                        format!(" + {}", f.small_t(offset))
+                    };
+                    doc.eq(&format!(
+                        "δ = N·L / (E·A) + δ₀{} = {} · {} / ({} · {}) + {}{extra} = {}",
+                        if offset == 0.0 { "" } else { " + gap" },
+                        f.force_t(pr.force.value),
+                        f.with(p.length.value, &f.d.small),
+                        f.stress(e),
+                        f.area(area.value),
+                        f.small_t(free),
+                        f.small(pr.elongation.value)
+                    ));
+                }
+            }
+        }
+        doc.end_list();
+    }
+
+    // Closed-form share for a pure parallel group.
+    for (a, b, g) in groups.iter().filter(|g| g.2.len() > 1) {
+        if model.kind != Kind::Axial {
+            continue;
+        }
+        let (fixed, free_node) = if model.nodes[*a].fixed[0] {
+            (*a, *b)
+        } else {
+            (*b, *a)
+        };
+        let only = model
+            .parts
+            .iter()
+            .filter(|p| p.ends.contains(&free_node))
+            .count()
+            == g.len();
+        let pure = model.nodes[fixed].fixed[0]
+            && !model.nodes[free_node].fixed[0]
+            && !in_body[free_node]
+            && only
+            && g.iter().all(|&i| {
+                r.parts[i].free_elongation.value == 0.0
+                    && r.parts[i].state == PartState::Elastic
+                    && model.parts[i].slack.value == 0.0
+            })
+            && loads[free_node][0] != 0.0
+            && r.nodes[fixed].displacement[0].value == 0.0;
+        if !pure {
+            continue;
+        }
+        let p_load = loads[free_node][0];
+        // Sign: the load pushes the free node; parts from fixed to free elongate with it.
+        let ks: Vec<f64> = g
+            .iter()
+            .map(|&i| model.parts[i].stiffness(&model.materials).value)
+            .collect();
+        let sum: f64 = ks.iter().sum();
+        doc.p(&format!(
+            "The parts between `{}` and `{}` act in parallel: each takes the load in proportion to its stiffness, F(i) = P·k(i) / Σk:",
+            model.nodes[fixed].name, model.nodes[free_node].name
+        ));
+        let ksum = ks
+            .iter()
+            .map(|k| f.stiffness(*k))
+            .collect::<Vec<_>>()
+            .join(" + ");
+        for (j, &i) in g.iter().enumerate() {
+            let sign = if model.parts[i].ends[1] == free_node {
+                1.0
+            } else {
+                -1.0
+            };
+            let share = sign * p_load * ks[j] / sum;
+            doc.eq(&format!(
+                "F({}) = P·k({}) / Σk = {}{} · {} / ({ksum}) = {}",
+                model.parts[i].name,
+                model.parts[i].name,
+                if sign < 0.0 { "-" } else { "" },
+                f.force_t(p_load),
+                f.stiffness(ks[j]),
+                f.force(share)
+            ));
+        }
+        doc.end_list();
+    }
+
+    doc.h(3, "Reactions");
+    let mut rows = Vec::new();
+    let mut sum_r = [Vec::new(), Vec::new()];
+    let mut sum_p = [Vec::new(), Vec::new()];
+    for (n, node) in model.nodes.iter().enumerate() {
+        for d in 0..nd {
+            if loads[n][d] != 0.0 {
+                sum_p[d].push(f.force_t(loads[n][d]));
+            }
+        }
+        if !node.fixed.iter().take(nd).any(|x| *x) {
+            continue;
+        }
+        let mut row = vec![format!("`{}`", node.name)];
+        for d in 0..nd {
+            if node.fixed[d] {
+                row.push(f.force(r.nodes[n].reaction[d].value));
+                if r.nodes[n].reaction[d].value != 0.0 {
+                    sum_r[d].push(f.force_t(r.nodes[n].reaction[d].value));
+                }
+            } else {
+                row.push("—".into());
+            }
+        }
+        rows.push(row);
+    }
+    if nd == 1 {
+        doc.table(&["Node", "R"], &rows, &[1]);
+    } else {
+        doc.table(&["Node", "Rx", "Ry"], &rows, &[1, 2]);
+    }
+    doc.p("Overall equilibrium, reactions and loads together:");
+    for d in 0..nd {
+        let mut all: Vec<String> = sum_r[d].clone();
+        all.extend(sum_p[d].iter().cloned());
+        if all.is_empty() {
+            all.push(f.force(0.0));
+        }
+        let label = if nd == 2 {
+            format!("ΣR{} + ΣP{}", axis[d], axis[d])
+        } else {
+            "ΣR + ΣP".into()
+        };
+        doc.eq(&format!("{label} = {} = {}", all.join(" + "), f.force(0.0)));
+    }
+    doc.end_list();
+    doc.p(&format!(
+        "Largest out-of-balance force computed from the unrounded part forces, loads and reactions: {} (largest force in the combination {}).",
+        if r.equilibrium_residual.value == 0.0 {
+            format!("0 {}", f.d.force.name)
+        } else {
+            format!("{:.1e} {}", f.d.force.value(r.equilibrium_residual.value), f.d.force.name)
+        },
+        f.force(r.force_scale.value)
+    ));
+}
+
+impl Fmt<'_> {
+    fn plain_rad(&self, v: f64) -> String {
+        let s = format!("{} rad", self.n(v));
+        if s.starts_with('-') {
+            format!("({s})")
+        } else {
+            s
+        }
+    }
+}
