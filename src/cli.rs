@@ -76,6 +76,20 @@ pub enum Command {
         #[command(flatten)]
         show: Show,
     },
+    /// Rewrite calc files in the canonical layout (two-space blocks, aligned
+    /// `=`, one blank line between declarations, comments kept).
+    ///
+    /// A file that does not parse is never written; files are replaced
+    /// atomically. With `--check`, nothing is written: the files that would
+    /// change are listed and the exit code is 1 if there are any.
+    Fmt {
+        /// Calc files (`.tandem`).
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
+        /// List the files that are not formatted, and change nothing.
+        #[arg(long)]
+        check: bool,
+    },
     /// List every unit tandem knows, with its dimension and factor to SI.
     Units,
 }

@@ -13,6 +13,7 @@ pub mod diagnostic;
 pub mod model;
 pub mod output;
 pub mod report;
+pub mod review;
 pub mod solve;
 pub mod source;
 pub mod syntax;

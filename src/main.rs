@@ -33,6 +33,7 @@ fn main() -> ExitCode {
             html,
             show,
         } => report(&files, output.as_deref(), html, &show),
+        Command::Fmt { files, check } => fmt(&files, check),
         Command::Units => {
             print!("{}", tandem::units::listing());
             ExitCode::SUCCESS
@@ -237,6 +238,39 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
         }
     }
     if code == ExitCode::SUCCESS && failed_check {
+        ExitCode::from(1)
+    } else {
+        code
+    }
+}
+
+fn fmt(files: &[PathBuf], check: bool) -> ExitCode {
+    let mut code = ExitCode::SUCCESS;
+    let mut unformatted = false;
+    for path in files {
+        let Some(source) = read(path) else {
+            code = bad();
+            continue;
+        };
+        match tandem::review::fmt::format(&source) {
+            Ok(text) if text == source.text => {}
+            Ok(text) => {
+                if check {
+                    println!("{}", source.name);
+                    unformatted = true;
+                } else if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
+                    eprintln!("error: cannot write {}: {e}", path.display());
+                    code = bad();
+                }
+            }
+            Err(errors) => {
+                let errors: Vec<tandem::Error> = errors.into_iter().map(Into::into).collect();
+                report_errors(&errors, &source);
+                code = bad();
+            }
+        }
+    }
+    if code == ExitCode::SUCCESS && unformatted {
         ExitCode::from(1)
     } else {
         code

@@ -1,0 +1,540 @@
+//! The canonical layout of a calc file (`tandem fmt`).
+//!
+//! Blocks are indented two spaces with `=` aligned inside them; runs of
+//! one-line declarations of one keyword stay together with their `=` (or
+//! `at`, `:`) aligned; one blank line separates everything else. Comments
+//! stay where they were: an own-line comment before the line it preceded, a
+//! trailing comment at the end of its line. Expressions, numbers and units
+//! are kept as written (runs of blanks inside them fold to one space), so the
+//! formatted file means exactly what the original did.
+
+use crate::source::{Source, Span};
+use crate::syntax::ast::{self, Axis, Compare, Coord, Decl, Stmt, Value};
+use crate::syntax::SyntaxError;
+
+/// A comment in the source.
+#[derive(Clone, Debug)]
+struct Comment {
+    start: usize,
+    line: usize,
+    trailing: bool,
+    text: String,
+}
+
+fn line_starts(text: &str) -> Vec<usize> {
+    let mut v = vec![0];
+    for (i, b) in text.bytes().enumerate() {
+        if b == b'\n' {
+            v.push(i + 1);
+        }
+    }
+    v
+}
+
+fn line_of(starts: &[usize], offset: usize) -> usize {
+    starts.partition_point(|&s| s <= offset).saturating_sub(1)
+}
+
+fn comments(text: &str, starts: &[usize]) -> Vec<Comment> {
+    let bytes = text.as_bytes();
+    let mut out = Vec::new();
+    let mut i = 0;
+    while i < bytes.len() {
+        match bytes[i] {
+            b'"' => {
+                i += 1;
+                while i < bytes.len() && bytes[i] != b'"' && bytes[i] != b'\n' {
+                    if bytes[i] == b'\\' {
+                        i += 1;
+                    }
+                    i += 1;
+                }
+            }
+            b'#' => {
+                let start = i;
+                while i < bytes.len() && bytes[i] != b'\n' {
+                    i += 1;
+                }
+                let line = line_of(starts, start);
+                let before = &text[starts[line]..start];
+                out.push(Comment {
+                    start,
+                    line,
+                    trailing: !before.trim().is_empty(),
+                    text: text[start..i].trim_end().to_string(),
+                });
+                continue;
+            }
+            _ => {}
+        }
+        i += 1;
+    }
+    out
+}
+
+/// One output line: `left` is padded to the group's width before `right`.
+#[derive(Clone, Debug, Default)]
+struct Line {
+    indent: usize,
+    left: String,
+    right: String,
+    comment: Option<String>,
+    /// Own-line comments to print before this line.
+    before: Vec<String>,
+    /// Where this line starts and which source line it ends on (for comments).
+    anchor: usize,
+    last_line: usize,
+}
+
+/// A declaration as output lines: one line, or a block of lines.
+#[derive(Clone, Debug)]
+struct Item {
+    /// Keyword of a one-line declaration (for runs), `None` for blocks.
+    run: Option<&'static str>,
+    lines: Vec<Line>,
+    /// Lines of a block body (aligned together).
+    body: std::ops::Range<usize>,
+}
+
+fn fold(s: &str) -> String {
+    s.split_whitespace().collect::<Vec<_>>().join(" ")
+}
+
+struct Ctx<'a> {
+    text: &'a str,
+    starts: Vec<usize>,
+}
+
+impl Ctx<'_> {
+    fn slice(&self, sp: Span) -> String {
+        fold(self.text.get(sp.start..sp.end).unwrap_or(""))
+    }
+    fn line(&self, offset: usize) -> usize {
+        line_of(&self.starts, offset)
+    }
+    fn coord(&self, c: &Coord) -> (String, usize) {
+        match c {
+            Coord::Axial(e) => (self.slice(e.span), e.span.end),
+            Coord::Plane(x, y, sp) => (
+                format!("({}, {})", self.slice(x.span), self.slice(y.span)),
+                sp.end,
+            ),
+        }
+    }
+    fn single(&self, left: String, right: String, start: usize, end: usize) -> Line {
+        Line {
+            indent: 0,
+            left,
+            right,
+            anchor: start,
+            last_line: self.line(end.saturating_sub(1).max(start)),
+            ..Line::default()
+        }
+    }
+    fn stmt(&self, s: &Stmt) -> Line {
+        let axis = |a: &Option<(Axis, Span)>| match a {
+            Some((Axis::X, _)) => " x",
+            Some((Axis::Y, _)) => " y",
+            None => "",
+        };
+        let (left, right, end) = match s {
+            Stmt::Load { node, force, .. } => {
+                let (c, end) = self.coord(force);
+                (format!("load {}", node.name), format!("= {c}"), end)
+            }
+            Stmt::Temperature { part, change, .. } => (
+                match part {
+                    Some(p) => format!("temperature {}", p.name),
+                    None => "temperature".into(),
+                },
+                format!("= {}", self.slice(change.span)),
+                change.span.end,
+            ),
+            Stmt::Strain { part, value, .. } => (
+                format!("strain {}", part.name),
+                format!("= {}", self.slice(value.span)),
+                value.span.end,
+            ),
+            Stmt::Settle {
+                node,
+                axis: a,
+                movement,
+                ..
+            } => (
+                format!("settle {}{}", node.name, axis(a)),
+                format!("= {}", self.slice(movement.span)),
+                movement.span.end,
+            ),
+        };
+        self.single(left, right, s.span().start, end)
+    }
+
+    fn block(&self, header: &str, start: usize, block: &ast::Block) -> Item {
+        let mut lines = vec![Line {
+            left: format!("{header} {{"),
+            anchor: start,
+            last_line: self.line(block.span.start),
+            ..Line::default()
+        }];
+        for e in &block.entries {
+            let (value, end) = match &e.value {
+                Value::Str(s) => (self.slice(s.span), s.span.end),
+                Value::Exprs(list) => (
+                    list.iter()
+                        .map(|x| self.slice(x.span))
+                        .collect::<Vec<_>>()
+                        .join(", "),
+                    list.last().map_or(e.key.span.end, |x| x.span.end),
+                ),
+            };
+            let mut l = self.single(
+                e.key.name.clone(),
+                format!("= {value}"),
+                e.key.span.start,
+                end,
+            );
+            l.indent = 2;
+            lines.push(l);
+        }
+        let close = block.span.end.saturating_sub(1);
+        lines.push(Line {
+            left: "}".into(),
+            anchor: close,
+            last_line: self.line(close),
+            ..Line::default()
+        });
+        let n = lines.len();
+        Item {
+            run: None,
+            lines,
+            body: 1..n - 1,
+        }
+    }
+
+    fn item(&self, d: &Decl) -> Item {
+        let one = |run: &'static str, line: Line| Item {
+            run: Some(run),
+            lines: vec![line],
+            body: 0..0,
+        };
+        match d {
+            Decl::Calc(b) => self.block("calc", b.span.start, b),
+            Decl::Material(nb) => self.block(
+                format!("material {}", nb.name.name),
+                nb.span.start,
+                &nb.block,
+            ),
+            Decl::Part(nb) => {
+                self.block(&format!("part {}", nb.name.name), nb.span.start, &nb.block)
+            }
+            Decl::Rigid(nb) => {
+                self.block(&format!("rigid {}", nb.name.name), nb.span.start, &nb.block)
+            }
+            Decl::Let(l) => one(
+                "let",
+                self.single(
+                    format!("let {}", l.name.name),
+                    format!("= {}", self.slice(l.value.span)),
+                    l.span.start,
+                    l.value.span.end,
+                ),
+            ),
+            Decl::Node(n) => {
+                let (c, end) = self.coord(&n.at);
+                one(
+                    "node",
+                    self.single(
+                        format!("node {}", n.name.name),
+                        format!("at {c}"),
+                        n.span.start,
+                        end,
+                    ),
+                )
+            }
+            Decl::Fix(list) => {
+                let text: Vec<String> = list
+                    .iter()
+                    .map(|s| match s.axis {
+                        Some((Axis::X, _)) => format!("{} x", s.node.name),
+                        Some((Axis::Y, _)) => format!("{} y", s.node.name),
+                        None => s.node.name.clone(),
+                    })
+                    .collect();
+                let start = list.first().map_or(0, |s| s.span.start);
+                let end = list
+                    .last()
+                    .map_or(start, |s| s.axis.map_or(s.node.span.end, |a| a.1.end));
+                // the keyword sits just before the first support
+                let kw = self.text[..start].rfind("fix").unwrap_or(start);
+                one(
+                    "fix",
+                    self.single(format!("fix {}", text.join(", ")), String::new(), kw, end),
+                )
+            }
+            Decl::Tie(t) => {
+                let names: Vec<&str> = t.nodes.iter().map(|n| n.name.as_str()).collect();
+                let end = t.nodes.last().map_or(t.span.start, |n| n.span.end);
+                one(
+                    "tie",
+                    self.single(
+                        format!("tie {}", names.join(", ")),
+                        String::new(),
+                        t.span.start,
+                        end,
+                    ),
+                )
+            }
+            Decl::Combine(c) => {
+                let end = c.terms.last().map_or(c.name.span.end, |t| t.span.end);
+                let after_name = &self.text[c.name.span.end..end];
+                let eq = after_name
+                    .find('=')
+                    .map_or(c.name.span.end, |i| c.name.span.end + i + 1);
+                let terms = self.slice(Span::new(eq, end));
+                one(
+                    "combine",
+                    self.single(
+                        format!("combine {}", c.name.name),
+                        format!("= {terms}"),
+                        c.span.start,
+                        end,
+                    ),
+                )
+            }
+            Decl::Check(c) => {
+                let op = match c.op {
+                    Compare::Le => "<=",
+                    Compare::Lt => "<",
+                    Compare::Ge => ">=",
+                    Compare::Gt => ">",
+                };
+                one(
+                    "check",
+                    self.single(
+                        format!("check {}", self.slice(c.label.span)),
+                        format!(
+                            ": {} {op} {}",
+                            self.slice(c.lhs.span),
+                            self.slice(c.rhs.span)
+                        ),
+                        c.span.start,
+                        c.rhs.span.end,
+                    ),
+                )
+            }
+            Decl::Units(u) => {
+                let (text, end) = match u {
+                    ast::Units::System(id) => (id.name.clone(), id.span.end),
+                    ast::Units::List(list) => (
+                        list.iter()
+                            .map(|x| self.slice(x.span))
+                            .collect::<Vec<_>>()
+                            .join(", "),
+                        list.last().map_or(0, |x| x.span.end),
+                    ),
+                };
+                let start = self.text[..end].rfind("units").unwrap_or(0);
+                one(
+                    "units",
+                    self.single(format!("units {text}"), String::new(), start, end),
+                )
+            }
+            Decl::Stmt(s) => one("stmt", self.stmt(s)),
+            Decl::Case(c) => {
+                let flags: String = c
+                    .flags
+                    .iter()
+                    .fold(String::new(), |acc, f| acc + " " + &f.name);
+                let header = format!("case {}{flags}", c.name.name);
+                let body_open = c.stmts.first().map_or(c.span.end, |s| s.span().start);
+                let open = self.text[c.name.span.end..body_open]
+                    .find('{')
+                    .map_or(c.name.span.end, |i| c.name.span.end + i);
+                let close = self.text[..c.span.end].rfind('}').unwrap_or(c.span.end);
+                let has_comment_inside = self.text[open..close].contains('#');
+                if c.stmts.len() <= 1 && !has_comment_inside {
+                    let inner = c.stmts.first().map(|s| {
+                        let l = self.stmt(s);
+                        format!("{} {}", l.left, l.right)
+                    });
+                    let code = match inner {
+                        Some(s) => format!("{{ {s} }}"),
+                        None => "{ }".to_string(),
+                    };
+                    return one("case", self.single(header, code, c.span.start, close + 1));
+                }
+                let mut lines = vec![Line {
+                    left: format!("{header} {{"),
+                    anchor: c.span.start,
+                    last_line: self.line(open),
+                    ..Line::default()
+                }];
+                for s in &c.stmts {
+                    let mut l = self.stmt(s);
+                    l.indent = 2;
+                    lines.push(l);
+                }
+                lines.push(Line {
+                    left: "}".into(),
+                    anchor: close,
+                    last_line: self.line(close),
+                    ..Line::default()
+                });
+                let n = lines.len();
+                Item {
+                    run: None,
+                    lines,
+                    body: 1..n - 1,
+                }
+            }
+        }
+    }
+}
+
+/// Pad `left`s of a group of lines to a common width and align their
+/// trailing comments.
+fn align(lines: &mut [Line]) {
+    let width = lines
+        .iter()
+        .filter(|l| !l.right.is_empty())
+        .map(|l| l.left.chars().count())
+        .max()
+        .unwrap_or(0);
+    let mut code_width = 0;
+    for l in lines.iter_mut() {
+        if !l.right.is_empty() {
+            let pad = width - l.left.chars().count();
+            l.left = format!("{}{} {}", l.left, " ".repeat(pad), l.right);
+            l.right.clear();
+        }
+        if l.comment.is_some() {
+            code_width = code_width.max(l.indent + l.left.chars().count());
+        }
+    }
+    for l in lines.iter_mut() {
+        if let Some(c) = &l.comment {
+            let pad = code_width - l.indent - l.left.chars().count();
+            l.left = format!("{}{}  {c}", l.left, " ".repeat(pad));
+            l.comment = None;
+        }
+    }
+}
+
+/// Format a calc file.
+///
+/// # Errors
+/// The syntax errors of a file that does not parse (it is then left alone).
+pub fn format(source: &Source) -> Result<String, Vec<SyntaxError>> {
+    let file = crate::syntax::parse(&source.text)?;
+    let ctx = Ctx {
+        text: &source.text,
+        starts: line_starts(&source.text),
+    };
+    let mut items: Vec<Item> = file.decls.iter().map(|d| ctx.item(d)).collect();
+
+    // Attach comments: own-line ones to the next line that starts after them,
+    // trailing ones to the innermost line ending on their source line.
+    let mut tail: Vec<String> = Vec::new();
+    for c in comments(&source.text, &ctx.starts) {
+        let mut target: Option<(usize, usize)> = None;
+        if c.trailing {
+            for (i, it) in items.iter().enumerate() {
+                for (j, l) in it.lines.iter().enumerate() {
+                    if l.last_line == c.line && l.anchor < c.start {
+                        target = Some((i, j));
+                    }
+                }
+            }
+        }
+        if target.is_none() {
+            'find: for (i, it) in items.iter().enumerate() {
+                for (j, l) in it.lines.iter().enumerate() {
+                    if l.anchor > c.start {
+                        target = Some((i, j));
+                        break 'find;
+                    }
+                }
+            }
+            match target {
+                Some((i, j)) => items[i].lines[j].before.push(c.text),
+                None => tail.push(c.text),
+            }
+            continue;
+        }
+        if let Some((i, j)) = target {
+            let l = &mut items[i].lines[j];
+            match &mut l.comment {
+                Some(existing) => {
+                    existing.push(' ');
+                    existing.push_str(&c.text);
+                }
+                None => l.comment = Some(c.text),
+            }
+        }
+    }
+
+    // Align block bodies and runs of one-line declarations.
+    for it in &mut items {
+        let body = it.body.clone();
+        if !body.is_empty() {
+            align(&mut it.lines[body]);
+        }
+    }
+    let mut out = String::new();
+    let mut i = 0;
+    while i < items.len() {
+        let mut j = i + 1;
+        if let Some(kw) = items[i].run {
+            while j < items.len() && items[j].run == Some(kw) {
+                j += 1;
+            }
+            let mut run: Vec<Line> = items[i..j].iter().map(|it| it.lines[0].clone()).collect();
+            align(&mut run);
+            for (k, l) in run.into_iter().enumerate() {
+                items[i + k].lines[0] = l;
+            }
+        } else {
+            for l in &mut items[i].lines {
+                if l.comment.is_some() || !l.right.is_empty() {
+                    align(std::slice::from_mut(l));
+                }
+            }
+        }
+        if i > 0 {
+            out.push('\n');
+        }
+        for it in &items[i..j] {
+            for l in &it.lines {
+                let pad = " ".repeat(l.indent);
+                // comments before a closing brace belong to the block's body
+                let before_pad = if l.left == "}" {
+                    "  ".to_string()
+                } else {
+                    pad.clone()
+                };
+                for b in &l.before {
+                    out.push_str(&format!("{before_pad}{b}\n"));
+                }
+                let mut text = l.left.clone();
+                if !l.right.is_empty() {
+                    text = format!("{text} {}", l.right);
+                }
+                if let Some(c) = &l.comment {
+                    text = format!("{text}  {c}");
+                }
+                out.push_str(&format!("{pad}{text}\n"));
+            }
+        }
+        i = j;
+    }
+    if !tail.is_empty() {
+        if !out.is_empty() {
+            out.push('\n');
+        }
+        for t in tail {
+            out.push_str(&t);
+            out.push('\n');
+        }
+    }
+    Ok(out)
+}

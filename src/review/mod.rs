@@ -1,0 +1,4 @@
+//! Review tools: the canonical formatter, the revision diff and the
+//! parameter sweep.
+
+pub mod fmt;
