@@ -220,7 +220,7 @@ impl Ctx<'_> {
         match d {
             Decl::Calc(b) => self.block("calc", b.span.start, b),
             Decl::Material(nb) => self.block(
-                format!("material {}", nb.name.name),
+                &format!("material {}", nb.name.name),
                 nb.span.start,
                 &nb.block,
             ),
