@@ -83,7 +83,7 @@ struct Line {
     before: Vec<String>,
     /// Where this line starts and which source line it ends on (for comments).
     anchor: usize,
-    last_line: usize,
+    ends_on: usize,
 }
 
 /// A declaration as output lines: one line, or a block of lines.
@@ -127,7 +127,7 @@ impl Ctx<'_> {
             left,
             right,
             anchor: start,
-            last_line: self.line(end.saturating_sub(1).max(start)),
+            ends_on: self.line(end.saturating_sub(1).max(start)),
             ..Line::default()
         }
     }
@@ -173,7 +173,7 @@ impl Ctx<'_> {
         let mut lines = vec![Line {
             left: format!("{header} {{"),
             anchor: start,
-            last_line: self.line(block.span.start),
+            ends_on: self.line(block.span.start),
             ..Line::default()
         }];
         for e in &block.entries {
@@ -200,7 +200,7 @@ impl Ctx<'_> {
         lines.push(Line {
             left: "}".into(),
             anchor: close,
-            last_line: self.line(close),
+            ends_on: self.line(close),
             ..Line::default()
         });
         let n = lines.len();
@@ -366,7 +366,7 @@ impl Ctx<'_> {
                 let mut lines = vec![Line {
                     left: format!("{header} {{"),
                     anchor: c.span.start,
-                    last_line: self.line(open),
+                    ends_on: self.line(open),
                     ..Line::default()
                 }];
                 for s in &c.stmts {
@@ -377,7 +377,7 @@ impl Ctx<'_> {
                 lines.push(Line {
                     left: "}".into(),
                     anchor: close,
-                    last_line: self.line(close),
+                    ends_on: self.line(close),
                     ..Line::default()
                 });
                 let n = lines.len();
@@ -440,7 +440,7 @@ pub fn format(source: &Source) -> Result<String, Vec<SyntaxError>> {
         if c.trailing {
             for (i, it) in items.iter().enumerate() {
                 for (j, l) in it.lines.iter().enumerate() {
-                    if l.last_line == c.line && l.anchor < c.start {
+                    if l.ends_on == c.line && l.anchor < c.start {
                         target = Some((i, j));
                     }
                 }
