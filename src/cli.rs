@@ -76,6 +76,26 @@ pub enum Command {
         #[command(flatten)]
         show: Show,
     },
+    /// Show what a revision changed: inputs, parts and nodes added or
+    /// removed, results per combination, and the checks (status flips first).
+    ///
+    /// OLD may be `REV:PATH` to read it from git (`git show REV:PATH`), e.g.
+    /// `tandem diff HEAD~1:calcs/post.tandem calcs/post.tandem`. Exit code 1
+    /// when a check that passed now fails, 2 on an error.
+    Diff {
+        /// The earlier revision (a file, or `REV:PATH`).
+        old: String,
+        /// The later revision.
+        new: PathBuf,
+        /// Smallest change of a result to list, in percent.
+        #[arg(long, default_value_t = 0.1, value_name = "PERCENT")]
+        min_change: f64,
+        /// Write JSON instead of Markdown.
+        #[arg(long)]
+        json: bool,
+        #[command(flatten)]
+        show: Show,
+    },
     /// Rewrite calc files in the canonical layout (two-space blocks, aligned
     /// `=`, one blank line between declarations, comments kept).
     ///

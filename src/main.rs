@@ -34,6 +34,13 @@ fn main() -> ExitCode {
             show,
         } => report(&files, output.as_deref(), html, &show),
         Command::Fmt { files, check } => fmt(&files, check),
+        Command::Diff {
+            old,
+            new,
+            min_change,
+            json,
+            show,
+        } => diff(&old, &new, min_change, json, &show),
         Command::Units => {
             print!("{}", tandem::units::listing());
             ExitCode::SUCCESS
@@ -274,5 +281,82 @@ fn fmt(files: &[PathBuf], check: bool) -> ExitCode {
         ExitCode::from(1)
     } else {
         code
+    }
+}
+
+/// Read a revision: a file, or `REV:PATH` through `git show`.
+fn read_revision(spec: &str) -> Option<Source> {
+    let path = Path::new(spec);
+    if path.exists() {
+        return read(path);
+    }
+    let Some((rev, file)) = spec.split_once(':') else {
+        return read(path);
+    };
+    if rev.is_empty() || file.is_empty() {
+        return read(path);
+    }
+    match std::process::Command::new("git")
+        .args(["show", spec])
+        .output()
+    {
+        Ok(out) if out.status.success() => match String::from_utf8(out.stdout) {
+            Ok(text) => Some(Source::new(spec, text)),
+            Err(_) => {
+                eprintln!("error: {spec} is not UTF-8 text");
+                None
+            }
+        },
+        Ok(out) => {
+            eprintln!(
+                "error: cannot read {file} at revision {rev}: {}",
+                String::from_utf8_lossy(&out.stderr).trim()
+            );
+            None
+        }
+        Err(e) => {
+            eprintln!("error: cannot run git to read {spec}: {e}");
+            None
+        }
+    }
+}
+
+fn diff(old: &str, new: &Path, min_change: f64, json: bool, show: &Show) -> ExitCode {
+    let (Some(old_src), Some(new_src)) = (read_revision(old), read(new)) else {
+        return bad();
+    };
+    let analyse = |s: &Source| match tandem::analyse(s) {
+        Ok(a) => Some(a),
+        Err(errors) => {
+            report_errors(&errors, s);
+            None
+        }
+    };
+    let (Some(a), Some(b)) = (analyse(&old_src), analyse(&new_src)) else {
+        return bad();
+    };
+    let d = match display(&b.model, show) {
+        Ok(d) => d,
+        Err(msg) => {
+            eprintln!("error: {msg}");
+            return bad();
+        }
+    };
+    let result = tandem::review::diff::diff(&old_src, &a, &new_src, &b, &d, min_change.max(0.0));
+    if json {
+        match serde_json::to_string_pretty(&tandem::review::diff::json(&result)) {
+            Ok(s) => println!("{s}"),
+            Err(e) => {
+                eprintln!("error: {e}");
+                return bad();
+            }
+        }
+    } else {
+        print!("{}", tandem::review::diff::markdown(&result, &d));
+    }
+    if result.newly_failing() > 0 {
+        ExitCode::from(1)
+    } else {
+        ExitCode::SUCCESS
     }
 }

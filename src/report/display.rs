@@ -18,6 +18,14 @@ impl Shown {
         }
     }
 
+    /// A unit shown under another name (`°F` for `degF`).
+    fn named(shown: &str, unit: &str) -> Self {
+        Self {
+            name: shown.to_string(),
+            factor: lookup(unit).map_or(1.0, |u| u.factor),
+        }
+    }
+
     /// A compound such as `kip/in` from its parts.
     fn ratio(a: &Shown, b: &Shown) -> Self {
         Self {
@@ -70,7 +78,7 @@ impl Display {
             area: Shown::squared(&small),
             stiffness: Shown::ratio(&Shown::of("kip"), &small),
             small,
-            temperature: Shown::of("degF"),
+            temperature: Shown::named("°F", "degF"),
             digits,
         }
     }
@@ -85,7 +93,7 @@ impl Display {
             area: Shown::squared(&small),
             stiffness: Shown::ratio(&Shown::of("kN"), &small),
             small,
-            temperature: Shown::of("degC"),
+            temperature: Shown::named("°C", "degC"),
             digits,
         }
     }
@@ -157,7 +165,13 @@ impl Display {
                         }
                         Dimension::AREA => d.area = s,
                         Dimension::STIFFNESS => d.stiffness = s,
-                        Dimension::TEMPERATURE => d.temperature = s,
+                        Dimension::TEMPERATURE => {
+                            d.temperature = match s.name.as_str() {
+                                "degF" => Shown::named("°F", "degF"),
+                                "degC" => Shown::named("°C", "degC"),
+                                _ => s,
+                            }
+                        }
                         _ => {}
                     }
                 }

@@ -133,13 +133,6 @@ fn degree(name: &str) -> String {
     }
 }
 
-/// The unit name as shown (temperatures with a degree sign).
-fn shown_temperature(d: &Display) -> Display {
-    let mut d = d.clone();
-    d.temperature.name = degree(&d.temperature.name);
-    d
-}
-
 fn pct(u: Option<f64>) -> String {
     u.map_or("—".into(), |u| number(u, 3))
 }
@@ -153,7 +146,6 @@ pub fn report(
     checks: &Checks,
     display: &Display,
 ) -> String {
-    let display = &shown_temperature(display);
     let f = Fmt { d: display };
     let mut doc = Doc { out: String::new() };
     let title = model

@@ -1,4 +1,5 @@
 //! Review tools: the canonical formatter, the revision diff and the
 //! parameter sweep.
 
+pub mod diff;
 pub mod fmt;

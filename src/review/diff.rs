@@ -1,0 +1,645 @@
+//! What a revision changed: inputs by name, parts and nodes added or
+//! removed, results per combination, and the checks (`tandem diff`).
+
+use serde_json::{json, Value};
+
+use crate::model::{Kind, Law, Model};
+use crate::report::display::{number, Display};
+use crate::report::table::combination_text;
+use crate::solve::Solution;
+use crate::source::Source;
+use crate::units::{Dimension, Quantity};
+use crate::Analysis;
+
+/// One input that differs. `None` on a side where it does not exist.
+#[derive(Clone, Debug, PartialEq)]
+pub struct InputChange {
+    pub what: String,
+    pub old: Option<String>,
+    pub new: Option<String>,
+}
+
+/// One result that changed by more than the threshold.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ResultChange {
+    pub combination: String,
+    pub what: String,
+    pub old: Quantity,
+    pub new: Quantity,
+    /// Change of magnitude in percent; `None` when the old value was zero or
+    /// the sign reversed.
+    pub percent: Option<f64>,
+    /// The value changed sign.
+    pub reversed: bool,
+}
+
+/// One check whose utilization or status changed.
+#[derive(Clone, Debug, PartialEq)]
+pub struct CheckChange {
+    pub label: String,
+    pub combination: String,
+    pub old: Option<(Option<f64>, bool)>,
+    pub new: Option<(Option<f64>, bool)>,
+}
+
+impl CheckChange {
+    /// Passed before, fails now.
+    pub fn newly_fails(&self) -> bool {
+        matches!((self.old, self.new), (Some((_, true)), Some((_, false))))
+    }
+    fn flipped(&self) -> bool {
+        matches!((self.old, self.new), (Some((_, a)), Some((_, b))) if a != b)
+    }
+}
+
+/// Everything that differs between two revisions.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Diff {
+    pub old_name: String,
+    pub new_name: String,
+    pub inputs: Vec<InputChange>,
+    pub added: Vec<String>,
+    pub removed: Vec<String>,
+    pub results: Vec<ResultChange>,
+    pub checks: Vec<CheckChange>,
+    /// Highest utilization before and after, with its check and combination.
+    pub governing: [Option<(f64, String, String)>; 2],
+    pub min_change: f64,
+}
+
+impl Diff {
+    /// Checks that passed before and fail now.
+    pub fn newly_failing(&self) -> usize {
+        self.checks.iter().filter(|c| c.newly_fails()).count()
+    }
+}
+
+/// Every input of a model as (name, text), in file order.
+fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
+    let mut v = Vec::new();
+    for (k, val) in &model.title.fields {
+        v.push((format!("calc {k}"), format!("\"{val}\"")));
+    }
+    for l in &model.lets {
+        v.push((
+            format!("let `{}`", l.name),
+            format!(
+                "{} (= {})",
+                source.slice(l.expr.span).trim(),
+                d.quantity(l.value)
+            ),
+        ));
+    }
+    let p = |x: f64| d.quantity(Quantity::new(x, Dimension::PRESSURE));
+    for m in &model.materials {
+        let name = format!("material `{}`", m.name);
+        v.push((format!("{name} E"), p(m.e.value)));
+        if let Some(a) = m.alpha {
+            v.push((
+                format!("{name} alpha"),
+                d.quantity(Quantity::new(a.value, Dimension::PER_TEMPERATURE)),
+            ));
+        }
+        for (key, val) in [
+            ("yield", m.yield_strength),
+            ("yield_compression", m.yield_compression),
+            ("allowable", m.allowable),
+            ("allowable_tension", m.allowable_tension),
+            ("allowable_compression", m.allowable_compression),
+        ] {
+            if let Some(x) = val {
+                v.push((format!("{name} {key}"), p(x.value)));
+            }
+        }
+        if let Some(c) = m.creep {
+            v.push((format!("{name} creep"), number(c, d.digits)));
+        }
+    }
+    let len = |x: f64| d.quantity(Quantity::new(x, Dimension::LENGTH));
+    for n in &model.nodes {
+        let name = format!("node `{}`", n.name);
+        v.push((
+            format!("{name} position"),
+            match model.kind {
+                Kind::Axial => len(n.x.value),
+                Kind::Plane => format!("({}, {})", len(n.x.value), len(n.y.value)),
+            },
+        ));
+        let sup = match (model.kind, n.fixed) {
+            (Kind::Axial, [true, _]) | (Kind::Plane, [true, true]) => "fixed",
+            (Kind::Plane, [true, false]) => "fixed in x",
+            (Kind::Plane, [false, true]) => "fixed in y",
+            _ => "free",
+        };
+        v.push((format!("{name} support"), sup.into()));
+    }
+    for part in &model.parts {
+        let name = format!("part `{}`", part.name);
+        v.push((
+            format!("{name} ends"),
+            format!(
+                "{}, {}",
+                model.nodes[part.ends[0]].name, model.nodes[part.ends[1]].name
+            ),
+        ));
+        match &part.law {
+            Law::Member { material, area, .. } => {
+                v.push((
+                    format!("{name} material"),
+                    model.materials[*material].name.clone(),
+                ));
+                v.push((
+                    format!("{name} area"),
+                    d.quantity(Quantity::new(area.value, Dimension::AREA)),
+                ));
+            }
+            Law::Spring { stiffness } => {
+                v.push((
+                    format!("{name} stiffness"),
+                    d.quantity(Quantity::new(stiffness.value, Dimension::STIFFNESS)),
+                ));
+            }
+        }
+        if part.misfit.value != 0.0 {
+            v.push((format!("{name} misfit"), len(part.misfit.value)));
+        }
+        if part.slack.value != 0.0 {
+            v.push((format!("{name} slack"), len(part.slack.value)));
+        }
+        v.push((format!("{name} carries"), part.carries.name().into()));
+    }
+    for r in &model.rigids {
+        let nodes: Vec<&str> = r
+            .nodes
+            .iter()
+            .map(|&n| model.nodes[n].name.as_str())
+            .collect();
+        v.push((format!("rigid `{}`", r.name), nodes.join(", ")));
+    }
+    for c in &model.cases {
+        let mut acts = Vec::new();
+        for l in &c.loads {
+            let f = |x: f64| d.quantity(Quantity::new(x, Dimension::FORCE));
+            acts.push(match model.kind {
+                Kind::Axial => format!("load {} {}", model.nodes[l.node].name, f(l.force[0].value)),
+                Kind::Plane => format!(
+                    "load {} ({}, {})",
+                    model.nodes[l.node].name,
+                    f(l.force[0].value),
+                    f(l.force[1].value)
+                ),
+            });
+        }
+        for t in &c.temperatures {
+            let on = t
+                .part
+                .map_or("all parts".into(), |i| model.parts[i].name.clone());
+            acts.push(format!(
+                "ΔT {} on {on}",
+                d.quantity(Quantity::new(t.change.value, Dimension::TEMPERATURE))
+            ));
+        }
+        for s in &c.strains {
+            acts.push(format!(
+                "strain {} on {}",
+                number(s.strain.value, d.digits),
+                model.parts[s.part].name
+            ));
+        }
+        for s in &c.settlements {
+            acts.push(format!(
+                "{} moves {}",
+                model.nodes[s.node].name,
+                len(s.movement.value)
+            ));
+        }
+        v.push((
+            format!("case `{}`", c.name),
+            if acts.is_empty() {
+                "no loads".into()
+            } else {
+                acts.join("; ")
+            },
+        ));
+    }
+    for i in 0..model.combinations.len() {
+        if !model.combinations[i].declared {
+            continue; // a lone case, already listed
+        }
+        v.push((
+            format!("combination `{}`", model.combinations[i].name),
+            combination_text(model, i),
+        ));
+    }
+    for c in &model.checks {
+        v.push((
+            format!("check \"{}\"", c.label),
+            format!(
+                "{} {} {}",
+                source.slice(c.lhs.span).trim(),
+                c.op.symbol(),
+                source.slice(c.rhs.span).trim()
+            ),
+        ));
+    }
+    v
+}
+
+fn results(model: &Model, solution: &Solution) -> Vec<(String, String, Quantity)> {
+    let mut v = Vec::new();
+    for r in &solution.combinations {
+        for (p, pr) in model.parts.iter().zip(&r.parts) {
+            v.push((
+                r.name.clone(),
+                format!("part `{}` force", p.name),
+                Quantity::new(pr.force.value, Dimension::FORCE),
+            ));
+            if let Some(s) = pr.stress {
+                v.push((
+                    r.name.clone(),
+                    format!("part `{}` stress", p.name),
+                    Quantity::new(s.value, Dimension::PRESSURE),
+                ));
+            }
+        }
+        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+            match model.kind {
+                Kind::Axial => v.push((
+                    r.name.clone(),
+                    format!("node `{}` displacement", n.name),
+                    Quantity::new(nr.displacement[0].value, Dimension::LENGTH),
+                )),
+                Kind::Plane => {
+                    for (k, axis) in ["dx", "dy"].iter().enumerate() {
+                        v.push((
+                            r.name.clone(),
+                            format!("node `{}` {axis}", n.name),
+                            Quantity::new(nr.displacement[k].value, Dimension::LENGTH),
+                        ));
+                    }
+                }
+            }
+        }
+    }
+    v
+}
+
+fn check_table(a: &Analysis) -> Vec<(String, String, Option<f64>, bool)> {
+    a.checks
+        .outcomes
+        .iter()
+        .map(|o| {
+            (
+                o.label.clone(),
+                a.solution.combinations[o.combination].name.clone(),
+                o.utilization,
+                o.pass,
+            )
+        })
+        .collect()
+}
+
+fn governing(a: &Analysis) -> Option<(f64, String, String)> {
+    a.checks.highest().map(|o| {
+        (
+            o.utilization.unwrap_or(f64::INFINITY),
+            o.label.clone(),
+            a.solution.combinations[o.combination].name.clone(),
+        )
+    })
+}
+
+fn entity(what: &str) -> Option<String> {
+    // "part `x` area" -> "part `x`"
+    let mut it = what.splitn(3, ' ');
+    let kind = it.next()?;
+    let name = it.next()?;
+    matches!(kind, "part" | "node").then(|| format!("{kind} {name}"))
+}
+
+/// Compare two analysed revisions.
+#[allow(clippy::too_many_arguments)]
+pub fn diff(
+    old_src: &Source,
+    old: &Analysis,
+    new_src: &Source,
+    new: &Analysis,
+    display: &Display,
+    min_change_percent: f64,
+) -> Diff {
+    let fo = facts(&old.model, old_src, display);
+    let fnew = facts(&new.model, new_src, display);
+    let mut inputs = Vec::new();
+    let mut added = Vec::new();
+    let mut removed = Vec::new();
+    for (k, v) in &fo {
+        match fnew.iter().find(|(k2, _)| k2 == k) {
+            Some((_, v2)) if v2 != v => inputs.push(InputChange {
+                what: k.clone(),
+                old: Some(v.clone()),
+                new: Some(v2.clone()),
+            }),
+            Some(_) => {}
+            None => {
+                if let Some(e) = entity(k) {
+                    if !removed.contains(&e)
+                        && !fnew.iter().any(|(k2, _)| entity(k2).as_ref() == Some(&e))
+                    {
+                        removed.push(e);
+                    }
+                    continue;
+                }
+                inputs.push(InputChange {
+                    what: k.clone(),
+                    old: Some(v.clone()),
+                    new: None,
+                });
+            }
+        }
+    }
+    for (k, v) in &fnew {
+        if fo.iter().any(|(k2, _)| k2 == k) {
+            continue;
+        }
+        if let Some(e) = entity(k) {
+            if !added.contains(&e) && !fo.iter().any(|(k2, _)| entity(k2).as_ref() == Some(&e)) {
+                added.push(e);
+            }
+            if !fo
+                .iter()
+                .any(|(k2, _)| entity(k2).as_ref() == entity(k).as_ref())
+            {
+                continue;
+            }
+        }
+        inputs.push(InputChange {
+            what: k.clone(),
+            old: None,
+            new: Some(v.clone()),
+        });
+    }
+
+    // A removed and an added declaration of one kind with the same content
+    // is a rename.
+    let mut renamed: Vec<InputChange> = Vec::new();
+    let mut used = vec![false; inputs.len()];
+    for i in 0..inputs.len() {
+        if used[i] || inputs[i].new.is_some() {
+            continue;
+        }
+        let kind = inputs[i].what.split(' ').next().unwrap_or("").to_string();
+        if let Some(j) = (0..inputs.len()).find(|&j| {
+            !used[j]
+                && inputs[j].old.is_none()
+                && inputs[j].new == inputs[i].old
+                && inputs[j].what.split(' ').next() == Some(kind.as_str())
+        }) {
+            used[i] = true;
+            used[j] = true;
+            let new_name = inputs[j]
+                .what
+                .split_once(' ')
+                .map_or("", |x| x.1)
+                .to_string();
+            renamed.push(InputChange {
+                what: format!("{} renamed to {new_name}", inputs[i].what),
+                old: inputs[i].old.clone(),
+                new: inputs[j].new.clone(),
+            });
+        }
+    }
+    let mut inputs: Vec<InputChange> = inputs
+        .into_iter()
+        .zip(used)
+        .filter(|(_, u)| !u)
+        .map(|(c, _)| c)
+        .collect();
+    inputs.extend(renamed);
+
+    let ro = results(&old.model, &old.solution);
+    let rn = results(&new.model, &new.solution);
+    let mut changes = Vec::new();
+    for (c, what, q) in &rn {
+        let Some((_, _, o)) = ro.iter().find(|(c2, w2, _)| c2 == c && w2 == what) else {
+            continue;
+        };
+        let scale = o.value.abs();
+        let delta = q.value - o.value;
+        let reversed = o.value * q.value < 0.0;
+        let percent = (scale > 0.0 && !reversed).then(|| 100.0 * (q.value.abs() - scale) / scale);
+        // Changes at round-off level of the largest value of the kind are noise.
+        let floor = rn
+            .iter()
+            .filter(|(c2, _, x)| c2 == c && x.dim == q.dim)
+            .fold(0.0f64, |m, (_, _, x)| m.max(x.value.abs()))
+            * 1e-9;
+        let significant = match percent {
+            Some(p) => p.abs() > min_change_percent && delta.abs() > floor,
+            None => delta.abs() > floor,
+        };
+        if significant {
+            changes.push(ResultChange {
+                combination: c.clone(),
+                what: what.clone(),
+                old: *o,
+                new: *q,
+                percent,
+                reversed,
+            });
+        }
+    }
+
+    let co = check_table(old);
+    let cn = check_table(new);
+    let mut checks = Vec::new();
+    for (label, combo, u, pass) in &cn {
+        let before = co
+            .iter()
+            .find(|(l, c, _, _)| l == label && c == combo)
+            .map(|(_, _, u, p)| (*u, *p));
+        let changed = match before {
+            None => true,
+            Some((ou, op)) => {
+                op != *pass
+                    || match (ou, u) {
+                        (Some(a), Some(b)) => {
+                            (b - a).abs() > min_change_percent / 100.0 * a.abs().max(1e-12)
+                        }
+                        (a, b) => a.is_some() != b.is_some(),
+                    }
+            }
+        };
+        if changed {
+            checks.push(CheckChange {
+                label: label.clone(),
+                combination: combo.clone(),
+                old: before,
+                new: Some((*u, *pass)),
+            });
+        }
+    }
+    for (label, combo, u, pass) in &co {
+        if !cn.iter().any(|(l, c, _, _)| l == label && c == combo) {
+            checks.push(CheckChange {
+                label: label.clone(),
+                combination: combo.clone(),
+                old: Some((*u, *pass)),
+                new: None,
+            });
+        }
+    }
+    // pass -> fail first, then other flips, then the rest
+    checks.sort_by_key(|c| (!c.newly_fails(), !c.flipped()));
+    Diff {
+        old_name: old_src.name.clone(),
+        new_name: new_src.name.clone(),
+        inputs,
+        added,
+        removed,
+        results: changes,
+        checks,
+        governing: [governing(old), governing(new)],
+        min_change: min_change_percent,
+    }
+}
+
+fn util(u: Option<f64>) -> String {
+    u.map_or("—".into(), |u| number(u, 3))
+}
+
+fn status(s: Option<(Option<f64>, bool)>) -> String {
+    match s {
+        None => "—".into(),
+        Some((u, true)) => format!("{} pass", util(u)),
+        Some((u, false)) => format!("{} **FAIL**", util(u)),
+    }
+}
+
+/// The diff as Markdown.
+pub fn markdown(diff: &Diff, display: &Display) -> String {
+    let mut out = format!(
+        "# Changes from `{}` to `{}`\n\n",
+        diff.old_name, diff.new_name
+    );
+    let gov = |g: &Option<(f64, String, String)>| match g {
+        Some((u, l, c)) => format!("{} ({l}, `{c}`)", number(*u, 3)),
+        None => "no checks".into(),
+    };
+    out.push_str(&format!(
+        "**Governing utilization:** {} → {}\n\n",
+        gov(&diff.governing[0]),
+        gov(&diff.governing[1])
+    ));
+    let fails = diff.newly_failing();
+    if fails > 0 {
+        out.push_str(&format!(
+            "**{fails} check{} that passed now fail{}.**\n\n",
+            if fails == 1 { "" } else { "s" },
+            if fails == 1 { "s" } else { "" }
+        ));
+    }
+    let flips: Vec<&CheckChange> = diff.checks.iter().filter(|c| c.flipped()).collect();
+    if !flips.is_empty() {
+        out.push_str("## Checks that changed status\n\n| Check | Combination | Before | After |\n|---|---|---:|---:|\n");
+        for c in &flips {
+            out.push_str(&format!(
+                "| {} | `{}` | {} | {} |\n",
+                c.label,
+                c.combination,
+                status(c.old),
+                status(c.new)
+            ));
+        }
+        out.push('\n');
+    }
+    out.push_str("## Inputs changed\n\n");
+    if diff.inputs.is_empty() {
+        out.push_str("No input changed.\n\n");
+    } else {
+        out.push_str("| Input | Before | After |\n|---|---|---|\n");
+        for c in &diff.inputs {
+            let cell =
+                |s: &Option<String>| s.clone().unwrap_or_else(|| "—".into()).replace('|', "\\|");
+            out.push_str(&format!(
+                "| {} | {} | {} |\n",
+                c.what,
+                cell(&c.old),
+                cell(&c.new)
+            ));
+        }
+        out.push('\n');
+    }
+    if !diff.added.is_empty() || !diff.removed.is_empty() {
+        out.push_str("## Parts and nodes added or removed\n\n");
+        for a in &diff.added {
+            out.push_str(&format!("- {a} added\n"));
+        }
+        for r in &diff.removed {
+            out.push_str(&format!("- {r} removed\n"));
+        }
+        out.push('\n');
+    }
+    out.push_str(&format!(
+        "## Results changed by more than {} %\n\n",
+        number(diff.min_change, 3)
+    ));
+    if diff.results.is_empty() {
+        out.push_str("No result changed by more than the threshold.\n\n");
+    } else {
+        let mut combos: Vec<&str> = Vec::new();
+        for r in &diff.results {
+            if !combos.contains(&r.combination.as_str()) {
+                combos.push(&r.combination);
+            }
+        }
+        for c in combos {
+            out.push_str(&format!("### Combination `{c}`\n\n| Result | Before | After | Change in size |\n|---|---:|---:|---:|\n"));
+            for r in diff.results.iter().filter(|r| r.combination == c) {
+                out.push_str(&format!(
+                    "| {} | {} | {} | {} |\n",
+                    r.what,
+                    display.quantity(r.old),
+                    display.quantity(r.new),
+                    match r.percent {
+                        Some(p) => format!("{}{} %", if p > 0.0 { "+" } else { "" }, number(p, 3)),
+                        None if r.reversed => "reverses".into(),
+                        None => "was zero".into(),
+                    }
+                ));
+            }
+            out.push('\n');
+        }
+    }
+    let others: Vec<&CheckChange> = diff.checks.iter().filter(|c| !c.flipped()).collect();
+    if !others.is_empty() {
+        out.push_str("## Utilization changed\n\n| Check | Combination | Before | After |\n|---|---|---:|---:|\n");
+        for c in others {
+            out.push_str(&format!(
+                "| {} | `{}` | {} | {} |\n",
+                c.label,
+                c.combination,
+                status(c.old),
+                status(c.new)
+            ));
+        }
+        out.push('\n');
+    }
+    out.trim_end().to_string() + "\n"
+}
+
+/// The diff as JSON (SI values).
+pub fn json(diff: &Diff) -> Value {
+    let side =
+        |s: Option<(Option<f64>, bool)>| s.map(|(u, p)| json!({"utilization": u, "pass": p}));
+    json!({
+        "old": diff.old_name,
+        "new": diff.new_name,
+        "governing_utilization": diff.governing.iter().map(|g| g.as_ref().map(|(u, l, c)| json!({"utilization": u, "check": l, "combination": c}))).collect::<Vec<_>>(),
+        "newly_failing": diff.newly_failing(),
+        "inputs": diff.inputs.iter().map(|c| json!({"input": c.what, "old": c.old, "new": c.new})).collect::<Vec<_>>(),
+        "added": diff.added,
+        "removed": diff.removed,
+        "results": diff.results.iter().map(|r| json!({"combination": r.combination, "result": r.what, "old_si": r.old.value, "new_si": r.new.value, "change_percent": r.percent, "reversed": r.reversed})).collect::<Vec<_>>(),
+        "checks": diff.checks.iter().map(|c| json!({"label": c.label, "combination": c.combination, "old": side(c.old), "new": side(c.new)})).collect::<Vec<_>>(),
+    })
+}
