@@ -96,6 +96,38 @@ pub enum Command {
         #[command(flatten)]
         show: Show,
     },
+    /// Re-solve a calc for a range of one `let` parameter and tabulate the
+    /// utilizations; optionally find where the governing utilization
+    /// reaches 1.0.
+    ///
+    /// Example: `tandem sweep post.tandem --vary t=0.25in..0.75in --steps 11
+    /// --show shell.stress --seek`. Exit code 0 on success (whatever the
+    /// utilizations), 2 on an error.
+    Sweep {
+        /// The calc file.
+        file: PathBuf,
+        /// The parameter and its range, `NAME=FROM..TO`, with units
+        /// (`t=0.25 in..0.75 in`).
+        #[arg(long, value_name = "NAME=FROM..TO")]
+        vary: String,
+        /// Number of evenly spaced values, ends included.
+        #[arg(long, default_value_t = 11, value_parser = clap::value_parser!(u32).range(2..=1_000_000))]
+        steps: u32,
+        /// Results to tabulate, e.g. `core.stress,cap.displacement`.
+        #[arg(long, value_delimiter = ',', value_name = "RESULTS")]
+        show: Vec<String>,
+        /// Find the value at which the governing utilization reaches 1.0.
+        #[arg(long)]
+        seek: bool,
+        /// Draw utilization against the parameter into this SVG file.
+        #[arg(long, value_name = "OUT.svg")]
+        plot: Option<PathBuf>,
+        /// Write JSON (SI values) instead of the table.
+        #[arg(long)]
+        json: bool,
+        #[command(flatten)]
+        display: Show,
+    },
     /// Rewrite calc files in the canonical layout (two-space blocks, aligned
     /// `=`, one blank line between declarations, comments kept).
     ///

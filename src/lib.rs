@@ -111,3 +111,43 @@ pub fn parse_units(text: &str) -> Result<model::UnitChoice, String> {
     }
     Ok(model::UnitChoice::List(out))
 }
+
+/// Evaluate a stand-alone quantity such as `0.25 in` or `5 ksi` (no names
+/// but constants), for command-line arguments.
+///
+/// # Errors
+/// A message saying what is wrong with the text.
+pub fn quantity(text: &str) -> Result<units::Quantity, String> {
+    struct NoNames;
+    impl model::eval::Scope for NoNames {
+        fn name(&self, id: &syntax::ast::Ident) -> Result<units::Quantity, model::ModelError> {
+            model::eval::constant(&id.name)
+                .map(units::Quantity::number)
+                .ok_or_else(|| model::ModelError::UnknownName {
+                    kind: "name",
+                    name: id.name.clone(),
+                    span: id.span,
+                    help: None,
+                })
+        }
+        fn field(
+            &self,
+            object: &syntax::ast::Ident,
+            field: &syntax::ast::Ident,
+        ) -> Result<units::Quantity, model::ModelError> {
+            Err(model::ModelError::ResultOutsideCheck {
+                name: format!("{}.{}", object.name, field.name),
+                span: object.span,
+            })
+        }
+    }
+    let file = syntax::parse(&format!("let value = {text}"))
+        .map_err(|_| format!("`{text}` is not a value with a unit, such as `0.25 in`"))?;
+    let Some(syntax::ast::Decl::Let(l)) = file.decls.first() else {
+        return Err(format!("`{text}` is not a value"));
+    };
+    if file.decls.len() != 1 {
+        return Err(format!("`{text}` is not a single value"));
+    }
+    model::eval::eval(&l.value, &NoNames).map_err(|e| format!("`{text}`: {e}"))
+}

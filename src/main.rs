@@ -34,6 +34,25 @@ fn main() -> ExitCode {
             show,
         } => report(&files, output.as_deref(), html, &show),
         Command::Fmt { files, check } => fmt(&files, check),
+        Command::Sweep {
+            file,
+            vary,
+            steps,
+            show,
+            seek,
+            plot,
+            json,
+            display,
+        } => sweep(&SweepArgs {
+            file: &file,
+            vary: &vary,
+            steps: steps as usize,
+            show: &show,
+            seek,
+            plot: plot.as_deref(),
+            json,
+            display: &display,
+        }),
         Command::Diff {
             old,
             new,
@@ -359,4 +378,112 @@ fn diff(old: &str, new: &Path, min_change: f64, json: bool, show: &Show) -> Exit
     } else {
         ExitCode::SUCCESS
     }
+}
+
+struct SweepArgs<'a> {
+    file: &'a Path,
+    vary: &'a str,
+    steps: usize,
+    show: &'a [String],
+    seek: bool,
+    plot: Option<&'a Path>,
+    json: bool,
+    display: &'a Show,
+}
+
+fn sweep(args: &SweepArgs<'_>) -> ExitCode {
+    use tandem::review::sweep::{self, Sweeper};
+    let fail = |msg: String| {
+        eprintln!("error: {msg}");
+        bad()
+    };
+    let Some((name, range)) = args.vary.split_once('=') else {
+        return fail(format!(
+            "`--vary {}` needs the form NAME=FROM..TO, e.g. `t=0.25 in..0.75 in`",
+            args.vary
+        ));
+    };
+    let Some((from, to)) = range.split_once("..") else {
+        return fail(format!(
+            "`{range}` needs the form FROM..TO, e.g. `0.25 in..0.75 in`"
+        ));
+    };
+    let (from, to) = match (tandem::quantity(from), tandem::quantity(to)) {
+        (Ok(a), Ok(b)) => (a, b),
+        (Err(e), _) | (_, Err(e)) => return fail(e),
+    };
+    let Some(source) = read(args.file) else {
+        return bad();
+    };
+    let sweeper = match Sweeper::new(&source, name.trim(), args.show) {
+        Ok(s) => s,
+        Err(Ok(errors)) => {
+            report_errors(&errors, &source);
+            return bad();
+        }
+        Err(Err(msg)) => return fail(msg),
+    };
+    for q in [from, to] {
+        if q.dim != sweeper.dimension() {
+            return fail(format!(
+                "`{}` is {}, but the range is given as {}; write the range with units of the parameter",
+                name.trim(),
+                sweeper.dimension().describe(),
+                q.dim.describe()
+            ));
+        }
+    }
+    let solve_error = |(q, errors): (tandem::units::Quantity, Vec<tandem::Error>)| {
+        eprintln!("at {} = {} SI:", name.trim(), q.value);
+        report_errors(&errors, &source);
+        bad()
+    };
+    let table = match sweeper.sweep(from, to, args.steps) {
+        Ok(t) => t,
+        Err(e) => return solve_error(e),
+    };
+    let seek = if args.seek {
+        match sweeper.seek(&table, 1e-6) {
+            Ok(s) => Some(s),
+            Err(e) => return solve_error(e),
+        }
+    } else {
+        None
+    };
+    let model = match tandem::check(&source) {
+        Ok(m) => m,
+        Err(errors) => {
+            report_errors(&errors, &source);
+            return bad();
+        }
+    };
+    let d = match display(&model, args.display) {
+        Ok(d) => d,
+        Err(msg) => return fail(msg),
+    };
+    if let Some(out) = args.plot {
+        if tandem::output::is_input(out, &[args.file.to_path_buf()]) {
+            return fail(format!(
+                "refusing to write the plot over the input file {}",
+                out.display()
+            ));
+        }
+        match sweep::plot(&table, &d) {
+            Ok(svg) => {
+                if let Err(e) = tandem::output::write_atomic(out, svg.as_bytes()) {
+                    return fail(format!("cannot write {}: {e}", out.display()));
+                }
+            }
+            Err(e) => return fail(format!("cannot draw the plot: {e}")),
+        }
+    }
+    if args.json {
+        match serde_json::to_string_pretty(&sweep::json(&table, seek.as_ref())) {
+            Ok(s) => println!("{s}"),
+            Err(e) => return fail(e.to_string()),
+        }
+    } else {
+        print!("{}", sweep::text(&table, seek.as_ref(), &d));
+    }
+    ExitCode::SUCCESS
 }

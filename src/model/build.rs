@@ -271,9 +271,26 @@ pub fn build(file: &ast::File, limits: Limits) -> Result<Model, Vec<ModelError>>
     Builder::new(limits).run(file)
 }
 
+/// Build with some `let`s given fixed values instead of their expressions
+/// (a parameter sweep re-evaluates a parsed file this way, without parsing
+/// it again).
+///
+/// # Errors
+/// As [`build`].
+pub fn build_with(
+    file: &ast::File,
+    limits: Limits,
+    overrides: &[(String, Quantity)],
+) -> Result<Model, Vec<ModelError>> {
+    let mut b = Builder::new(limits);
+    b.overrides = overrides.to_vec();
+    b.run(file)
+}
+
 struct Builder {
     errors: Vec<ModelError>,
     limits: Limits,
+    overrides: Vec<(String, Quantity)>,
 }
 
 fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option<T> {
@@ -554,6 +571,7 @@ impl Builder {
         Self {
             errors: Vec::new(),
             limits,
+            overrides: Vec::new(),
         }
     }
 
@@ -709,7 +727,10 @@ impl Builder {
                 names,
                 values: &values,
             };
-            let r = eval(&lets[i].value, &scope);
+            let r = match self.overrides.iter().find(|(n, _)| *n == lets[i].name.name) {
+                Some((_, q)) => Ok(*q),
+                None => eval(&lets[i].value, &scope),
+            };
             values[i] = Some(match push_err(&mut self.errors, r) {
                 Some(q) => Ok(q),
                 None => Err(()),

@@ -3,3 +3,4 @@
 
 pub mod diff;
 pub mod fmt;
+pub mod sweep;

@@ -1,0 +1,428 @@
+//! Parameter sweeps and goal seek (`tandem sweep`).
+//!
+//! The file is parsed once; each step re-evaluates the model from the syntax
+//! tree with the swept `let` fixed at the step's value, then solves it and
+//! evaluates its checks.
+
+use serde_json::{json, Value};
+
+use crate::checks::{evaluate, Checks};
+use crate::model::{build_with, Limits, Model};
+use crate::solve::solve;
+use crate::source::Source;
+use crate::syntax::ast;
+use crate::units::{Dimension, Quantity};
+use crate::Error;
+
+/// A result to show in the table: `PART.force|stress|strain|elongation` or
+/// `NODE.displacement|reaction|dx|dy|rx|ry`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Shown {
+    pub object: String,
+    pub field: String,
+}
+
+/// One step of a sweep.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Step {
+    pub value: Quantity,
+    /// Highest utilization over every check and combination (`None`: no checks).
+    pub governing: Option<f64>,
+    /// Each check's highest utilization, in check order.
+    pub checks: Vec<Option<f64>>,
+    /// Each shown result: the value of largest magnitude over the combinations.
+    pub shown: Vec<Quantity>,
+}
+
+/// A finished sweep.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Sweep {
+    pub name: String,
+    pub labels: Vec<String>,
+    pub shown: Vec<Shown>,
+    pub steps: Vec<Step>,
+}
+
+/// The answer of a goal seek.
+#[derive(Clone, Debug, PartialEq)]
+pub enum Seek {
+    /// The value at which the governing utilization reaches 1.0.
+    Found {
+        value: Quantity,
+        tolerance: f64,
+        evaluations: usize,
+    },
+    /// No step of the range brings the utilization to 1.0.
+    NoRoot { lowest: f64, highest: f64 },
+}
+
+/// A prepared sweep: the parsed file and the parameter.
+pub struct Sweeper<'a> {
+    file: ast::File,
+    name: String,
+    dim: Dimension,
+    shown: Vec<Shown>,
+    source: &'a Source,
+}
+
+fn errors<E: Into<Error>>(es: Vec<E>) -> Vec<Error> {
+    es.into_iter().map(Into::into).collect()
+}
+
+impl<'a> Sweeper<'a> {
+    /// Parse the file once and check the parameter and the shown results.
+    ///
+    /// # Errors
+    /// The file's errors, or a message about the parameter.
+    pub fn new(
+        source: &'a Source,
+        name: &str,
+        shown: &[String],
+    ) -> Result<Self, Result<Vec<Error>, String>> {
+        let file = crate::syntax::parse(&source.text).map_err(|e| Ok(errors(e)))?;
+        let model = crate::model::build(&file, Limits::default()).map_err(|e| Ok(errors(e)))?;
+        let Some(l) = model.lets.iter().find(|l| l.name == name) else {
+            let names: Vec<&str> = model.lets.iter().map(|l| l.name.as_str()).collect();
+            return Err(Err(format!(
+                "`{name}` is not a `let` of {}; the parameters are {}",
+                source.name,
+                if names.is_empty() {
+                    "none".to_string()
+                } else {
+                    names.join(", ")
+                }
+            )));
+        };
+        let mut list = Vec::new();
+        for s in shown {
+            let Some((object, field)) = s.split_once('.') else {
+                return Err(Err(format!("`{s}` is not a result such as `core.stress`")));
+            };
+            let ok_part = model.part_index(object).is_some()
+                && ["force", "stress", "strain", "elongation"].contains(&field);
+            let ok_node = model.node_index(object).is_some()
+                && ["displacement", "reaction", "dx", "dy", "rx", "ry"].contains(&field);
+            if !ok_part && !ok_node {
+                return Err(Err(format!(
+                    "`{s}` is not a result of a part or node of {}",
+                    source.name
+                )));
+            }
+            list.push(Shown {
+                object: object.into(),
+                field: field.into(),
+            });
+        }
+        Ok(Self {
+            file,
+            name: name.into(),
+            dim: l.value.dim,
+            shown: list,
+            source,
+        })
+    }
+
+    /// The parameter's dimension.
+    pub fn dimension(&self) -> Dimension {
+        self.dim
+    }
+
+    /// Evaluate, solve and check at one value of the parameter.
+    ///
+    /// # Errors
+    /// Any error at that value (a mechanism, a non-positive area, ...).
+    pub fn at(&self, value: Quantity) -> Result<(Model, Checks, Step), Vec<Error>> {
+        let model = build_with(&self.file, Limits::default(), &[(self.name.clone(), value)])
+            .map_err(errors)?;
+        let solution = solve(&model).map_err(|e| vec![Error::from(e)])?;
+        let checks = evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
+        let governing = checks
+            .outcomes
+            .iter()
+            .map(|o| o.utilization.unwrap_or(f64::INFINITY))
+            .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
+        let per_check = checks.governing().iter().map(|o| o.utilization).collect();
+        let shown = self
+            .shown
+            .iter()
+            .map(|s| {
+                let mut best = Quantity::number(0.0);
+                for r in &solution.combinations {
+                    let scope = crate::checks::ResultScope {
+                        model: &model,
+                        result: r,
+                    };
+                    let id = |n: &str| ast::Ident {
+                        name: n.into(),
+                        span: crate::source::Span::default(),
+                    };
+                    if let Ok(q) =
+                        crate::model::eval::Scope::field(&scope, &id(&s.object), &id(&s.field))
+                    {
+                        if q.value.abs() >= best.value.abs() {
+                            best = q;
+                        }
+                    }
+                }
+                best
+            })
+            .collect();
+        let step = Step {
+            value,
+            governing,
+            checks: per_check,
+            shown,
+        };
+        Ok((model, checks, step))
+    }
+
+    /// Sweep `steps` evenly spaced values from `from` to `to`.
+    ///
+    /// # Errors
+    /// The first step that cannot be solved, with its value.
+    pub fn sweep(
+        &self,
+        from: Quantity,
+        to: Quantity,
+        steps: usize,
+    ) -> Result<Sweep, (Quantity, Vec<Error>)> {
+        let mut out = Vec::with_capacity(steps);
+        let mut labels = Vec::new();
+        for i in 0..steps {
+            let t = if steps == 1 {
+                0.0
+            } else {
+                i as f64 / (steps - 1) as f64
+            };
+            let v = Quantity::new(from.value + (to.value - from.value) * t, from.dim);
+            let (_, checks, step) = self.at(v).map_err(|e| (v, e))?;
+            if labels.is_empty() {
+                labels = checks.governing().iter().map(|o| o.label.clone()).collect();
+            }
+            out.push(step);
+        }
+        Ok(Sweep {
+            name: self.name.clone(),
+            labels,
+            shown: self.shown.clone(),
+            steps: out,
+        })
+    }
+
+    /// Find where the governing utilization reaches 1.0 inside the sweep's
+    /// range: the first bracketing pair of steps, then bisection to
+    /// `tolerance` (as a fraction of the range).
+    ///
+    /// # Errors
+    /// A value inside the bracket that cannot be solved.
+    pub fn seek(&self, sweep: &Sweep, tolerance: f64) -> Result<Seek, (Quantity, Vec<Error>)> {
+        let us: Vec<f64> = sweep.steps.iter().filter_map(|s| s.governing).collect();
+        let lowest = us.iter().copied().fold(f64::INFINITY, f64::min);
+        let highest = us.iter().copied().fold(f64::NEG_INFINITY, f64::max);
+        let bracket = sweep
+            .steps
+            .windows(2)
+            .find(|w| match (w[0].governing, w[1].governing) {
+                (Some(a), Some(b)) => (a - 1.0) * (b - 1.0) <= 0.0,
+                _ => false,
+            });
+        let Some(w) = bracket else {
+            return Ok(Seek::NoRoot { lowest, highest });
+        };
+        let (mut a, mut b) = (w[0].value.value, w[1].value.value);
+        let mut ga = w[0].governing.unwrap_or(0.0) - 1.0;
+        let dim = w[0].value.dim;
+        let range =
+            (sweep.steps[sweep.steps.len() - 1].value.value - sweep.steps[0].value.value).abs();
+        let tol = tolerance * range.max(f64::MIN_POSITIVE);
+        let mut evaluations = 0;
+        if ga == 0.0 {
+            return Ok(Seek::Found {
+                value: Quantity::new(a, dim),
+                tolerance: tol,
+                evaluations,
+            });
+        }
+        while (b - a).abs() > tol && evaluations < 200 {
+            let m = 0.5 * (a + b);
+            let q = Quantity::new(m, dim);
+            let (_, _, step) = self.at(q).map_err(|e| (q, e))?;
+            evaluations += 1;
+            let gm = step.governing.unwrap_or(0.0) - 1.0;
+            if gm == 0.0 {
+                a = m;
+                b = m;
+                break;
+            }
+            if (ga < 0.0) == (gm < 0.0) {
+                a = m;
+                ga = gm;
+            } else {
+                b = m;
+            }
+        }
+        Ok(Seek::Found {
+            value: Quantity::new(0.5 * (a + b), dim),
+            tolerance: tol,
+            evaluations,
+        })
+    }
+
+    /// The source this sweep reads.
+    pub fn source(&self) -> &Source {
+        self.source
+    }
+}
+
+/// The sweep as JSON (SI values).
+pub fn json(sweep: &Sweep, seek: Option<&Seek>) -> Value {
+    let steps: Vec<Value> = sweep
+        .steps
+        .iter()
+        .map(|s| {
+            json!({
+                "value_si": s.value.value,
+                "governing_utilization": s.governing,
+                "checks": sweep.labels.iter().zip(&s.checks).map(|(l, u)| json!({"label": l, "utilization": u})).collect::<Vec<_>>(),
+                "shown": sweep.shown.iter().zip(&s.shown).map(|(d, q)| json!({"result": format!("{}.{}", d.object, d.field), "value_si": q.value})).collect::<Vec<_>>(),
+            })
+        })
+        .collect();
+    let seek = seek.map(|s| match s {
+        Seek::Found { value, tolerance, evaluations } => json!({"found": true, "value_si": value.value, "tolerance_si": tolerance, "evaluations": evaluations}),
+        Seek::NoRoot { lowest, highest } => json!({"found": false, "lowest_utilization": lowest, "highest_utilization": highest}),
+    });
+    json!({"parameter": sweep.name, "steps": steps, "seek": seek})
+}
+
+/// The sweep as an aligned text table, with the seek result.
+pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> String {
+    use crate::report::number;
+    let unit_of = |q: &Quantity| d.unit_for(q.dim).map(|u| u.name.clone());
+    let first = sweep.steps.first().map(|s| s.value);
+    let mut head = vec![match first.as_ref().and_then(unit_of) {
+        Some(u) => format!("{} ({u})", sweep.name),
+        None => sweep.name.clone(),
+    }];
+    head.push("governing".into());
+    head.extend(sweep.labels.iter().cloned());
+    for (k, s) in sweep.shown.iter().enumerate() {
+        let u = sweep.steps.first().and_then(|st| unit_of(&st.shown[k]));
+        head.push(match u {
+            Some(u) => format!("{}.{} ({u})", s.object, s.field),
+            None => format!("{}.{}", s.object, s.field),
+        });
+    }
+    let show = |q: &Quantity| match d.unit_for(q.dim) {
+        Some(u) => number(u.value(q.value), d.digits),
+        None => number(q.value, d.digits),
+    };
+    let util = |u: &Option<f64>| u.map_or("—".into(), |u| number(u, 3));
+    let mut rows = vec![head];
+    for s in &sweep.steps {
+        let mut r = vec![show(&s.value), util(&s.governing)];
+        r.extend(s.checks.iter().map(util));
+        r.extend(s.shown.iter().map(show));
+        rows.push(r);
+    }
+    let mut out = crate::report::table::aligned(&rows, &[], "");
+    match seek {
+        Some(Seek::Found { value, tolerance, evaluations }) => out.push_str(&format!(
+            "\nseek: the governing utilization reaches 1.0 at {} = {} (to within {:.1e}{}; {evaluations} extra solves)\n",
+            sweep.name,
+            d.quantity(*value),
+            d.unit_for(value.dim).map_or(*tolerance, |u| u.value(*tolerance)),
+            d.unit_for(value.dim).map_or(String::new(), |u| format!(" {}", u.name)),
+        )),
+        Some(Seek::NoRoot { lowest, highest }) => out.push_str(&format!(
+            "\nseek: no value in the range brings the governing utilization to 1.0 (it runs from {} to {}); widen the range\n",
+            number(*lowest, 3),
+            number(*highest, 3)
+        )),
+        None => {}
+    }
+    out
+}
+
+/// Utilization against the parameter as an SVG drawing.
+///
+/// # Errors
+/// A message if the drawing cannot be made.
+pub fn plot(sweep: &Sweep, d: &crate::report::Display) -> Result<String, String> {
+    use plotters::prelude::*;
+    let unit = sweep
+        .steps
+        .first()
+        .and_then(|s| d.unit_for(s.value.dim).cloned());
+    let x = |q: &Quantity| unit.as_ref().map_or(q.value, |u| u.value(q.value));
+    let xs: Vec<f64> = sweep.steps.iter().map(|s| x(&s.value)).collect();
+    let (x0, x1) = (
+        xs.iter().copied().fold(f64::INFINITY, f64::min),
+        xs.iter().copied().fold(f64::NEG_INFINITY, f64::max),
+    );
+    let ymax = sweep
+        .steps
+        .iter()
+        .filter_map(|s| s.governing)
+        .filter(|u| u.is_finite())
+        .fold(1.2f64, f64::max)
+        * 1.05;
+    let mut svg = String::new();
+    {
+        let root = SVGBackend::with_string(&mut svg, (800, 500)).into_drawing_area();
+        root.fill(&WHITE).map_err(|e| e.to_string())?;
+        let xlabel = match &unit {
+            Some(u) => format!("{} ({})", sweep.name, u.name),
+            None => sweep.name.clone(),
+        };
+        let mut chart = ChartBuilder::on(&root)
+            .caption("Utilization against the parameter", ("sans-serif", 20))
+            .margin(15)
+            .x_label_area_size(45)
+            .y_label_area_size(55)
+            .build_cartesian_2d(x0..x1.max(x0 + f64::EPSILON), 0.0..ymax)
+            .map_err(|e| e.to_string())?;
+        chart
+            .configure_mesh()
+            .x_desc(xlabel)
+            .y_desc("utilization")
+            .draw()
+            .map_err(|e| e.to_string())?;
+        chart
+            .draw_series(LineSeries::new(
+                vec![(x0, 1.0), (x1, 1.0)],
+                RED.stroke_width(1),
+            ))
+            .map_err(|e| e.to_string())?
+            .label("limit 1.0");
+        let palette = [BLUE, GREEN, MAGENTA, CYAN, BLACK];
+        for (k, label) in sweep.labels.iter().enumerate() {
+            let pts: Vec<(f64, f64)> = sweep
+                .steps
+                .iter()
+                .zip(&xs)
+                .filter_map(|(s, &xv)| {
+                    s.checks
+                        .get(k)
+                        .copied()
+                        .flatten()
+                        .map(|u| (xv, u.min(ymax)))
+                })
+                .collect();
+            let color = palette[k % palette.len()];
+            chart
+                .draw_series(LineSeries::new(pts, color.stroke_width(2)))
+                .map_err(|e| e.to_string())?
+                .label(label.clone())
+                .legend(move |(lx, ly)| PathElement::new(vec![(lx, ly), (lx + 18, ly)], color));
+        }
+        chart
+            .configure_series_labels()
+            .background_style(WHITE.mix(0.9))
+            .border_style(BLACK)
+            .draw()
+            .map_err(|e| e.to_string())?;
+        root.present().map_err(|e| e.to_string())?;
+    }
+    Ok(svg)
+}

@@ -1,0 +1,154 @@
+//! Sweeps and goal seek against a closed form.
+
+use std::process::Command;
+
+use tandem::review::sweep::{Seek, Sweeper};
+use tandem::source::Source;
+
+const KSI: f64 = 4_448.221_615_260_5 / 0.000_645_16;
+
+fn source() -> Source {
+    let path = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/sweep/plate.tandem");
+    Source::new("plate.tandem", std::fs::read_to_string(path).expect("read"))
+}
+
+/// Parallel share (mechanics of materials): the plate's stress is
+/// σ = P·E_s / (E_s·A_s + E_c·A_c). Setting σ = 20 ksi gives
+/// A_s = (P·E_s/σ − E_c·A_c)/E_s = (400·29000/20 − 4000·100)/29000 in²,
+/// and t = A_s / 10 in = 0.620 689 655 in.
+#[test]
+fn seek_finds_the_closed_form_thickness() {
+    let src = source();
+    let sweeper = Sweeper::new(&src, "t", &["plate.stress".to_string()])
+        .unwrap_or_else(|_| panic!("sweeper"));
+    let from = tandem::quantity("0.3 in").expect("from");
+    let to = tandem::quantity("1.2 in").expect("to");
+    let table = sweeper
+        .sweep(from, to, 10)
+        .unwrap_or_else(|_| panic!("sweep"));
+    let exact = (400.0 * 29000.0 / 20.0 - 4000.0 * 100.0) / 29000.0 / 10.0 * 0.0254;
+    match sweeper
+        .seek(&table, 1e-9)
+        .unwrap_or_else(|_| panic!("seek"))
+    {
+        Seek::Found {
+            value, tolerance, ..
+        } => {
+            assert!(
+                (value.value - exact).abs() <= tolerance.max(1e-12),
+                "{} vs {exact}",
+                value.value
+            );
+        }
+        Seek::NoRoot { .. } => panic!("a root lies in the range"),
+    }
+    // each step's stress follows the closed form too
+    for s in &table.steps {
+        let a_s = 10.0 * s.value.value / 0.0254;
+        let sigma = 400.0 * 29000.0 / (29000.0 * a_s + 4000.0 * 100.0);
+        assert!((-s.shown[0].value / KSI - sigma).abs() < 1e-9 * sigma);
+        assert!((s.governing.unwrap_or(0.0) - sigma / 20.0).abs() < 1e-9);
+    }
+}
+
+#[test]
+fn seek_says_when_there_is_no_root() {
+    let src = source();
+    let sweeper = Sweeper::new(&src, "t", &[]).unwrap_or_else(|_| panic!("sweeper"));
+    let table = sweeper
+        .sweep(
+            tandem::quantity("0.8 in").expect("q"),
+            tandem::quantity("1.5 in").expect("q"),
+            5,
+        )
+        .unwrap_or_else(|_| panic!("sweep"));
+    assert!(matches!(
+        sweeper.seek(&table, 1e-6),
+        Ok(Seek::NoRoot { .. })
+    ));
+}
+
+fn tandem(args: &[&str]) -> std::process::Output {
+    Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args(args)
+        .output()
+        .expect("run")
+}
+
+#[test]
+fn command_line_sweep_and_plot() {
+    let svg = std::env::temp_dir().join(format!("tandem-sweep-{}.svg", std::process::id()));
+    let s = svg.display().to_string();
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=0.3 in..1.2 in",
+        "--steps",
+        "10",
+        "--seek",
+        "--show",
+        "plate.stress",
+        "--plot",
+        &s,
+    ]);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("t = 0.6207 in"), "{text}");
+    let drawing = std::fs::read_to_string(&svg).expect("svg written");
+    assert!(drawing.contains("<svg") && drawing.contains("plate stress"));
+    let _ = std::fs::remove_file(&svg);
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=0.3 in..1.2 in",
+        "--json",
+        "--seek",
+    ]);
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    assert_eq!(v["seek"]["found"], true);
+    assert_eq!(v["steps"].as_array().map(Vec::len), Some(11));
+}
+
+#[test]
+fn sweep_errors() {
+    // units are required and checked
+    let out = tandem(&["sweep", "tests/sweep/plate.tandem", "--vary", "t=0.3..1.2"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("length"));
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "w=1 in..2 in",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("not a `let`"));
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=1 in..2 in",
+        "--show",
+        "plate.strss",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    // a thickness of zero makes the plate's area zero: a clear error, not a panic
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=0 in..1 in",
+        "--steps",
+        "3",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("must be positive"));
+}
