@@ -248,87 +248,118 @@ fn mechanism(model: &Model, map: &DofMap, index: usize, slack: &[usize]) -> Solv
     }
 }
 
-/// Solve every combination of a model.
-///
-/// # Errors
-/// Mechanisms (naming the node or body and direction), active sets that do
-/// not settle, conflicting support movements.
-#[allow(clippy::too_many_lines)]
-pub fn solve(model: &Model) -> Result<Solution, SolveError> {
-    let map = dofs::number(model)?;
-    let nd = map.ndof;
-    let nn = model.nodes.len();
-    let mut elems = elements(model, &map);
-    let mut keys = Vec::new();
-    for e in &elems {
-        for (a, &(i, _)) in e.g.iter().enumerate() {
-            for &(j, _) in &e.g[a..] {
-                keys.push(Pattern::key(i, j));
+/// What a set of factored cases does to the assembly.
+pub(crate) struct Actions {
+    /// Prescribed node displacements (support movements), per component.
+    pub u0: Vec<f64>,
+    /// Nodal loads, per component.
+    pub loads: Vec<f64>,
+    /// Free elongation of each part.
+    pub free: Vec<f64>,
+    /// Elongation of each part from the prescribed movements alone.
+    pub e0: Vec<f64>,
+    /// Loads in the free unknowns.
+    pub f_loads: Vec<f64>,
+}
+
+/// Which actions of the cases to take.
+#[derive(Clone, Copy, PartialEq, Eq)]
+pub(crate) struct Take {
+    pub loads: bool,
+    /// Temperature, free strain, support movements.
+    pub strains: bool,
+    pub misfit: bool,
+}
+
+impl Take {
+    pub const ALL: Take = Take {
+        loads: true,
+        strains: true,
+        misfit: true,
+    };
+}
+
+/// A model's numbered unknowns, elements and factorisation pattern, built
+/// once and reused for every combination, trial and analysis.
+pub(crate) struct System<'m> {
+    pub model: &'m Model,
+    pub map: DofMap,
+    elems: Vec<Element>,
+    pattern: Pattern,
+}
+
+impl<'m> System<'m> {
+    pub fn new(model: &'m Model) -> Result<Self, SolveError> {
+        let map = dofs::number(model)?;
+        let mut elems = elements(model, &map);
+        let mut keys = Vec::new();
+        for e in &elems {
+            for (a, &(i, _)) in e.g.iter().enumerate() {
+                for &(j, _) in &e.g[a..] {
+                    keys.push(Pattern::key(i, j));
+                }
             }
         }
-    }
-    let numeric = |reason: String| SolveError::Numeric {
-        reason,
-        span: model.parts.first().map(|p| p.span).unwrap_or_default(),
-    };
-    let pattern = Pattern::new(map.n, keys).map_err(numeric)?;
-    for e in &mut elems {
-        let mut pos = Vec::with_capacity(e.g.len() * (e.g.len() + 1) / 2);
-        for (a, &(i, gi)) in e.g.iter().enumerate() {
-            for &(j, gj) in &e.g[a..] {
-                pos.push((pattern.position(i, j), gi * gj));
+        let pattern = Pattern::new(map.n, keys).map_err(|r| numeric(model, r))?;
+        for e in &mut elems {
+            let mut pos = Vec::with_capacity(e.g.len() * (e.g.len() + 1) / 2);
+            for (a, &(i, gi)) in e.g.iter().enumerate() {
+                for &(j, gj) in &e.g[a..] {
+                    pos.push((pattern.position(i, j), gi * gj));
+                }
             }
+            e.pos = pos;
         }
-        e.pos = pos;
+        Ok(Self {
+            model,
+            map,
+            elems,
+            pattern,
+        })
     }
 
-    let mut warnings = Vec::new();
-    let (kmin, kmax) = elems.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), e| {
-        (lo.min(e.k), hi.max(e.k))
-    });
-    if kmax > 1e12 * kmin {
-        warnings.push(format!(
-            "part stiffnesses differ by a factor of {:.1e}; results may lose precision",
-            kmax / kmin
-        ));
+    /// Each part's elastic stiffness k = E A / L.
+    pub fn stiffness(&self) -> Vec<f64> {
+        self.elems.iter().map(|e| e.k).collect()
     }
 
-    let linear_mode = |c: Carries, slack: f64| match (c, slack > 0.0) {
-        (Carries::Both, false) => Mode::Linear,
-        (Carries::Tension, _) => Mode::Tension,
-        (Carries::Compression, _) => Mode::Compression,
-        (Carries::Both, true) => Mode::Slack,
-    };
-    let initial: Vec<Mode> = model
-        .parts
-        .iter()
-        .map(|p| linear_mode(p.carries, p.slack.value))
-        .collect();
-    let nonlinear: Vec<usize> = (0..model.parts.len())
-        .filter(|&i| initial[i] != Mode::Linear)
-        .collect();
-
-    let mut cache: Option<(u64, sparse::Factor<'_>)> = None;
-    let mut combinations = Vec::new();
-    for combo in &model.combinations {
-        // Prescribed movements, loads, free elongations.
+    /// The actions of factored cases.
+    pub fn actions(
+        &self,
+        name: &str,
+        terms: &[(usize, f64)],
+        take: Take,
+    ) -> Result<Actions, SolveError> {
+        let model = self.model;
+        let map = &self.map;
+        let nd = map.ndof;
+        let nn = model.nodes.len();
         let mut u0 = vec![0.0; nn * nd];
         let mut loads = vec![0.0; nn * nd];
         let mut free = vec![0.0; model.parts.len()];
-        for (i, p) in model.parts.iter().enumerate() {
-            free[i] = p.misfit.value;
+        if take.misfit {
+            for (i, p) in model.parts.iter().enumerate() {
+                free[i] = p.misfit.value;
+            }
         }
         let mut moved: std::collections::HashMap<(usize, usize), f64> =
             std::collections::HashMap::new();
-        for &(ci, factor) in &combo.terms {
+        for &(ci, factor) in terms {
             let case = &model.cases[ci];
-            for s in &case.settlements {
-                *moved.entry((s.node, s.direction)).or_default() += factor * s.movement.value;
-            }
-            for l in &case.loads {
-                for d in 0..nd {
-                    loads[l.node * nd + d] += factor * l.force[d].value;
+            if take.strains {
+                for s in &case.settlements {
+                    *moved.entry((s.node, s.direction)).or_default() += factor * s.movement.value;
                 }
+            }
+            if take.loads {
+                for l in &case.loads {
+                    for d in 0..nd {
+                        loads[l.node * nd + d] += factor * l.force[d].value;
+                    }
+                }
+            }
+            if !take.strains {
+                continue;
             }
             let global = case.temperatures.iter().find(|t| t.part.is_none());
             for (i, p) in model.parts.iter().enumerate() {
@@ -368,7 +399,7 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
                         Some(r) => format!("rigid body `{}`", model.rigids[r].name),
                         None => format!("the nodes tied to `{}`", model.nodes[n].name),
                     },
-                    combination: combo.name.clone(),
+                    combination: name.to_string(),
                     span: model.nodes[n].span,
                 }
             })?;
@@ -382,7 +413,7 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
         let e0: Vec<f64> = model
             .parts
             .iter()
-            .zip(&elems)
+            .zip(&self.elems)
             .map(|(p, e)| {
                 (0..nd)
                     .map(|d| e.dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
@@ -397,8 +428,154 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
                 }
             }
         }
+        Ok(Actions {
+            u0,
+            loads,
+            free,
+            e0,
+            f_loads,
+        })
+    }
 
-        // Active-set iteration.
+    /// Factorise with per-part stiffnesses (0 removes a part).
+    pub fn factor(&self, k: &[f64], slack: &[usize]) -> Result<sparse::Factor<'_>, SolveError> {
+        let mut values = vec![0.0; self.pattern.nnz()];
+        for (e, &kk) in self.elems.iter().zip(k) {
+            if kk != 0.0 {
+                for &(p, c) in &e.pos {
+                    values[p] += kk * c;
+                }
+            }
+        }
+        match self.pattern.factor(&values) {
+            Ok(f) => Ok(f),
+            Err(Failure::Unsupported(j)) => Err(mechanism(self.model, &self.map, j, slack)),
+            Err(Failure::Mechanism(mode)) => {
+                let j = dominant(self.model, &self.map, &mode);
+                Err(mechanism(self.model, &self.map, j, slack))
+            }
+            Err(Failure::Other(reason)) => Err(numeric(self.model, reason)),
+        }
+    }
+
+    /// Solve for the unknowns and the part elongations: parts with stiffness
+    /// `k[i]` aim at elongation `target[i]` (free elongation plus any gap);
+    /// `forces[i]` are constant part forces (yielded parts) pushed onto the
+    /// nodes.
+    pub fn respond(
+        &self,
+        factor: &sparse::Factor<'_>,
+        k: &[f64],
+        target: &[f64],
+        forces: &[f64],
+        a: &Actions,
+    ) -> (Vec<f64>, Vec<f64>) {
+        let mut rhs = a.f_loads.clone();
+        for (i, e) in self.elems.iter().enumerate() {
+            let t = k[i] * (target[i] - a.e0[i]) - forces[i];
+            if t != 0.0 {
+                for &(j, g) in &e.g {
+                    rhs[j] += t * g;
+                }
+            }
+        }
+        factor.solve(&mut rhs);
+        let q = rhs;
+        let elong = self
+            .elems
+            .iter()
+            .zip(&a.e0)
+            .map(|(e, base)| base + e.g.iter().map(|&(j, g)| g * q[j]).sum::<f64>())
+            .collect();
+        (q, elong)
+    }
+
+    /// Results of a solved state.
+    #[allow(clippy::too_many_arguments)]
+    pub fn results(
+        &self,
+        name: String,
+        q: &[f64],
+        a: &Actions,
+        elong: &[f64],
+        forces: &[f64],
+        states: &[PartState],
+        trials: usize,
+    ) -> CombinationResult {
+        results(
+            self.model,
+            &self.map,
+            &self.elems,
+            name,
+            &ResultInputs {
+                q,
+                u0: &a.u0,
+                loads: &a.loads,
+                elong,
+                free: &a.free,
+                forces,
+                states,
+                trials,
+            },
+        )
+    }
+}
+
+fn numeric(model: &Model, reason: String) -> SolveError {
+    SolveError::Numeric {
+        reason,
+        span: model.parts.first().map(|p| p.span).unwrap_or_default(),
+    }
+}
+
+/// The force law of a part in a mode: (stiffness on, offset of the target).
+fn law(model: &Model, i: usize, m: Mode) -> (bool, f64) {
+    let s = model.parts[i].slack.value;
+    match m {
+        Mode::Slack => (false, 0.0),
+        Mode::Linear => (true, 0.0),
+        Mode::Tension => (true, s),
+        Mode::Compression => (true, -s),
+    }
+}
+
+/// Solve every combination of a model.
+///
+/// # Errors
+/// Mechanisms (naming the node or body and direction), active sets that do
+/// not settle, conflicting support movements.
+pub fn solve(model: &Model) -> Result<Solution, SolveError> {
+    let system = System::new(model)?;
+    let k_full = system.stiffness();
+    let mut warnings = Vec::new();
+    let (kmin, kmax) = k_full.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), &k| {
+        (lo.min(k), hi.max(k))
+    });
+    if kmax > 1e12 * kmin {
+        warnings.push(format!(
+            "part stiffnesses differ by a factor of {:.1e}; results may lose precision",
+            kmax / kmin
+        ));
+    }
+    let initial: Vec<Mode> = model
+        .parts
+        .iter()
+        .map(|p| match (p.carries, p.slack.value > 0.0) {
+            (Carries::Both, false) => Mode::Linear,
+            (Carries::Tension, _) => Mode::Tension,
+            (Carries::Compression, _) => Mode::Compression,
+            (Carries::Both, true) => Mode::Slack,
+        })
+        .collect();
+    let nonlinear: Vec<usize> = (0..model.parts.len())
+        .filter(|&i| initial[i] != Mode::Linear)
+        .collect();
+    let zero = vec![0.0; model.parts.len()];
+
+    let mut cache: Option<(u64, sparse::Factor<'_>)> = None;
+    let mut combinations = Vec::new();
+    for combo in &model.combinations {
+        let a = system.actions(&combo.name, &combo.terms, Take::ALL)?;
         let mut modes = initial.clone();
         let mut seen: HashSet<u64> = HashSet::new();
         let mut trials = 0;
@@ -424,85 +601,39 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
                     span: combo.span,
                 });
             }
-            let slack_parts: Vec<usize> = nonlinear
-                .iter()
-                .copied()
-                .filter(|&i| modes[i] == Mode::Slack)
+            let k: Vec<f64> = (0..modes.len())
+                .map(|i| {
+                    if law(model, i, modes[i]).0 {
+                        k_full[i]
+                    } else {
+                        0.0
+                    }
+                })
                 .collect();
-            if cache.as_ref().is_none_or(|(k, _)| *k != key) {
-                let mut values = vec![0.0; pattern.nnz()];
-                for (e, m) in elems.iter().zip(&modes) {
-                    if *m != Mode::Slack {
-                        for &(p, c) in &e.pos {
-                            values[p] += e.k * c;
-                        }
-                    }
-                }
-                match pattern.factor(&values) {
-                    Ok(f) => cache = Some((key, f)),
-                    Err(Failure::Unsupported(j)) => {
-                        return Err(mechanism(model, &map, j, &slack_parts))
-                    }
-                    Err(Failure::Mechanism(mode)) => {
-                        let j = dominant(model, &map, &mode);
-                        return Err(mechanism(model, &map, j, &slack_parts));
-                    }
-                    Err(Failure::Other(reason)) => return Err(numeric(reason)),
-                }
+            if cache.as_ref().is_none_or(|(c, _)| *c != key) {
+                let slack_parts: Vec<usize> = nonlinear
+                    .iter()
+                    .copied()
+                    .filter(|&i| modes[i] == Mode::Slack)
+                    .collect();
+                cache = Some((key, system.factor(&k, &slack_parts)?));
             }
-            let mut rhs = f_loads.clone();
-            for (i, (e, m)) in elems.iter().zip(&modes).enumerate() {
-                let offset = match m {
-                    Mode::Slack => continue,
-                    Mode::Linear => 0.0,
-                    Mode::Tension => model.parts[i].slack.value,
-                    Mode::Compression => -model.parts[i].slack.value,
-                };
-                let target = free[i] + offset - e0[i];
-                if target != 0.0 {
-                    for &(j, g) in &e.g {
-                        rhs[j] += e.k * target * g;
-                    }
-                }
-            }
-            if let Some((_, f)) = &cache {
-                f.solve(&mut rhs);
-            }
-            let q = rhs;
-            let elong: Vec<f64> = elems
-                .iter()
-                .zip(&e0)
-                .map(|(e, base)| base + e.g.iter().map(|&(j, g)| g * q[j]).sum::<f64>())
+            let target: Vec<f64> = (0..modes.len())
+                .map(|i| a.free[i] + law(model, i, modes[i]).1)
                 .collect();
+            let Some((_, f)) = &cache else {
+                return Err(numeric(model, "no factorisation".into()));
+            };
+            let (q, elong) = system.respond(f, &k, &target, &zero, &a);
             let mut changed = false;
             for &i in &nonlinear {
                 let p = &model.parts[i];
-                let delta = elong[i] - free[i];
+                let delta = elong[i] - a.free[i];
                 let s = p.slack.value;
                 let want = match p.carries {
-                    Carries::Tension => {
-                        if delta > s {
-                            Mode::Tension
-                        } else {
-                            Mode::Slack
-                        }
-                    }
-                    Carries::Compression => {
-                        if delta < -s {
-                            Mode::Compression
-                        } else {
-                            Mode::Slack
-                        }
-                    }
-                    Carries::Both => {
-                        if delta > s {
-                            Mode::Tension
-                        } else if delta < -s {
-                            Mode::Compression
-                        } else {
-                            Mode::Slack
-                        }
-                    }
+                    Carries::Tension | Carries::Both if delta > s => Mode::Tension,
+                    Carries::Compression | Carries::Both if delta < -s => Mode::Compression,
+                    _ => Mode::Slack,
                 };
                 if want != modes[i] {
                     modes[i] = want;
@@ -513,25 +644,40 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
                 break (q, elong);
             }
         };
-
-        combinations.push(results(
-            model,
-            &map,
-            &elems,
+        let k: Vec<f64> = (0..modes.len())
+            .map(|i| {
+                if law(model, i, modes[i]).0 {
+                    k_full[i]
+                } else {
+                    0.0
+                }
+            })
+            .collect();
+        let forces: Vec<f64> = (0..modes.len())
+            .map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1))
+            .collect();
+        let states: Vec<PartState> = modes
+            .iter()
+            .map(|m| {
+                if *m == Mode::Slack {
+                    PartState::Slack
+                } else {
+                    PartState::Elastic
+                }
+            })
+            .collect();
+        combinations.push(system.results(
             combo.name.clone(),
-            &ResultInputs {
-                q: &q,
-                u0: &u0,
-                loads: &loads,
-                elong: &elong,
-                free: &free,
-                modes: &modes,
-                trials,
-            },
+            &q,
+            &a,
+            &elong,
+            &forces,
+            &states,
+            trials,
         ));
     }
     Ok(Solution {
-        unknowns: map.n,
+        unknowns: system.map.n,
         combinations,
         warnings,
     })
@@ -568,7 +714,9 @@ struct ResultInputs<'a> {
     loads: &'a [f64],
     elong: &'a [f64],
     free: &'a [f64],
-    modes: &'a [Mode],
+    /// The force in each part.
+    forces: &'a [f64],
+    states: &'a [PartState],
     trials: usize,
 }
 
@@ -593,13 +741,7 @@ fn results(
     let mut scale = r.loads.iter().fold(0.0f64, |m, v| m.max(v.abs()));
     for (i, p) in model.parts.iter().enumerate() {
         let e = &elems[i];
-        let delta = r.elong[i] - r.free[i];
-        let (force, state) = match r.modes[i] {
-            Mode::Slack => (0.0, PartState::Slack),
-            Mode::Linear => (e.k * delta, PartState::Elastic),
-            Mode::Tension => (e.k * (delta - p.slack.value), PartState::Elastic),
-            Mode::Compression => (e.k * (delta + p.slack.value), PartState::Elastic),
-        };
+        let (force, state) = (r.forces[i], r.states[i]);
         scale = scale.max(force.abs());
         for d in 0..nd {
             net[p.ends[0] * nd + d] += force * e.dir[d];
