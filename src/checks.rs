@@ -241,3 +241,117 @@ pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError
     }
     Ok(out)
 }
+
+/// Euler buckling of one compression part or parallel group.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Buckling {
+    /// The part, or the parts of a parallel group.
+    pub parts: Vec<usize>,
+    /// Effective length K·L (m).
+    pub kl: f64,
+    /// Radius of gyration sqrt(I/A) (m), for a single part.
+    pub r: Option<f64>,
+    /// Σ E·I (N·m²).
+    pub ei: f64,
+    /// Euler load π² Σ E·I / (K·L)² (N).
+    pub euler: f64,
+    /// Largest compression over the combinations (N, positive) and where.
+    pub compression: f64,
+    pub combination: usize,
+    pub slenderness_limit: f64,
+    pub euler_fraction: f64,
+}
+
+impl Buckling {
+    pub fn slenderness(&self) -> Option<f64> {
+        self.r.map(|r| self.kl / r)
+    }
+
+    /// Warnings for this part or group.
+    pub fn warnings(&self, model: &Model) -> Vec<String> {
+        let names: Vec<String> = self.parts.iter().map(|&i| format!("`{}`", model.parts[i].name)).collect();
+        let what = if self.parts.len() == 1 {
+            format!("part {}", names[0])
+        } else {
+            format!("the parallel group {}", names.join(" + "))
+        };
+        let mut w = Vec::new();
+        if let Some(s) = self.slenderness() {
+            if s > self.slenderness_limit {
+                w.push(format!("{what} has KL/r = {} above the limit {}", crate::report::number(s, 4), crate::report::number(self.slenderness_limit, 4)));
+            }
+        }
+        if self.compression > self.euler_fraction * self.euler {
+            w.push(format!(
+                "{what} carries {} of its Euler load in compression (limit {}); the short-column assumption does not hold",
+                crate::report::number(self.compression / self.euler, 3),
+                crate::report::number(self.euler_fraction, 3)
+            ));
+        }
+        w
+    }
+}
+
+/// Euler loads and slenderness of every part with a `buckling_length`, and
+/// of parallel groups of them (parts spanning the same two nodes, such as a
+/// filled pipe), with their largest compression.
+pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
+    let pi2 = std::f64::consts::PI * std::f64::consts::PI;
+    let worst = |parts: &[usize]| {
+        let mut best = (0.0f64, 0usize);
+        for (k, r) in solution.combinations.iter().enumerate() {
+            let c = -parts.iter().map(|&i| r.parts[i].force.value).sum::<f64>();
+            if c > best.0 {
+                best = (c, k);
+            }
+        }
+        best
+    };
+    let mut out = Vec::new();
+    let mut groups: Vec<((usize, usize), Vec<usize>)> = Vec::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let (Some(kl), Some(inertia), Some(m), Some(area)) =
+            (p.buckling_length, p.inertia(), p.material(), p.area())
+        else {
+            continue;
+        };
+        let ei = model.materials[m].e.value * inertia;
+        let kl = kl.value;
+        let (compression, combination) = worst(&[i]);
+        out.push(Buckling {
+            parts: vec![i],
+            kl,
+            r: Some((inertia / area.value).sqrt()),
+            ei,
+            euler: pi2 * ei / (kl * kl),
+            compression,
+            combination,
+            slenderness_limit: p.slenderness_limit,
+            euler_fraction: p.euler_fraction,
+        });
+        let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
+        match groups.iter_mut().find(|g| g.0 == key) {
+            Some(g) => g.1.push(i),
+            None => groups.push((key, vec![i])),
+        }
+    }
+    for (_, g) in groups.into_iter().filter(|g| g.1.len() > 1) {
+        let single: Vec<&Buckling> = g.iter().filter_map(|&i| out.iter().find(|b| b.parts == vec![i])).collect();
+        let kl = single.iter().map(|b| b.kl).fold(0.0, f64::max);
+        let ei: f64 = single.iter().map(|b| b.ei).sum();
+        let (compression, combination) = worst(&g);
+        let fraction = single.iter().map(|b| b.euler_fraction).fold(f64::INFINITY, f64::min);
+        out.push(Buckling {
+            parts: g,
+            kl,
+            r: None,
+            ei,
+            euler: pi2 * ei / (kl * kl),
+            compression,
+            combination,
+            slenderness_limit: f64::INFINITY,
+            euler_fraction: fraction,
+        });
+    }
+    out
+}

@@ -70,6 +70,12 @@ pub struct Analysis {
     pub model: Model,
     pub solution: solve::Solution,
     pub checks: checks::Checks,
+    /// Capacity paths (when a material has `yield`).
+    pub capacity: Vec<solve::capacity::Capacity>,
+    /// Long-term states (when a material creeps and a case is sustained).
+    pub long_term: Vec<solve::longterm::LongTerm>,
+    /// Euler loads of parts with a `buckling_length`.
+    pub buckling: Vec<checks::Buckling>,
 }
 
 /// Check, solve and evaluate the checks of a calc file.
@@ -80,10 +86,16 @@ pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
     let model = check(source)?;
     let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
     let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
+    let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
+    let long_term = solve::longterm::long_term(&model).map_err(|e| vec![Error::from(e)])?;
+    let buckling = checks::buckling(&model, &solution);
     Ok(Analysis {
         model,
         solution,
         checks,
+        capacity,
+        long_term,
+        buckling,
     })
 }
 

@@ -291,6 +291,8 @@ struct Builder {
     errors: Vec<ModelError>,
     limits: Limits,
     overrides: Vec<(String, Quantity)>,
+    /// Published sources behind each `let`, by name.
+    let_sources: HashMap<String, Vec<&'static str>>,
 }
 
 fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option<T> {
@@ -572,6 +574,7 @@ impl Builder {
             errors: Vec::new(),
             limits,
             overrides: Vec::new(),
+            let_sources: HashMap::new(),
         }
     }
 
@@ -718,6 +721,7 @@ impl Builder {
             }
         }
         let mut values: Vec<Option<Result<Quantity, ()>>> = vec![None; n];
+        let order_copy = order.clone();
         for i in order {
             if in_cycle[i] || !registered(i, lets[i]) {
                 values[i] = Some(Err(()));
@@ -736,14 +740,34 @@ impl Builder {
                 None => Err(()),
             });
         }
+        let mut srcs: Vec<Vec<&'static str>> = vec![Vec::new(); n];
+        for &i in &order_copy {
+            let mut s = Vec::new();
+            super::eval::sources(&lets[i].value, &mut s);
+            for &j in &deps[i] {
+                if j != i {
+                    for x in srcs[j].clone() {
+                        if !s.contains(&x) {
+                            s.push(x);
+                        }
+                    }
+                }
+            }
+            srcs[i] = s;
+        }
+        for (l, s) in lets.iter().zip(&srcs) {
+            self.let_sources.insert(l.name.name.clone(), s.clone());
+        }
         let out = lets
             .iter()
             .zip(&values)
-            .filter_map(|(l, v)| match v {
+            .zip(srcs)
+            .filter_map(|((l, v), sources)| match v {
                 Some(Ok(q)) => Some(LetValue {
                     name: l.name.name.clone(),
                     value: *q,
                     expr: l.value.clone(),
+                    sources,
                     span: l.span,
                 }),
                 _ => None,
@@ -1211,6 +1235,19 @@ impl Builder {
                 });
             }
         }
+        let mut e_sources = Vec::new();
+        if let Some(Ok(expr)) = f.expr("E") {
+            super::eval::sources(expr, &mut e_sources);
+            let mut refs = Vec::new();
+            walk_names(expr, &mut refs);
+            for id in refs {
+                for s in self.let_sources.get(&id.name).cloned().unwrap_or_default() {
+                    if !e_sources.contains(&s) {
+                        e_sources.push(s);
+                    }
+                }
+            }
+        }
         let e = e?;
         if e.value <= 0.0 {
             let sp = f.map.get("E").map(|x| x.span).unwrap_or_default();
@@ -1232,6 +1269,7 @@ impl Builder {
             allowable_tension,
             allowable_compression,
             creep,
+            e_sources,
             span: nb.span,
         })
     }
@@ -1257,6 +1295,8 @@ impl Builder {
             "carries",
             "slack",
             "buckling_length",
+            "slenderness_limit",
+            "euler_fraction",
         ];
         let pname = &nb.name.name;
         let what = format!("part `{pname}`");
@@ -1455,6 +1495,33 @@ impl Builder {
         let misfit = length_key("misfit", self, false).unwrap_or_default();
         let slack = length_key("slack", self, true).unwrap_or_default();
         let buckling_length = length_key("buckling_length", self, true);
+        let ratio_key = |key: &str, default: f64, b: &mut Self| -> f64 {
+            match b.opt(f.quantity(key, Dimension::NONE, scope)) {
+                Some(q) if q.value > 0.0 => q.value,
+                Some(_) => {
+                    b.errors.push(ModelError::NotPositive {
+                        what: format!("`{key}` of {what}"),
+                        value: "zero or less".into(),
+                        span: f.map.get(key).map(|e| e.span).unwrap_or_default(),
+                        help: None,
+                    });
+                    default
+                }
+                None => default,
+            }
+        };
+        // AISC 360-16 E2 (user note): KL/r preferably not over 200 (from memory).
+        let slenderness_limit = ratio_key("slenderness_limit", 200.0, self);
+        let euler_fraction = ratio_key("euler_fraction", 1.0, self);
+        if buckling_length.is_some() && !matches!(law, Some(Law::Member { inertia: Some(_), .. })) {
+            let sp = f.map.get("buckling_length").map(|e| e.span).unwrap_or(nb.span);
+            self.errors.push(ModelError::MissingKey {
+                block: what.clone(),
+                key: "inertia",
+                span: sp,
+                help: Some("a buckling check needs a second moment: give `section = ring(...)` or `inertia = ...`".into()),
+            });
+        }
 
         let carries = match self.opt(f.names("carries")) {
             Some(list) if list.len() == 1 => match list[0].name.as_str() {
@@ -1520,6 +1587,8 @@ impl Builder {
             carries,
             slack,
             buckling_length,
+            slenderness_limit,
+            euler_fraction,
             span: nb.span,
         })
     }

@@ -63,7 +63,19 @@ pub const CONSTANTS: &[&str] = &["pi"];
 
 /// Built-in function names.
 pub const FUNCTIONS: &[&str] = &[
-    "sqrt", "abs", "min", "max", "circle", "ring", "rect", "box", "ishape",
+    "sqrt",
+    "abs",
+    "min",
+    "max",
+    "circle",
+    "ring",
+    "rect",
+    "box",
+    "ishape",
+    "ec_aci",
+    "ec_aci_weight",
+    "ec_aci_si",
+    "ecm_en1992",
 ];
 
 /// The value of a built-in constant.
@@ -254,12 +266,25 @@ fn lengths(
     span: Span,
     scope: &dyn Scope,
 ) -> Result<Vec<f64>, ModelError> {
+    let dims = vec![Dimension::LENGTH; names.len()];
+    named(func, args, names, &dims, span, scope)
+}
+
+/// Named positive arguments of given dimensions, in the order of `names`.
+fn named(
+    func: &Ident,
+    args: &[Arg],
+    names: &[&'static str],
+    dims: &[Dimension],
+    span: Span,
+    scope: &dyn Scope,
+) -> Result<Vec<f64>, ModelError> {
     let expected = names
         .iter()
         .map(|n| format!("`{n}`"))
         .collect::<Vec<_>>()
         .join(", ");
-    let mut values: Vec<Option<(f64, Span)>> = vec![None; names.len()];
+    let mut values: Vec<Option<f64>> = vec![None; names.len()];
     for a in args {
         let Some(name) = &a.name else {
             return Err(ModelError::BadArguments {
@@ -267,7 +292,7 @@ fn lengths(
                 span: a.span,
                 label: "argument without a name".into(),
                 help: Some(format!(
-                    "write e.g. `{}({} = 10 in, ...)`; it takes {expected}",
+                    "write e.g. `{}({} = ...)`; it takes {expected}",
                     func.name, names[0]
                 )),
             });
@@ -293,13 +318,15 @@ fn lengths(
             });
         }
         let q = eval(&a.value, scope)?;
-        if q.dim != Dimension::LENGTH {
+        if q.dim != dims[i] {
             return Err(ModelError::WrongDimension {
                 what: format!("`{}` of `{}`", name.name, func.name),
-                expected: "a length".into(),
+                expected: dims[i].describe(),
                 found: q.dim.describe(),
                 span: a.value.span,
-                help: Some("expected a length such as `0.365 in` or `10 mm`".into()),
+                help: dims[i]
+                    .example()
+                    .map(|e| format!("expected {} such as {e}", dims[i].describe())),
             });
         }
         if q.value <= 0.0 {
@@ -310,12 +337,12 @@ fn lengths(
                 help: None,
             });
         }
-        values[i] = Some((q.value, a.value.span));
+        values[i] = Some(q.value);
     }
     let mut out = Vec::with_capacity(names.len());
     for (n, v) in names.iter().zip(values) {
         match v {
-            Some((x, _)) => out.push(x),
+            Some(x) => out.push(x),
             None => {
                 return Err(ModelError::BadArguments {
                     message: format!("`{}` needs `{n}`", func.name),
@@ -327,6 +354,82 @@ fn lengths(
         }
     }
     Ok(out)
+}
+
+/// A published modulus formula: its function name, arguments and source.
+pub struct Formula {
+    pub name: &'static str,
+    pub args: &'static str,
+    pub source: &'static str,
+    pub help: &'static str,
+}
+
+/// The published moduli tandem knows, for `tandem functions` and reports.
+pub const FORMULAS: &[Formula] = &[
+    Formula {
+        name: "ec_aci",
+        args: "fc = f'c",
+        source: "ACI 318-19 19.2.2.1(b)",
+        help: "modulus of normalweight concrete, Ec = 57,000 sqrt(f'c) with f'c and Ec in psi",
+    },
+    Formula {
+        name: "ec_aci_weight",
+        args: "wc = unit weight, fc = f'c",
+        source: "ACI 318-19 19.2.2.1(a)",
+        help: "modulus for unit weight wc of 90 to 160 lb/ft³, Ec = wc^1.5 · 33 sqrt(f'c) with wc in lb/ft³ and f'c, Ec in psi",
+    },
+    Formula {
+        name: "ec_aci_si",
+        args: "fc = f'c",
+        source: "ACI 318-19 19.2.2.1(b), SI form",
+        help: "modulus of normalweight concrete, Ec = 4700 sqrt(f'c) with f'c and Ec in MPa",
+    },
+    Formula {
+        name: "ecm_en1992",
+        args: "fck = characteristic cylinder strength",
+        source: "EN 1992-1-1 Table 3.1",
+        help: "secant modulus Ecm = 22 (fcm/10)^0.3 GPa with fcm = fck + 8 MPa (the table prints it rounded to whole GPa)",
+    },
+];
+
+/// The source of a published formula used by name.
+#[must_use]
+pub fn formula_source(name: &str) -> Option<&'static str> {
+    FORMULAS.iter().find(|f| f.name == name).map(|f| f.source)
+}
+
+/// Published sources of the formulas an expression calls.
+pub fn sources(e: &Expr, out: &mut Vec<&'static str>) {
+    match &e.kind {
+        ExprKind::Call { func, args } => {
+            if let Some(s) = formula_source(&func.name) {
+                if !out.contains(&s) {
+                    out.push(s);
+                }
+            }
+            for a in args {
+                sources(&a.value, out);
+            }
+        }
+        ExprKind::Neg(x) => sources(x, out),
+        ExprKind::Sum(a, rest) => {
+            sources(a, out);
+            for (_, x) in rest {
+                sources(x, out);
+            }
+        }
+        ExprKind::Product(a, rest) => {
+            sources(a, out);
+            for (_, x) in rest {
+                sources(x, out);
+            }
+        }
+        ExprKind::Power(a, b) => {
+            sources(a, out);
+            sources(b, out);
+        }
+        _ => {}
+    }
 }
 
 fn too_thick(func: &Ident, span: Span, rule: &str) -> ModelError {
@@ -403,6 +506,9 @@ fn call(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Val
             }
             return Ok(Val::Section(ishape(v[0], v[1], v[2], v[3])));
         }
+        "ec_aci" | "ec_aci_si" | "ecm_en1992" | "ec_aci_weight" => {
+            return modulus(func, args, span, scope).map(Val::Q);
+        }
         _ => {
             return Err(ModelError::UnknownFunction {
                 name: func.name.clone(),
@@ -475,4 +581,31 @@ pub fn ishape(d: f64, bf: f64, tf: f64, tw: f64) -> Section {
         ix: (bf * d.powi(3) - (bf - tw) * hw.powi(3)) / 12.0,
         iy: 2.0 * tf * bf.powi(3) / 12.0 + hw * tw.powi(3) / 12.0,
     }
+}
+
+/// The published modulus formulas, evaluated in their own units.
+fn modulus(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Quantity, ModelError> {
+    let unit = |n: &str| lookup(n).map_or(1.0, |u| u.factor);
+    let p = Dimension::PRESSURE;
+    let value = match func.name.as_str() {
+        "ec_aci" => {
+            let v = named(func, args, &["fc"], &[p], span, scope)?;
+            57_000.0 * (v[0] / unit("psi")).sqrt() * unit("psi")
+        }
+        "ec_aci_si" => {
+            let v = named(func, args, &["fc"], &[p], span, scope)?;
+            4_700.0 * (v[0] / unit("MPa")).sqrt() * unit("MPa")
+        }
+        "ec_aci_weight" => {
+            let w = Dimension::new(-2, 1, -2, 0);
+            let v = named(func, args, &["wc", "fc"], &[w, p], span, scope)?;
+            (v[0] / unit("pcf")).powf(1.5) * 33.0 * (v[1] / unit("psi")).sqrt() * unit("psi")
+        }
+        _ => {
+            let v = named(func, args, &["fck"], &[p], span, scope)?;
+            let fcm = v[0] / unit("MPa") + 8.0;
+            22.0 * (fcm / 10.0).powf(0.3) * unit("GPa")
+        }
+    };
+    Ok(Quantity::new(value, p))
 }

@@ -75,6 +75,8 @@ pub struct LetValue {
     pub name: String,
     pub value: Quantity,
     pub expr: Expr,
+    /// Published formulas the value comes from (directly or through other lets).
+    pub sources: Vec<&'static str>,
     pub span: Span,
 }
 
@@ -90,6 +92,8 @@ pub struct Material {
     pub allowable_tension: Option<Pressure>,
     pub allowable_compression: Option<Pressure>,
     pub creep: Option<f64>,
+    /// Published formulas `E` comes from.
+    pub e_sources: Vec<&'static str>,
     pub span: Span,
 }
 
@@ -151,6 +155,10 @@ pub struct Part {
     pub carries: Carries,
     pub slack: Length,
     pub buckling_length: Option<Length>,
+    /// Slenderness KL/r above which a warning is given.
+    pub slenderness_limit: f64,
+    /// Fraction of the Euler load above which a compression warning is given.
+    pub euler_fraction: f64,
     pub span: Span,
 }
 
@@ -174,6 +182,15 @@ impl Part {
     pub fn area(&self) -> Option<Area> {
         match &self.law {
             Law::Member { area, .. } => Some(*area),
+            Law::Spring { .. } => None,
+        }
+    }
+
+    /// Smaller principal second moment (m⁴), for members that give one.
+    #[must_use]
+    pub fn inertia(&self) -> Option<f64> {
+        match &self.law {
+            Law::Member { inertia, .. } => *inertia,
             Law::Spring { .. } => None,
         }
     }

@@ -8,8 +8,10 @@
 //! changes. Results are checked afterwards against equilibrium computed
 //! from the part forces, loads and reactions alone.
 
+pub mod capacity;
 mod dofs;
 mod error;
+pub mod longterm;
 mod sparse;
 
 pub use error::SolveError;

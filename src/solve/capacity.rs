@@ -1,0 +1,179 @@
+//! Capacity of assemblies whose parts can yield: the loads of a combination
+//! are scaled by a factor λ (self-straining actions stay at full value) and
+//! the path is traced event to event. Each event is the next part reaching
+//! its yield force, which it then carries unchanged (elastic–perfectly
+//! plastic), until the assembly becomes a mechanism: the plastic limit.
+
+use super::{SolveError, System, Take};
+use crate::model::{Carries, Model};
+
+/// A part reaching yield.
+#[derive(Clone, Debug, PartialEq)]
+pub struct YieldEvent {
+    pub part: usize,
+    /// Load factor at which it yields.
+    pub lambda: f64,
+    /// Yields in tension (else compression).
+    pub tension: bool,
+}
+
+/// The capacity path of one combination.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Capacity {
+    pub combination: usize,
+    /// Load factor at first yield.
+    pub first_yield: Option<f64>,
+    /// Load factor at the plastic limit (`None`: no mechanism forms, because
+    /// parts without a yield strength keep carrying load).
+    pub limit: Option<f64>,
+    pub events: Vec<YieldEvent>,
+    /// Part forces at the limit (N).
+    pub limit_forces: Vec<f64>,
+    /// Part forces after unloading elastically from the limit (N).
+    pub residual: Vec<f64>,
+    /// Why the analysis was not made, when it was not.
+    pub note: Option<String>,
+}
+
+fn skipped(combination: usize, note: &str) -> Capacity {
+    Capacity {
+        combination,
+        first_yield: None,
+        limit: None,
+        events: Vec::new(),
+        limit_forces: Vec::new(),
+        residual: Vec::new(),
+        note: Some(note.to_string()),
+    }
+}
+
+/// Yield forces of a part in tension and compression (N), if it can yield.
+fn yield_forces(model: &Model, i: usize) -> Option<(f64, f64)> {
+    let p = &model.parts[i];
+    let m = &model.materials[p.material()?];
+    let fy = m.yield_strength?.value;
+    let fyc = m.yield_compression.map_or(fy, |x| x.value);
+    let a = p.area()?.value;
+    Some((fy * a, fyc * a))
+}
+
+/// The capacity path of every combination, when any material has `yield`.
+///
+/// # Errors
+/// A solver error other than the mechanism that ends a path.
+pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
+    if !model.materials.iter().any(|m| m.yield_strength.is_some()) {
+        return Ok(Vec::new());
+    }
+    let nonlinear = model
+        .parts
+        .iter()
+        .any(|p| p.carries != Carries::Both || p.slack.value > 0.0);
+    let system = System::new(model)?;
+    let n = model.parts.len();
+    let k_full = system.stiffness();
+    let zero = vec![0.0; n];
+    let mut out = Vec::new();
+    for (ci, combo) in model.combinations.iter().enumerate() {
+        if nonlinear {
+            out.push(skipped(ci, "not traced: the assembly has one-sense or gapped parts, whose engagement would change along the path"));
+            continue;
+        }
+        let constant = system.actions(&combo.name, &combo.terms, Take { loads: false, strains: true, misfit: true })?;
+        let load = system.actions(&combo.name, &combo.terms, Take { loads: true, strains: false, misfit: false })?;
+        if load.loads.iter().all(|x| *x == 0.0) {
+            out.push(skipped(ci, "not traced: the combination has no loads to scale"));
+            continue;
+        }
+        // Elastic response of the whole assembly to the load pattern, for unloading.
+        let f_el = system.factor(&k_full, &[])?;
+        let (_, e_el) = system.respond(&f_el, &k_full, &zero, &zero, &load);
+        let n_el: Vec<f64> = (0..n).map(|i| k_full[i] * e_el[i]).collect();
+
+        let mut yielded: Vec<Option<f64>> = vec![None; n];
+        let mut lambda = 0.0;
+        let mut events = Vec::new();
+        let mut limit_forces = vec![0.0; n];
+        let mut limit = None;
+        let mut note = None;
+        loop {
+            let k: Vec<f64> = (0..n).map(|i| if yielded[i].is_some() { 0.0 } else { k_full[i] }).collect();
+            let forces: Vec<f64> = yielded.iter().map(|y| y.unwrap_or(0.0)).collect();
+            let factor = match system.factor(&k, &[]) {
+                Ok(f) => f,
+                Err(SolveError::Mechanism { .. }) => {
+                    limit = Some(lambda);
+                    break;
+                }
+                Err(e) => return Err(e),
+            };
+            let (_, ec) = system.respond(&factor, &k, &constant.free, &forces, &constant);
+            let (_, ep) = system.respond(&factor, &k, &zero, &zero, &load);
+            let nc: Vec<f64> = (0..n).map(|i| yielded[i].unwrap_or(k[i] * (ec[i] - constant.free[i]))).collect();
+            let np: Vec<f64> = (0..n).map(|i| if yielded[i].is_some() { 0.0 } else { k[i] * ep[i] }).collect();
+            // Next part to reach its yield force.
+            let mut next = f64::INFINITY;
+            let mut candidates: Vec<(usize, f64, bool)> = Vec::new();
+            for i in 0..n {
+                if yielded[i].is_some() {
+                    continue;
+                }
+                let Some((ft, fc)) = yield_forces(model, i) else { continue };
+                let now = nc[i] + lambda * np[i];
+                if events.is_empty() && (now > ft || now < -fc) {
+                    note = Some(format!(
+                        "part `{}` is past yield under the self-straining actions alone",
+                        model.parts[i].name
+                    ));
+                }
+                let scale = nc[i].abs().max(np[i].abs()).max(ft);
+                let (l, tension) = if np[i] > 1e-12 * scale {
+                    ((ft - nc[i]) / np[i], true)
+                } else if np[i] < -1e-12 * scale {
+                    ((-fc - nc[i]) / np[i], false)
+                } else {
+                    continue;
+                };
+                let l = l.max(lambda);
+                candidates.push((i, l, tension));
+                next = next.min(l);
+            }
+            if note.is_some() || !next.is_finite() {
+                for i in 0..n {
+                    limit_forces[i] = nc[i] + lambda * np[i];
+                }
+                break;
+            }
+            let tol = 1e-9 * next.abs().max(1.0);
+            for &(i, l, tension) in &candidates {
+                if l <= next + tol {
+                    let (ft, fc) = yield_forces(model, i).unwrap_or((0.0, 0.0));
+                    yielded[i] = Some(if tension { ft } else { -fc });
+                    events.push(YieldEvent { part: i, lambda: next, tension });
+                }
+            }
+            lambda = next;
+            for i in 0..n {
+                limit_forces[i] = yielded[i].unwrap_or(nc[i] + lambda * np[i]);
+            }
+            if events.len() >= n {
+                limit = Some(lambda);
+                break;
+            }
+        }
+        let residual = match limit {
+            Some(l) => (0..n).map(|i| limit_forces[i] - l * n_el[i]).collect(),
+            None => Vec::new(),
+        };
+        out.push(Capacity {
+            combination: ci,
+            first_yield: events.first().map(|e| e.lambda),
+            limit,
+            events,
+            limit_forces,
+            residual,
+            note,
+        });
+    }
+    Ok(out)
+}
