@@ -269,7 +269,11 @@ impl Buckling {
 
     /// Warnings for this part or group.
     pub fn warnings(&self, model: &Model) -> Vec<String> {
-        let names: Vec<String> = self.parts.iter().map(|&i| format!("`{}`", model.parts[i].name)).collect();
+        let names: Vec<String> = self
+            .parts
+            .iter()
+            .map(|&i| format!("`{}`", model.parts[i].name))
+            .collect();
         let what = if self.parts.len() == 1 {
             format!("part {}", names[0])
         } else {
@@ -278,7 +282,11 @@ impl Buckling {
         let mut w = Vec::new();
         if let Some(s) = self.slenderness() {
             if s > self.slenderness_limit {
-                w.push(format!("{what} has KL/r = {} above the limit {}", crate::report::number(s, 4), crate::report::number(self.slenderness_limit, 4)));
+                w.push(format!(
+                    "{what} has KL/r = {} above the limit {}",
+                    crate::report::number(s, 4),
+                    crate::report::number(self.slenderness_limit, 4)
+                ));
             }
         }
         if self.compression > self.euler_fraction * self.euler {
@@ -336,11 +344,17 @@ pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
         }
     }
     for (_, g) in groups.into_iter().filter(|g| g.1.len() > 1) {
-        let single: Vec<&Buckling> = g.iter().filter_map(|&i| out.iter().find(|b| b.parts == vec![i])).collect();
+        let single: Vec<&Buckling> = g
+            .iter()
+            .filter_map(|&i| out.iter().find(|b| b.parts == vec![i]))
+            .collect();
         let kl = single.iter().map(|b| b.kl).fold(0.0, f64::max);
         let ei: f64 = single.iter().map(|b| b.ei).sum();
         let (compression, combination) = worst(&g);
-        let fraction = single.iter().map(|b| b.euler_fraction).fold(f64::INFINITY, f64::min);
+        let fraction = single
+            .iter()
+            .map(|b| b.euler_fraction)
+            .fold(f64::INFINITY, f64::min);
         out.push(Buckling {
             parts: g,
             kl,

@@ -142,6 +142,9 @@ pub enum Command {
         #[arg(long)]
         check: bool,
     },
+    /// List the built-in functions: section helpers and published moduli,
+    /// each with its source.
+    Functions,
     /// List every unit tandem knows, with its dimension and factor to SI.
     Units,
 }

@@ -60,6 +60,10 @@ fn main() -> ExitCode {
             json,
             show,
         } => diff(&old, &new, min_change, json, &show),
+        Command::Functions => {
+            print!("{}", tandem::model::eval::listing());
+            ExitCode::SUCCESS
+        }
         Command::Units => {
             print!("{}", tandem::units::listing());
             ExitCode::SUCCESS
@@ -129,7 +133,7 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         }
     };
     if json {
-        let v = tandem::report::json::solution_json(&source.name, &a.model, &a.solution, &a.checks);
+        let v = tandem::report::json::solution_json(&source.name, &a);
         match serde_json::to_string_pretty(&v) {
             Ok(s) => println!("{s}"),
             Err(e) => {
@@ -145,10 +149,7 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
                 return bad();
             }
         };
-        print!(
-            "{}",
-            tandem::report::table::solve_text(&a.model, &a.solution, &a.checks, &d)
-        );
+        print!("{}", tandem::report::table::solve_text(&a, &d));
     }
     if a.checks.failures() > 0 {
         ExitCode::from(1)
@@ -173,7 +174,7 @@ fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool),
         eprintln!("error: {msg}");
         bad()
     })?;
-    let md = tandem::report::markdown::report(&source, &a.model, &a.solution, &a.checks, &d);
+    let md = tandem::report::markdown::report(&source, &a, &d);
     let text = if html {
         let title = a.model.title.get("title").unwrap_or("tandem calculation");
         tandem::report::html(&md, title)

@@ -7,7 +7,8 @@ use tandem::source::Source;
 
 fn analyse(text: &str) -> tandem::Analysis {
     let src = Source::new("t.tandem", text);
-    tandem::analyse(&src).unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)))
+    tandem::analyse(&src)
+        .unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)))
 }
 
 fn rel(a: f64, b: f64) -> f64 {
@@ -141,7 +142,7 @@ load b = -70 kN
     let b = &a.buckling[0];
     assert!((b.euler / 1e3 - 62.01).abs() < 0.005, "{}", b.euler);
     assert!(rel(b.slenderness().expect("r"), 2.0 / 0.01) < 1e-12); // r = d/4
-    // 70 kN is past the Euler load: warned
+                                                                   // 70 kN is past the Euler load: warned
     assert!(b.warnings(&a.model).iter().any(|w| w.contains("Euler")));
 }
 
@@ -160,7 +161,11 @@ part tube { material = steel; section = ring(d = 273 mm, t = 6 mm); buckling_len
 load b = -500 kN
 ",
     );
-    let group = a.buckling.iter().find(|b| b.parts.len() == 2).expect("group");
+    let group = a
+        .buckling
+        .iter()
+        .find(|b| b.parts.len() == 2)
+        .expect("group");
     let ei = a.buckling[0].ei + a.buckling[1].ei;
     assert!(rel(group.euler, std::f64::consts::PI.powi(2) * ei / 36.0) < 1e-12);
     assert!(rel(group.compression, 500e3) < 1e-9);
@@ -171,7 +176,11 @@ load b = -500 kN
 #[test]
 fn aci_moduli() {
     let psi = 4.448_221_615_260_5 / 0.000_645_16;
-    for (fc, table) in [(3000.0, 3_122_019.0), (4000.0, 3_604_997.0), (5000.0, 4_030_509.0)] {
+    for (fc, table) in [
+        (3000.0, 3_122_019.0),
+        (4000.0, 3_604_997.0),
+        (5000.0, 4_030_509.0),
+    ] {
         let q = common::value(&format!("let ec = ec_aci(fc = {fc} psi)"), "ec");
         assert!((q.value / psi - table).abs() < 0.5);
     }
@@ -192,7 +201,13 @@ fn aci_moduli() {
 fn en1992_moduli() {
     let q = common::value("let e = ecm_en1992(fck = 30 MPa)", "e");
     assert!((q.value / 1e9 - 32.84).abs() < 0.005);
-    for (fck, table) in [(20.0, 30.0), (25.0, 31.0), (30.0, 33.0), (40.0, 35.0), (50.0, 37.0)] {
+    for (fck, table) in [
+        (20.0, 30.0),
+        (25.0, 31.0),
+        (30.0, 33.0),
+        (40.0, 35.0),
+        (50.0, 37.0),
+    ] {
         let q = common::value(&format!("let e = ecm_en1992(fck = {fck} MPa)"), "e");
         assert_eq!((q.value / 1e9).round(), table, "C{fck}");
     }
@@ -200,7 +215,14 @@ fn en1992_moduli() {
 
 #[test]
 fn modulus_sources_are_tracked() {
-    let m = common::model(&format!("let ec = ec_aci(fc = 5 ksi)\nmaterial fill2 {{ E = ec }}\n{}", common::ASSEMBLY));
-    let mat = m.materials.iter().find(|x| x.name == "fill2").expect("material");
+    let m = common::model(&format!(
+        "let ec = ec_aci(fc = 5 ksi)\nmaterial fill2 {{ E = ec }}\n{}",
+        common::ASSEMBLY
+    ));
+    let mat = m
+        .materials
+        .iter()
+        .find(|x| x.name == "fill2")
+        .expect("material");
     assert_eq!(mat.e_sources, vec!["ACI 318-19 19.2.2.1(b)"]);
 }

@@ -38,7 +38,7 @@ fn results(text: &str) -> String {
     lets.sort();
     format!(
         "{}\n{}\n{:?}",
-        tandem::report::json::solution_json("same", &a.model, &a.solution, &a.checks),
+        tandem::report::json::solution_json("same", &a),
         lets.join(","),
         a.model.title
     )

@@ -52,7 +52,7 @@ fn render(path: &Path) -> (String, tandem::Analysis) {
         Err(e) => panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)),
     };
     let d = Display::for_model(&a.model, 4);
-    let md = tandem::report::markdown::report(&src, &a.model, &a.solution, &a.checks, &d);
+    let md = tandem::report::markdown::report(&src, &a, &d);
     (md, a)
 }
 
@@ -389,6 +389,14 @@ impl<'a> Eval<'a> {
         self.pos += 1;
         if t == "-" {
             return Some(self.factor()?.neg());
+        }
+        if t == "π²" {
+            let v = std::f64::consts::PI * std::f64::consts::PI;
+            return Some(Iv {
+                lo: v,
+                hi: v,
+                dim: Dimension::NONE,
+            });
         }
         if t == "(" {
             let v = self.expr()?;

@@ -1513,8 +1513,16 @@ impl Builder {
         // AISC 360-16 E2 (user note): KL/r preferably not over 200 (from memory).
         let slenderness_limit = ratio_key("slenderness_limit", 200.0, self);
         let euler_fraction = ratio_key("euler_fraction", 1.0, self);
-        if buckling_length.is_some() && !matches!(law, Some(Law::Member { inertia: Some(_), .. })) {
-            let sp = f.map.get("buckling_length").map(|e| e.span).unwrap_or(nb.span);
+        if buckling_length.is_some()
+            && !matches!(
+                law,
+                Some(Law::Member {
+                    inertia: Some(_),
+                    ..
+                })
+            )
+        {
+            let sp = f.map.get("buckling_length").map_or(nb.span, |e| e.span);
             self.errors.push(ModelError::MissingKey {
                 block: what.clone(),
                 key: "inertia",

@@ -584,7 +584,12 @@ pub fn ishape(d: f64, bf: f64, tf: f64, tw: f64) -> Section {
 }
 
 /// The published modulus formulas, evaluated in their own units.
-fn modulus(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Quantity, ModelError> {
+fn modulus(
+    func: &Ident,
+    args: &[Arg],
+    span: Span,
+    scope: &dyn Scope,
+) -> Result<Quantity, ModelError> {
     let unit = |n: &str| lookup(n).map_or(1.0, |u| u.factor);
     let p = Dimension::PRESSURE;
     let value = match func.name.as_str() {
@@ -608,4 +613,51 @@ fn modulus(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<
         }
     };
     Ok(Quantity::new(value, p))
+}
+
+/// The built-in functions as text, for `tandem functions`.
+#[must_use]
+pub fn listing() -> String {
+    let mut out = String::from("Functions (arguments are named where shown):\n\n");
+    let rows: &[(&str, &str)] = &[
+        (
+            "sqrt(x)",
+            "square root; the dimension must allow it (whole or half powers)",
+        ),
+        ("abs(x)", "absolute value"),
+        ("min(a, b, ...)", "smallest of values of one dimension"),
+        ("max(a, b, ...)", "largest of values of one dimension"),
+        ("circle(d = ...)", "solid round: A = π d²/4, I = π d⁴/64"),
+        (
+            "ring(d = ..., t = ...)",
+            "hollow round, outside diameter and wall: A = π (d² − (d − 2t)²)/4",
+        ),
+        (
+            "rect(b = ..., h = ...)",
+            "solid rectangle: A = b h, I = b h³/12 and h b³/12",
+        ),
+        (
+            "box(b = ..., h = ..., t = ...)",
+            "hollow rectangle, outside size and wall",
+        ),
+        (
+            "ishape(d = ..., bf = ..., tf = ..., tw = ...)",
+            "doubly symmetric I from plates, no fillets",
+        ),
+    ];
+    for (f, h) in rows {
+        out.push_str(&format!("  {f:<46} {h}\n"));
+    }
+    out.push_str("\nPublished moduli (the report prints the source beside the value):\n\n");
+    for f in FORMULAS {
+        out.push_str(&format!(
+            "  {:<46} {}\n  {:<46} source: {}\n",
+            format!("{}({})", f.name, f.args),
+            f.help,
+            "",
+            f.source
+        ));
+    }
+    out.push_str("\nSection helpers give an area wherever a number is needed; `section = ...` in a part also gives the second moment.\n");
+    out
 }

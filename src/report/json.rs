@@ -2,12 +2,12 @@
 
 use serde_json::{json, Map, Value};
 
-use crate::checks::{Checks, Origin};
-use crate::model::{Kind, Model};
-use crate::solve::Solution;
+use crate::checks::Origin;
+use crate::model::Kind;
 
 /// The JSON document for a solved file.
-pub fn solution_json(file: &str, model: &Model, solution: &Solution, checks: &Checks) -> Value {
+pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let plane = model.kind == Kind::Plane;
     let combos: Vec<Value> = solution
         .combinations
@@ -97,6 +97,60 @@ pub fn solution_json(file: &str, model: &Model, solution: &Solution, checks: &Ch
             })
         })
         .collect();
+    let capacity: Vec<Value> = a
+        .capacity
+        .iter()
+        .map(|c| {
+            json!({
+                "combination": solution.combinations[c.combination].name,
+                "first_yield_factor": c.first_yield,
+                "plastic_limit_factor": c.limit,
+                "ratio": c.first_yield.zip(c.limit).map(|(y, l)| l / y),
+                "sequence": c.events.iter().map(|e| json!({
+                    "part": model.parts[e.part].name,
+                    "load_factor": e.lambda,
+                    "sense": if e.tension { "tension" } else { "compression" },
+                })).collect::<Vec<_>>(),
+                "limit_forces_N": model.parts.iter().zip(&c.limit_forces).map(|(p, f)| json!({"part": p.name, "force_N": f})).collect::<Vec<_>>(),
+                "residual_forces_N": model.parts.iter().zip(&c.residual).map(|(p, f)| json!({"part": p.name, "force_N": f})).collect::<Vec<_>>(),
+                "note": c.note,
+            })
+        })
+        .collect();
+    let long_term: Vec<Value> = a
+        .long_term
+        .iter()
+        .map(|l| {
+            let short = &solution.combinations[l.combination];
+            json!({
+                "combination": short.name,
+                "note": l.note,
+                "parts": l.result.as_ref().map(|r| model.parts.iter().enumerate().map(|(i, p)| json!({
+                    "name": p.name,
+                    "short_term_force_N": short.parts[i].force.value,
+                    "long_term_force_N": r.parts[i].force.value,
+                    "short_term_stress_Pa": short.parts[i].stress.map(|s| s.value),
+                    "long_term_stress_Pa": r.parts[i].stress.map(|s| s.value),
+                })).collect::<Vec<_>>()),
+            })
+        })
+        .collect();
+    let buckling: Vec<Value> = a
+        .buckling
+        .iter()
+        .map(|b| {
+            json!({
+                "parts": b.parts.iter().map(|&i| model.parts[i].name.clone()).collect::<Vec<_>>(),
+                "effective_length_m": b.kl,
+                "radius_of_gyration_m": b.r,
+                "slenderness": b.slenderness(),
+                "euler_load_N": b.euler,
+                "max_compression_N": b.compression,
+                "combination": solution.combinations[b.combination].name,
+                "warnings": b.warnings(model),
+            })
+        })
+        .collect();
     json!({
         "file": file,
         "model": {
@@ -108,6 +162,9 @@ pub fn solution_json(file: &str, model: &Model, solution: &Solution, checks: &Ch
         "combinations": combos,
         "checks": check_values,
         "yielded": yielded,
+        "capacity": capacity,
+        "long_term": long_term,
+        "buckling": buckling,
         "warnings": solution.warnings,
     })
 }

@@ -7,7 +7,7 @@ use std::fmt::Write as _;
 
 use super::display::{number, Display, Shown};
 use super::table::combination_text;
-use crate::checks::{Checks, Origin};
+use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
 use crate::solve::{PartState, Solution};
 use crate::source::Source;
@@ -139,13 +139,8 @@ fn pct(u: Option<f64>) -> String {
 
 /// Write the whole calculation for an analysed file.
 #[allow(clippy::too_many_lines)]
-pub fn report(
-    source: &Source,
-    model: &Model,
-    solution: &Solution,
-    checks: &Checks,
-    display: &Display,
-) -> String {
+pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let f = Fmt { d: display };
     let mut doc = Doc { out: String::new() };
     let title = model
@@ -233,6 +228,11 @@ pub fn report(
     for w in &solution.warnings {
         doc.p(&format!("**Warning:** {w}."));
     }
+    for b in &a.buckling {
+        for w in b.warnings(model) {
+            doc.p(&format!("**Warning:** {w}."));
+        }
+    }
     for (k, pi, ratio) in &checks.yielded {
         doc.p(&format!(
             "**Warning:** in combination `{}` part `{}` is stressed to {} × its yield strength; elastic results are not valid beyond yield.",
@@ -268,6 +268,10 @@ pub fn report(
         combination(&mut doc, &f, model, solution, ci);
         let _ = r;
     }
+
+    capacity_section(&mut doc, &f, a);
+    long_term_section(&mut doc, &f, a);
+    buckling_section(&mut doc, &f, a);
 
     doc.h(2, "Design checks");
     if checks.outcomes.is_empty() {
@@ -347,6 +351,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
     doc.h(2, "Inputs");
     if !model.lets.is_empty() {
         doc.h(3, "Design quantities");
+        let with_sources = model.lets.iter().any(|l| !l.sources.is_empty());
         let rows: Vec<Vec<String>> = model
             .lets
             .iter()
@@ -357,10 +362,22 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 } else {
                     f.d.quantity(l.value)
                 };
-                vec![l.name.clone(), expr, value]
+                let mut row = vec![l.name.clone(), expr, value];
+                if with_sources {
+                    row.push(if l.sources.is_empty() {
+                        "—".into()
+                    } else {
+                        l.sources.join("; ")
+                    });
+                }
+                row
             })
             .collect();
-        doc.table(&["Name", "Expression", "Value"], &rows, &[2]);
+        if with_sources {
+            doc.table(&["Name", "Expression", "Value", "Source"], &rows, &[2]);
+        } else {
+            doc.table(&["Name", "Expression", "Value"], &rows, &[2]);
+        }
     }
     doc.h(3, "Materials");
     let rows: Vec<Vec<String>> = model
@@ -375,11 +392,18 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
             ) {
                 (None, None) => "—".to_string(),
                 (t, c) if t == c => opt(t),
-                (t, c) => format!("{} tension, {} compression", opt(t), opt(c)),
+                (Some(t), None) => format!("{} in tension", f.stress(t.value)),
+                (None, Some(c)) => format!("{} in compression", f.stress(c.value)),
+                (t, c) => format!("{} in tension, {} in compression", opt(t), opt(c)),
+            };
+            let e = if m.e_sources.is_empty() {
+                f.stress(m.e.value)
+            } else {
+                format!("{} ({})", f.stress(m.e.value), m.e_sources.join("; "))
             };
             vec![
                 m.name.clone(),
-                f.stress(m.e.value),
+                e,
                 m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
                 opt(m.yield_strength),
                 allow,
@@ -1128,4 +1152,272 @@ impl Fmt<'_> {
             s
         }
     }
+}
+
+fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
+    if a.capacity.is_empty() {
+        return;
+    }
+    let (model, solution) = (&a.model, &a.solution);
+    doc.h(2, "Capacity");
+    doc.p("The loads of each combination are scaled by a load factor λ while temperature, misfits and free strains stay at their full value. Parts are elastic–perfectly plastic: once a part reaches its yield force F_y = f_y·A it keeps carrying F_y, and the load redistributes to the others until the assembly becomes a mechanism (the plastic limit).");
+    doc.p("Yield forces:");
+    for p in &model.parts {
+        let (Some(m), Some(area)) = (p.material(), p.area()) else {
+            continue;
+        };
+        let mat = &model.materials[m];
+        let Some(fy) = mat.yield_strength else {
+            continue;
+        };
+        doc.eq(&format!(
+            "F_y({}) = f_y · A = {} · {} = {}",
+            p.name,
+            f.stress(fy.value),
+            f.area(area.value),
+            f.force(fy.value * area.value)
+        ));
+        if let Some(fyc) = mat.yield_compression {
+            doc.eq(&format!(
+                "F_y,c({}) = f_y,c · A = {} · {} = {}",
+                p.name,
+                f.stress(fyc.value),
+                f.area(area.value),
+                f.force(fyc.value * area.value)
+            ));
+        }
+    }
+    doc.end_list();
+    for c in &a.capacity {
+        let name = &solution.combinations[c.combination].name;
+        doc.h(3, &format!("Combination `{name}`"));
+        if let Some(n) = &c.note {
+            doc.p(&format!("Capacity {n}."));
+            if c.events.is_empty() {
+                continue;
+            }
+        }
+        let rows: Vec<Vec<String>> = c
+            .events
+            .iter()
+            .enumerate()
+            .map(|(k, e)| {
+                vec![
+                    format!("{}", k + 1),
+                    format!("`{}`", model.parts[e.part].name),
+                    if e.tension {
+                        "tension".into()
+                    } else {
+                        "compression".into()
+                    },
+                    f.n(e.lambda),
+                ]
+            })
+            .collect();
+        doc.table(
+            &["Order", "Part yields", "Sense", "Load factor λ"],
+            &rows,
+            &[0, 3],
+        );
+        match (c.first_yield, c.limit) {
+            (Some(y), Some(l)) => {
+                doc.eq(&format!("first yield: λ_y = {}", f.n(y)));
+                doc.eq(&format!("plastic limit: λ_p = {}", f.n(l)));
+                doc.eq(&format!(
+                    "reserve beyond first yield: λ_p / λ_y = {} / {} = {}",
+                    f.n(l),
+                    f.n(y),
+                    f.n(l / y)
+                ));
+                doc.end_list();
+                let rows: Vec<Vec<String>> = model
+                    .parts
+                    .iter()
+                    .enumerate()
+                    .map(|(i, p)| {
+                        vec![
+                            p.name.clone(),
+                            f.force(c.limit_forces[i]),
+                            f.force(c.residual.get(i).copied().unwrap_or(0.0)),
+                        ]
+                    })
+                    .collect();
+                doc.p("Part forces at the plastic limit, and the residual forces left after unloading elastically from it:");
+                doc.table(
+                    &["Part", "At the limit", "Residual after unloading"],
+                    &rows,
+                    &[1, 2],
+                );
+            }
+            (Some(y), None) => {
+                doc.eq(&format!("first yield: λ_y = {}", f.n(y)));
+                doc.end_list();
+                doc.p("No plastic limit forms: parts without a yield strength keep carrying the added load.");
+            }
+            _ => doc.p("No part reaches yield under these loads at any load factor."),
+        }
+    }
+}
+
+fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
+    if a.long_term.is_empty() {
+        return;
+    }
+    let (model, solution) = (&a.model, &a.solution);
+    doc.h(2, "Long-term state (creep)");
+    doc.p("Sustained cases act on creeping materials with the effective modulus E_eff = E / (1 + φ) (effective modulus method, EN 1992-1-1 7.4.3); the other cases act on E. The long-term state is the sum of the two; the short-term state is the one solved above.");
+    for m in &model.materials {
+        if let Some(phi) = m.creep.filter(|p| *p > 0.0) {
+            doc.eq(&format!(
+                "E_eff({}) = E / (1 + φ) = {} / (1 + {}) = {}",
+                m.name,
+                f.stress(m.e.value),
+                f.n(phi),
+                f.stress(m.e.value / (1.0 + phi))
+            ));
+        }
+    }
+    doc.end_list();
+    let sustained: Vec<String> = model
+        .cases
+        .iter()
+        .filter(|c| c.sustained)
+        .map(|c| format!("`{}`", c.name))
+        .collect();
+    doc.p(&format!("Sustained cases: {}.", sustained.join(", ")));
+    for l in &a.long_term {
+        let short = &solution.combinations[l.combination];
+        doc.h(3, &format!("Combination `{}`", short.name));
+        let Some(r) = &l.result else {
+            doc.p(&format!(
+                "Long-term state {}.",
+                l.note.clone().unwrap_or_default()
+            ));
+            continue;
+        };
+        let rows: Vec<Vec<String>> = model
+            .parts
+            .iter()
+            .enumerate()
+            .map(|(i, p)| {
+                let s0 = short.parts[i].stress.map(|s| s.value);
+                let s1 = r.parts[i].stress.map(|s| s.value);
+                vec![
+                    p.name.clone(),
+                    f.force(short.parts[i].force.value),
+                    f.force(r.parts[i].force.value),
+                    s0.map_or("—".into(), |s| f.stress(s)),
+                    s1.map_or("—".into(), |s| f.stress(s)),
+                    match (s0, s1) {
+                        (Some(x), Some(y)) if x != 0.0 => {
+                            let c = 100.0 * (y.abs() - x.abs()) / x.abs();
+                            format!("{}{} %", if c > 0.0 { "+" } else { "" }, number(c, 3))
+                        }
+                        _ => "—".into(),
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &[
+                "Part",
+                "Force, short term",
+                "Force, long term",
+                "Stress, short term",
+                "Stress, long term",
+                "Change in size of stress",
+            ],
+            &rows,
+            &[1, 2, 3, 4, 5],
+        );
+    }
+}
+
+fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
+    if a.buckling.is_empty() {
+        return;
+    }
+    let (model, solution) = (&a.model, &a.solution);
+    doc.h(2, "Stability (Euler buckling)");
+    doc.p("For parts with a `buckling_length` (the effective length K·L) the Euler load P_e = π²·E·I / (K·L)² and the slenderness K·L / r with r = √(I / A) are compared with the largest compression over all combinations. Parts spanning the same two nodes buckle together: their group takes Σ E·I.");
+    let rows: Vec<Vec<String>> = a
+        .buckling
+        .iter()
+        .map(|b| {
+            let names: Vec<String> = b
+                .parts
+                .iter()
+                .map(|&i| format!("`{}`", model.parts[i].name))
+                .collect();
+            vec![
+                names.join(" + "),
+                f.with(b.kl, &f.d.small),
+                b.r.map_or("—".into(), |r| f.small(r)),
+                b.slenderness().map_or("—".into(), |s| f.n(s)),
+                f.force(b.euler),
+                format!(
+                    "{} (`{}`)",
+                    f.force(b.compression),
+                    solution.combinations[b.combination].name
+                ),
+                f.n(b.compression / b.euler),
+            ]
+        })
+        .collect();
+    doc.table(
+        &[
+            "Part",
+            "K·L",
+            "r",
+            "K·L / r",
+            "P_e",
+            "Largest compression",
+            "C / P_e",
+        ],
+        &rows,
+        &[1, 2, 3, 4, 5, 6],
+    );
+    for b in &a.buckling {
+        let names: Vec<&str> = b
+            .parts
+            .iter()
+            .map(|&i| model.parts[i].name.as_str())
+            .collect();
+        let ei_text = if b.parts.len() == 1 {
+            let p = &model.parts[b.parts[0]];
+            let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
+            format!(
+                "{} · {}",
+                f.stress(e),
+                f.d.quantity(crate::units::Quantity::new(
+                    p.inertia().unwrap_or(0.0),
+                    Dimension::SECOND_MOMENT
+                ))
+            )
+        } else {
+            b.parts
+                .iter()
+                .map(|&i| {
+                    let p = &model.parts[i];
+                    let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
+                    format!(
+                        "{} · {}",
+                        f.stress(e),
+                        f.d.quantity(crate::units::Quantity::new(
+                            p.inertia().unwrap_or(0.0),
+                            Dimension::SECOND_MOMENT
+                        ))
+                    )
+                })
+                .collect::<Vec<_>>()
+                .join(" + ")
+        };
+        let kl = f.with(b.kl, &f.d.small);
+        doc.eq(&format!(
+            "P_e({}) = π² · Σ E·I / (K·L)² = π² · ({ei_text}) / ({kl} · {kl}) = {}",
+            names.join(" + "),
+            f.force(b.euler)
+        ));
+    }
+    doc.end_list();
 }

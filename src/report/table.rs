@@ -1,9 +1,7 @@
 //! The compact, aligned results tables of `tandem solve`.
 
 use super::display::{number, Display};
-use crate::checks::Checks;
 use crate::model::{Kind, Model};
-use crate::solve::Solution;
 
 /// Columns padded to a common width: text columns (those in `left`) flush
 /// left, number columns flush right.
@@ -61,7 +59,8 @@ pub fn combination_text(model: &Model, index: usize) -> String {
 }
 
 /// The text `tandem solve` prints.
-pub fn solve_text(model: &Model, solution: &Solution, checks: &Checks, d: &Display) -> String {
+pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let mut out = String::new();
     out.push_str(&format!(
         "{} model: {}\n",
@@ -162,6 +161,67 @@ pub fn solve_text(model: &Model, solution: &Solution, checks: &Checks, d: &Displ
             model.parts[*pi].name,
             number(*ratio, 3)
         ));
+    }
+    for c in &a.capacity {
+        let name = &solution.combinations[c.combination].name;
+        match (&c.note, c.first_yield, c.limit) {
+            (Some(n), _, _) => out.push_str(&format!("\ncapacity in {name}: {n}\n")),
+            (None, Some(y), Some(l)) => out.push_str(&format!(
+                "\ncapacity in {name}: first yield at {} × the loads, plastic limit at {} × (ratio {})\n",
+                number(y, d.digits),
+                number(l, d.digits),
+                number(l / y, d.digits)
+            )),
+            (None, Some(y), None) => out.push_str(&format!(
+                "\ncapacity in {name}: first yield at {} × the loads; no plastic limit forms\n",
+                number(y, d.digits)
+            )),
+            _ => {}
+        }
+    }
+    for l in &a.long_term {
+        let short = &solution.combinations[l.combination];
+        match &l.result {
+            None => out.push_str(&format!(
+                "\nlong term in {}: {}\n",
+                short.name,
+                l.note.clone().unwrap_or_default()
+            )),
+            Some(r) => {
+                out.push_str(&format!(
+                    "\nlong term in {} (creep, effective modulus)\n",
+                    short.name
+                ));
+                let mut rows = vec![vec![
+                    "part".to_string(),
+                    format!("short-term ({})", d.stress.name),
+                    format!("long-term ({})", d.stress.name),
+                    "change in size".to_string(),
+                ]];
+                for (i, p) in model.parts.iter().enumerate() {
+                    let (Some(s0), Some(s1)) = (short.parts[i].stress, r.parts[i].stress) else {
+                        continue;
+                    };
+                    rows.push(vec![
+                        p.name.clone(),
+                        number(d.stress.value(s0.value), d.digits),
+                        number(d.stress.value(s1.value), d.digits),
+                        if s0.value == 0.0 {
+                            "—".into()
+                        } else {
+                            let c = 100.0 * (s1.value.abs() - s0.value.abs()) / s0.value.abs();
+                            format!("{}{} %", if c > 0.0 { "+" } else { "" }, number(c, 3))
+                        },
+                    ]);
+                }
+                out.push_str(&aligned(&rows, &[0], "  "));
+            }
+        }
+    }
+    for b in &a.buckling {
+        for w in b.warnings(model) {
+            out.push_str(&format!("\nwarning: {w}\n"));
+        }
     }
     if !checks.outcomes.is_empty() {
         out.push_str("\nchecks (governing combination)\n");

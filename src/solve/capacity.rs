@@ -79,10 +79,29 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
             out.push(skipped(ci, "not traced: the assembly has one-sense or gapped parts, whose engagement would change along the path"));
             continue;
         }
-        let constant = system.actions(&combo.name, &combo.terms, Take { loads: false, strains: true, misfit: true })?;
-        let load = system.actions(&combo.name, &combo.terms, Take { loads: true, strains: false, misfit: false })?;
+        let constant = system.actions(
+            &combo.name,
+            &combo.terms,
+            Take {
+                loads: false,
+                strains: true,
+                misfit: true,
+            },
+        )?;
+        let load = system.actions(
+            &combo.name,
+            &combo.terms,
+            Take {
+                loads: true,
+                strains: false,
+                misfit: false,
+            },
+        )?;
         if load.loads.iter().all(|x| *x == 0.0) {
-            out.push(skipped(ci, "not traced: the combination has no loads to scale"));
+            out.push(skipped(
+                ci,
+                "not traced: the combination has no loads to scale",
+            ));
             continue;
         }
         // Elastic response of the whole assembly to the load pattern, for unloading.
@@ -97,7 +116,9 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
         let mut limit = None;
         let mut note = None;
         loop {
-            let k: Vec<f64> = (0..n).map(|i| if yielded[i].is_some() { 0.0 } else { k_full[i] }).collect();
+            let k: Vec<f64> = (0..n)
+                .map(|i| if yielded[i].is_some() { 0.0 } else { k_full[i] })
+                .collect();
             let forces: Vec<f64> = yielded.iter().map(|y| y.unwrap_or(0.0)).collect();
             let factor = match system.factor(&k, &[]) {
                 Ok(f) => f,
@@ -109,8 +130,18 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
             };
             let (_, ec) = system.respond(&factor, &k, &constant.free, &forces, &constant);
             let (_, ep) = system.respond(&factor, &k, &zero, &zero, &load);
-            let nc: Vec<f64> = (0..n).map(|i| yielded[i].unwrap_or(k[i] * (ec[i] - constant.free[i]))).collect();
-            let np: Vec<f64> = (0..n).map(|i| if yielded[i].is_some() { 0.0 } else { k[i] * ep[i] }).collect();
+            let nc: Vec<f64> = (0..n)
+                .map(|i| yielded[i].unwrap_or(k[i] * (ec[i] - constant.free[i])))
+                .collect();
+            let np: Vec<f64> = (0..n)
+                .map(|i| {
+                    if yielded[i].is_some() {
+                        0.0
+                    } else {
+                        k[i] * ep[i]
+                    }
+                })
+                .collect();
             // Next part to reach its yield force.
             let mut next = f64::INFINITY;
             let mut candidates: Vec<(usize, f64, bool)> = Vec::new();
@@ -118,7 +149,9 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                 if yielded[i].is_some() {
                     continue;
                 }
-                let Some((ft, fc)) = yield_forces(model, i) else { continue };
+                let Some((ft, fc)) = yield_forces(model, i) else {
+                    continue;
+                };
                 let now = nc[i] + lambda * np[i];
                 if events.is_empty() && (now > ft || now < -fc) {
                     note = Some(format!(
@@ -149,7 +182,11 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                 if l <= next + tol {
                     let (ft, fc) = yield_forces(model, i).unwrap_or((0.0, 0.0));
                     yielded[i] = Some(if tension { ft } else { -fc });
-                    events.push(YieldEvent { part: i, lambda: next, tension });
+                    events.push(YieldEvent {
+                        part: i,
+                        lambda: next,
+                        tension,
+                    });
                 }
             }
             lambda = next;

@@ -31,7 +31,10 @@ fn add(a: &Actions, b: &Actions) -> Actions {
 /// A solver error (a mechanism cannot arise that the short-term solve did
 /// not already report, but the factorisation is checked again).
 pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
-    let creeps = model.materials.iter().any(|m| m.creep.is_some_and(|c| c > 0.0));
+    let creeps = model
+        .materials
+        .iter()
+        .any(|m| m.creep.is_some_and(|c| c > 0.0));
     let sustained = model.cases.iter().any(|c| c.sustained);
     if !creeps || !sustained {
         return Ok(Vec::new());
@@ -48,7 +51,10 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         .iter()
         .zip(&k_full)
         .map(|(p, k)| {
-            let phi = p.material().and_then(|m| model.materials[m].creep).unwrap_or(0.0);
+            let phi = p
+                .material()
+                .and_then(|m| model.materials[m].creep)
+                .unwrap_or(0.0);
             k / (1.0 + phi)
         })
         .collect();
@@ -65,10 +71,28 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
             });
             continue;
         }
-        let sus: Vec<(usize, f64)> = combo.terms.iter().copied().filter(|(c, _)| model.cases[*c].sustained).collect();
-        let tra: Vec<(usize, f64)> = combo.terms.iter().copied().filter(|(c, _)| !model.cases[*c].sustained).collect();
+        let sus: Vec<(usize, f64)> = combo
+            .terms
+            .iter()
+            .copied()
+            .filter(|(c, _)| model.cases[*c].sustained)
+            .collect();
+        let tra: Vec<(usize, f64)> = combo
+            .terms
+            .iter()
+            .copied()
+            .filter(|(c, _)| !model.cases[*c].sustained)
+            .collect();
         let a_s = system.actions(&combo.name, &sus, Take::ALL)?;
-        let a_t = system.actions(&combo.name, &tra, Take { loads: true, strains: true, misfit: false })?;
+        let a_t = system.actions(
+            &combo.name,
+            &tra,
+            Take {
+                loads: true,
+                strains: true,
+                misfit: false,
+            },
+        )?;
         let (qs, es) = system.respond(&f_eff, &k_eff, &a_s.free, &zero, &a_s);
         let (qt, et) = system.respond(&f_full, &k_full, &a_t.free, &zero, &a_t);
         let q: Vec<f64> = qs.iter().zip(&qt).map(|(a, b)| a + b).collect();
@@ -79,7 +103,11 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         let total = add(&a_s, &a_t);
         let states = vec![PartState::Elastic; n];
         let result = system.results(combo.name.clone(), &q, &total, &elong, &forces, &states, 1);
-        out.push(LongTerm { combination: ci, result: Some(result), note: None });
+        out.push(LongTerm {
+            combination: ci,
+            result: Some(result),
+            note: None,
+        });
     }
     Ok(out)
 }
