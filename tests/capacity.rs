@@ -1,3 +1,4 @@
+#![allow(clippy::float_cmp)]
 //! Capacity, creep and shrinkage, buckling and published moduli against
 //! closed forms and published values.
 
