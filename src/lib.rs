@@ -33,14 +33,26 @@ pub const MAX_FILE_BYTES: u64 = 64 * 1024 * 1024;
 /// # Errors
 /// An I/O error, or a message for an oversized or non-text file.
 pub fn read_source(path: &Path) -> Result<Source, String> {
+    read_source_limited(path, MAX_FILE_BYTES)
+}
+
+/// [`read_source`] with a given size limit in bytes.
+///
+/// # Errors
+/// As [`read_source`].
+pub fn read_source_limited(path: &Path, max_bytes: u64) -> Result<Source, String> {
     let meta =
         std::fs::metadata(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
-    if meta.len() > MAX_FILE_BYTES {
+    if !meta.is_file() {
+        return Err(format!("{} is not a file", path.display()));
+    }
+    if meta.len() > max_bytes {
         return Err(format!(
-            "{} is {} bytes; tandem reads calc files of at most {} MiB",
+            "{} is {} bytes; tandem reads calc files of at most {} bytes ({} MiB)",
             path.display(),
             meta.len(),
-            MAX_FILE_BYTES / (1024 * 1024)
+            max_bytes,
+            max_bytes / (1024 * 1024)
         ));
     }
     let bytes = std::fs::read(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;

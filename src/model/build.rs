@@ -611,6 +611,7 @@ impl Builder {
                     count: id.name.len(),
                     limit: self.limits.max_name_len,
                     span: id.span,
+                    help: Some("use a shorter name; the title block and comments can carry a longer description".into()),
                 });
             }
             let reserved = if lookup(&id.name).is_some() {
@@ -784,6 +785,7 @@ impl Builder {
                 count: file.decls.len(),
                 limit: self.limits.max_declarations,
                 span: Span::new(0, 0),
+                help: Some("split the calc into smaller files".into()),
             });
             return Err(self.errors);
         }
@@ -1586,7 +1588,7 @@ impl Builder {
                 return None;
             }
         }
-        Some(Part {
+        let part = Part {
             name: pname.clone(),
             ends,
             law,
@@ -1598,7 +1600,17 @@ impl Builder {
             slenderness_limit,
             euler_fraction,
             span: nb.span,
-        })
+        };
+        let k = part.stiffness(materials).value;
+        if !k.is_finite() || k <= 0.0 {
+            self.errors.push(ModelError::NotFinite {
+                what: format!("the stiffness E·A/L of {what}"),
+                reason: "it overflows or vanishes".into(),
+                span: nb.name.span,
+            });
+            return None;
+        }
+        Some(part)
     }
 
     #[allow(clippy::too_many_arguments, clippy::too_many_lines)]

@@ -377,13 +377,15 @@ pub enum ModelError {
     },
 
     #[error("too many {what}: {count} (the limit is {limit})")]
-    #[diagnostic(code(tandem::limit), help("split the calc into smaller files"))]
+    #[diagnostic(code(tandem::limit))]
     TooMany {
         what: &'static str,
         count: usize,
         limit: usize,
         #[label("limit passed here")]
         span: Span,
+        #[help]
+        help: Option<String>,
     },
 }
 

@@ -547,6 +547,14 @@ fn law(model: &Model, i: usize, m: Mode) -> (bool, f64) {
 /// Mechanisms (naming the node or body and direction), active sets that do
 /// not settle, conflicting support movements.
 pub fn solve(model: &Model) -> Result<Solution, SolveError> {
+    solve_with(model, MAX_TRIALS)
+}
+
+/// [`solve`] with a given limit on active-set trials per combination.
+///
+/// # Errors
+/// As [`solve`].
+pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
     let system = System::new(model)?;
     let k_full = system.stiffness();
     let mut warnings = Vec::new();
@@ -596,10 +604,10 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
                     span: combo.span,
                 });
             }
-            if trials > MAX_TRIALS {
+            if trials > max_trials {
                 return Err(SolveError::TooManyTrials {
                     combination: combo.name.clone(),
-                    limit: MAX_TRIALS,
+                    limit: max_trials,
                     span: combo.span,
                 });
             }

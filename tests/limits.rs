@@ -1,0 +1,95 @@
+//! Every limit gives a diagnostic, never a crash or an exhausted machine.
+
+mod common;
+
+use tandem::model::{build, Limits, ModelError};
+use tandem::source::Source;
+
+#[test]
+fn too_many_declarations() {
+    let text = "let a = 1\n".repeat(20);
+    let file = tandem::syntax::parse(&text).expect("parses");
+    let errors = build(
+        &file,
+        Limits {
+            max_declarations: 10,
+            max_name_len: 128,
+        },
+    )
+    .expect_err("limit");
+    assert!(matches!(
+        errors[0],
+        ModelError::TooMany {
+            what: "declarations",
+            count: 20,
+            limit: 10,
+            ..
+        }
+    ));
+}
+
+#[test]
+fn file_size_limit() {
+    let dir = std::env::temp_dir().join(format!("tandem-size-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("mkdir");
+    let f = dir.join("big.tandem");
+    std::fs::write(&f, "let a = 1 in\n".repeat(100)).expect("write");
+    let err = tandem::read_source_limited(&f, 64).err().expect("refused");
+    assert!(err.contains("at most 64 bytes"), "{err}");
+    assert!(tandem::read_source_limited(&f, 1 << 20).is_ok());
+    // the command line refuses a folder and a file that is not UTF-8
+    std::fs::write(&f, [0xff, 0xfe, 0x00]).expect("write");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .arg("check")
+        .arg(&f)
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("not UTF-8"));
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .arg("check")
+        .arg(&dir)
+        .output()
+        .expect("run");
+    assert_eq!(out.status.code(), Some(2));
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn active_set_trial_limit() {
+    let text = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/bolted_sleeve.tandem"),
+    )
+    .expect("read");
+    let m = common::model(&text);
+    // the surge combination needs a second trial (the sleeve lets go)
+    let err = tandem::solve::solve_with(&m, 1).expect_err("limit");
+    let src = Source::new("bolted_sleeve.tandem", text);
+    let shown = tandem::diagnostic::render(&[err.into()], &src, 80, false);
+    assert!(shown.contains("did not settle after 1 trials"), "{shown}");
+    assert!(tandem::solve::solve_with(&m, 5).is_ok());
+}
+
+#[test]
+fn deep_nesting_in_every_position() {
+    for template in ["let a = {}", "node n at {}", "check \"c\" : {} <= 1"] {
+        let deep = format!("{}1{}", "(".repeat(500), ")".repeat(500));
+        let src = Source::new("deep.tandem", template.replace("{}", &deep));
+        let errors = tandem::check(&src).expect_err("too deep");
+        assert!(format!("{errors:?}").contains("TooDeep"));
+    }
+    // a long flat chain is fine: sums are flat lists, not deep trees
+    let long = vec!["1 in"; 20_000].join(" + ");
+    let m = common::value(&format!("let a = {long}"), "a");
+    assert!((m.value - 20_000.0 * 0.0254).abs() < 1e-6);
+}
+
+#[test]
+fn long_chains_of_lets_do_not_recurse() {
+    let mut text = String::from("let v0 = 1 in\n");
+    for i in 1..20_000 {
+        text.push_str(&format!("let v{i} = v{} + 1 in\n", i - 1));
+    }
+    let q = common::value(&text, "v19999");
+    assert!((q.value - 20_000.0 * 0.0254).abs() < 1e-6);
+}
