@@ -34,7 +34,7 @@ fn file_size_limit() {
     std::fs::create_dir_all(&dir).expect("mkdir");
     let f = dir.join("big.tandem");
     std::fs::write(&f, "let a = 1 in\n".repeat(100)).expect("write");
-    let err = tandem::read_source_limited(&f, 64).err().expect("refused");
+    let err = tandem::read_source_limited(&f, 64).expect_err("refused");
     assert!(err.contains("at most 64 bytes"), "{err}");
     assert!(tandem::read_source_limited(&f, 1 << 20).is_ok());
     // the command line refuses a folder and a file that is not UTF-8
