@@ -980,10 +980,27 @@ impl Builder {
                         })
                         .collect();
                     if idx.len() == t.nodes.len() {
-                        ties.push(Tie {
-                            nodes: idx,
-                            span: t.span,
-                        });
+                        // In a plane, nodes that move together without
+                        // rotating must coincide: two separated points held
+                        // to one translation would be a link that takes
+                        // moment from nowhere.
+                        let apart = kind == Kind::Plane
+                            && idx.iter().any(|&i| {
+                                let (a, b) = (&nodes[idx[0]], &nodes[i]);
+                                (a.x - b.x).value.abs() + (a.y - b.y).value.abs() > 0.0
+                            });
+                        if apart {
+                            self.errors.push(ModelError::ModelKind {
+                                message: "in a plane model a tie joins nodes at one position".into(),
+                                span: t.span,
+                                help: Some("to join separated points, list them in a `rigid` body; a tie is a pin between nodes that coincide".into()),
+                            });
+                        } else {
+                            ties.push(Tie {
+                                nodes: idx,
+                                span: t.span,
+                            });
+                        }
                     }
                 }
                 _ => {}
