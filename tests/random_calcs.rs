@@ -2,7 +2,13 @@
 //! kind of declaration. Each one either checks or gives diagnostics; when it
 //! solves, equilibrium holds in every combination; its report, formatting
 //! and JSON never panic, and formatting is idempotent.
-#![allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+#![allow(
+    clippy::cast_possible_truncation,
+    clippy::cast_sign_loss,
+    clippy::cast_possible_wrap,
+    clippy::write_with_newline,
+    clippy::format_collect
+)]
 
 use std::fmt::Write as _;
 
