@@ -107,8 +107,8 @@ fn main() {
         .skip(1)
         .find_map(|a| a.parse().ok())
         .unwrap_or(1_000_000);
-    println!("| assembly | parts | unknowns | text MiB | parse+check s | solve s | peak RSS MiB |");
-    println!("|---|---|---|---|---|---|---|");
+    println!("| assembly | parts | unknowns | text MiB | parse s | check s | solve s | report s | peak RSS MiB |");
+    println!("|---|---|---|---|---|---|---|---|---|");
     let kinds: [(&str, Generator); 3] =
         [("chain", chain), ("bundle", bundle), ("plane grid", grid)];
     for (name, make) in kinds {
@@ -145,11 +145,33 @@ fn main() {
                 }
             };
             let t2 = Instant::now();
+            let unknowns = sol.unknowns;
+            // The full report (checks, every equation) up to 10^5 parts.
+            let report = if n <= 100_000 {
+                let checks = tandem::checks::evaluate(&model, &sol).unwrap_or_default();
+                let a = tandem::Analysis {
+                    model,
+                    solution: sol,
+                    checks,
+                    capacity: Vec::new(),
+                    long_term: Vec::new(),
+                    buckling: Vec::new(),
+                };
+                let d = tandem::report::Display::for_model(&a.model, 4);
+                let t = Instant::now();
+                let md = tandem::report::markdown::report(&src, &a, &d);
+                let dt = t.elapsed().as_secs_f64();
+                drop(md);
+                format!("{dt:.3}")
+            } else {
+                "—".into()
+            };
             println!(
-                "| {name} | {} | {} | {mib:.1} | {:.3} | {:.3} | {:.0} |",
-                model.parts.len(),
-                sol.unknowns,
-                (t1 - t0).as_secs_f64(),
+                "| {name} | {} | {} | {mib:.1} | {:.3} | {:.3} | {:.3} | {report} | {:.0} |",
+                n,
+                unknowns,
+                (tp - t0).as_secs_f64(),
+                (t1 - tp).as_secs_f64(),
                 (t2 - t1).as_secs_f64(),
                 peak_rss_mib()
             );

@@ -42,21 +42,32 @@ pub struct Checks {
 impl Checks {
     /// Each check's governing outcome (highest utilization, failures first).
     pub fn governing(&self) -> Vec<&Outcome> {
-        let mut out: Vec<&Outcome> = Vec::new();
-        for o in &self.outcomes {
-            match out
-                .iter_mut()
-                .find(|g| g.label == o.label && g.origin == o.origin)
-            {
-                Some(g) => {
-                    if rank(o) > rank(g) {
-                        *g = o;
+        self.governing_indices()
+            .into_iter()
+            .map(|i| &self.outcomes[i])
+            .collect()
+    }
+
+    /// Indices into `outcomes` of each check's governing outcome, in check order.
+    pub fn governing_indices(&self) -> Vec<usize> {
+        let mut order: Vec<usize> = Vec::new();
+        let mut slot: std::collections::HashMap<(&str, OriginKey), usize> =
+            std::collections::HashMap::new();
+        for (i, o) in self.outcomes.iter().enumerate() {
+            let key = (o.label.as_str(), OriginKey::of(&o.origin));
+            match slot.get(&key) {
+                Some(&k) => {
+                    if rank(o) > rank(&self.outcomes[order[k]]) {
+                        order[k] = i;
                     }
                 }
-                None => out.push(o),
+                None => {
+                    slot.insert(key, order.len());
+                    order.push(i);
+                }
             }
         }
-        out
+        order
     }
 
     /// Checks that fail in some combination.
@@ -72,6 +83,22 @@ impl Checks {
                 Some(b) if rank(b) >= rank(o) => Some(b),
                 _ => Some(o),
             })
+    }
+}
+
+/// A hashable form of [`Origin`].
+#[derive(Clone, Copy, PartialEq, Eq, Hash)]
+enum OriginKey {
+    Line(usize),
+    Allowable(usize),
+}
+
+impl OriginKey {
+    fn of(o: &Origin) -> Self {
+        match o {
+            Origin::Line(i) => OriginKey::Line(*i),
+            Origin::Allowable(i) => OriginKey::Allowable(*i),
+        }
     }
 }
 
@@ -317,6 +344,9 @@ pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
     };
     let mut out = Vec::new();
     let mut groups: Vec<((usize, usize), Vec<usize>)> = Vec::new();
+    let mut group_of: std::collections::HashMap<(usize, usize), usize> =
+        std::collections::HashMap::new();
+    let mut single_of: std::collections::HashMap<usize, usize> = std::collections::HashMap::new();
     for (i, p) in model.parts.iter().enumerate() {
         let (Some(kl), Some(inertia), Some(m), Some(area)) =
             (p.buckling_length, p.inertia(), p.material(), p.area())
@@ -326,6 +356,7 @@ pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
         let ei = model.materials[m].e.value * inertia;
         let kl = kl.value;
         let (compression, combination) = worst(&[i]);
+        single_of.insert(i, out.len());
         out.push(Buckling {
             parts: vec![i],
             kl,
@@ -338,15 +369,18 @@ pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
             euler_fraction: p.euler_fraction,
         });
         let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
-        match groups.iter_mut().find(|g| g.0 == key) {
-            Some(g) => g.1.push(i),
-            None => groups.push((key, vec![i])),
+        match group_of.get(&key) {
+            Some(&g) => groups[g].1.push(i),
+            None => {
+                group_of.insert(key, groups.len());
+                groups.push((key, vec![i]));
+            }
         }
     }
     for (_, g) in groups.into_iter().filter(|g| g.1.len() > 1) {
         let single: Vec<&Buckling> = g
             .iter()
-            .filter_map(|&i| out.iter().find(|b| b.parts == vec![i]))
+            .filter_map(|&i| single_of.get(&i).map(|&k| &out[k]))
             .collect();
         let kl = single.iter().map(|b| b.kl).fold(0.0, f64::max);
         let ei: f64 = single.iter().map(|b| b.ei).sum();

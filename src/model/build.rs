@@ -1666,8 +1666,13 @@ impl Builder {
             }
         };
         let part_of = |id: &Ident, b: &mut Self| -> Option<usize> {
-            b.ok(names.expect(id, NameKind::Part))?;
-            parts.iter().position(|p| p.name == id.name)
+            let i = b.ok(names.expect(id, NameKind::Part))?;
+            // The i-th declared part is parts[i] unless an earlier one failed.
+            if parts.get(i).is_some_and(|p| p.name == id.name) {
+                Some(i)
+            } else {
+                parts.iter().position(|p| p.name == id.name)
+            }
         };
         let mut seen_temp: HashMap<Option<usize>, Span> = HashMap::new();
         let mut seen_strain: HashMap<usize, Span> = HashMap::new();

@@ -68,12 +68,14 @@ pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
             Value::Object(m)
         })
         .collect();
-    let governing = checks.governing();
+    let governing: std::collections::HashSet<usize> =
+        checks.governing_indices().into_iter().collect();
     let check_values: Vec<Value> = checks
         .outcomes
         .iter()
-        .map(|o| {
-            let is_gov = governing.iter().any(|g| std::ptr::eq(*g, o));
+        .enumerate()
+        .map(|(k, o)| {
+            let is_gov = governing.contains(&k);
             json!({
                 "label": o.label,
                 "kind": match o.origin { Origin::Line(_) => "check", Origin::Allowable(_) => "allowable" },

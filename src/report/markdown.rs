@@ -264,9 +264,9 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
 
     inputs(&mut doc, &f, source, model);
 
-    for (ci, r) in solution.combinations.iter().enumerate() {
-        combination(&mut doc, &f, model, solution, ci);
-        let _ = r;
+    let incidence = incidence(model);
+    for ci in 0..solution.combinations.len() {
+        combination(&mut doc, &f, model, solution, ci, &incidence);
     }
 
     capacity_section(&mut doc, &f, a);
@@ -277,15 +277,14 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     if checks.outcomes.is_empty() {
         doc.p("The calc file writes no checks and its materials give no allowable stresses.");
     } else {
-        let gov: Vec<*const crate::checks::Outcome> = governing
-            .iter()
-            .map(|o| std::ptr::from_ref::<crate::checks::Outcome>(*o))
-            .collect();
+        let gov: std::collections::HashSet<usize> =
+            checks.governing_indices().into_iter().collect();
         let rows: Vec<Vec<String>> = checks
             .outcomes
             .iter()
-            .map(|o| {
-                let is_gov = gov.contains(&std::ptr::from_ref(o));
+            .enumerate()
+            .map(|(k, o)| {
+                let is_gov = gov.contains(&k);
                 vec![
                     o.label.clone(),
                     if is_gov {
@@ -615,12 +614,14 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
     doc.p("Every combination is solved directly with its factored actions (never by adding case results), so parts that go slack behave right; misfits act in every combination at full value.");
 }
 
-/// Forces on the node components from parts (tension pulls end A toward B).
-fn part_terms(model: &Model, node: usize) -> Vec<(usize, f64, [f64; 2])> {
-    let mut out = Vec::new();
+/// For each node, the parts meeting there: (part, sign, direction); a part
+/// in tension pulls its end A toward B (+ĉ) and its end B toward A (−ĉ).
+fn incidence(model: &Model) -> Vec<Vec<(usize, f64, [f64; 2])>> {
+    let mut out = vec![Vec::new(); model.nodes.len()];
     for (i, p) in model.parts.iter().enumerate() {
         for (end, sign) in [(0usize, 1.0), (1, -1.0)] {
-            if p.ends[end] == node {
+            let node = p.ends[end];
+            {
                 let (a, b) = (&model.nodes[p.ends[0]], &model.nodes[p.ends[1]]);
                 let dir = match model.kind {
                     Kind::Axial => [1.0, 0.0],
@@ -630,7 +631,7 @@ fn part_terms(model: &Model, node: usize) -> Vec<(usize, f64, [f64; 2])> {
                         [dx / l, dy / l]
                     }
                 };
-                out.push((i, sign, dir));
+                out[node].push((i, sign, dir));
             }
         }
     }
@@ -638,7 +639,14 @@ fn part_terms(model: &Model, node: usize) -> Vec<(usize, f64, [f64; 2])> {
 }
 
 #[allow(clippy::too_many_lines)]
-fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, ci: usize) {
+fn combination(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    solution: &Solution,
+    ci: usize,
+    incidence: &[Vec<(usize, f64, [f64; 2])>],
+) {
     let r = &solution.combinations[ci];
     let combo = &model.combinations[ci];
     doc.h(
@@ -673,10 +681,10 @@ fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, c
             if node.fixed[d] {
                 continue;
             }
-            let terms = part_terms(model, n);
+            let terms = &incidence[n];
             let mut sym = Vec::new();
             let mut num = Vec::new();
-            for (i, sign, dir) in &terms {
+            for (i, sign, dir) in terms {
                 let c = sign * dir[d];
                 if c == 0.0 {
                     continue;
@@ -736,7 +744,7 @@ fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, c
         let mut fsum = [Vec::new(), Vec::new()];
         for &n in &b.nodes {
             let mut net = [loads[n][0], loads[n][1]];
-            for (i, sign, dir) in part_terms(model, n) {
+            for &(i, sign, dir) in &incidence[n] {
                 for d in 0..2 {
                     net[d] += sign * dir[d] * r.parts[i].force.value;
                 }
@@ -788,11 +796,16 @@ fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, c
     doc.h(3, "Compatibility");
     // Parts that span the same two nodes share one elongation.
     let mut groups: Vec<(usize, usize, Vec<usize>)> = Vec::new();
+    let mut group_of: std::collections::HashMap<(usize, usize), usize> =
+        std::collections::HashMap::new();
     for (i, p) in model.parts.iter().enumerate() {
         let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
-        match groups.iter_mut().find(|g| (g.0, g.1) == key) {
-            Some(g) => g.2.push(i),
-            None => groups.push((key.0, key.1, vec![i])),
+        match group_of.get(&key) {
+            Some(&g) => groups[g].2.push(i),
+            None => {
+                group_of.insert(key, groups.len());
+                groups.push((key.0, key.1, vec![i]));
+            }
         }
     }
     doc.p("Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:");
@@ -1030,12 +1043,7 @@ fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, c
         } else {
             (*b, *a)
         };
-        let only = model
-            .parts
-            .iter()
-            .filter(|p| p.ends.contains(&free_node))
-            .count()
-            == g.len();
+        let only = incidence[free_node].len() == g.len();
         let pure = model.nodes[fixed].fixed[0]
             && !model.nodes[free_node].fixed[0]
             && !in_body[free_node]
@@ -1061,11 +1069,20 @@ fn combination(doc: &mut Doc, f: &Fmt<'_>, model: &Model, solution: &Solution, c
             "The parts between `{}` and `{}` act in parallel: each takes the load in proportion to its stiffness, F(i) = P·k(i) / Σk:",
             model.nodes[fixed].name, model.nodes[free_node].name
         ));
-        let ksum = ks
-            .iter()
-            .map(|k| f.stiffness(*k))
-            .collect::<Vec<_>>()
-            .join(" + ");
+        // A large bundle states Σk once instead of in every line.
+        let ksum = if ks.len() <= 8 {
+            ks.iter()
+                .map(|k| f.stiffness(*k))
+                .collect::<Vec<_>>()
+                .join(" + ")
+        } else {
+            doc.eq(&format!(
+                "Σk = {} (the {} parts' k summed)",
+                f.stiffness(sum),
+                ks.len()
+            ));
+            f.stiffness(sum)
+        };
         for (j, &i) in g.iter().enumerate() {
             let sign = if model.parts[i].ends[1] == free_node {
                 1.0

@@ -329,25 +329,34 @@ pub fn diff(
 ) -> Diff {
     let fo = facts(&old.model, old_src, display);
     let fnew = facts(&new.model, new_src, display);
+    let old_map: std::collections::HashMap<&str, &str> =
+        fo.iter().map(|(k, v)| (k.as_str(), v.as_str())).collect();
+    let new_map: std::collections::HashMap<&str, &str> =
+        fnew.iter().map(|(k, v)| (k.as_str(), v.as_str())).collect();
+    let old_entities: std::collections::HashSet<String> =
+        fo.iter().filter_map(|(k, _)| entity(k)).collect();
+    let new_entities: std::collections::HashSet<String> =
+        fnew.iter().filter_map(|(k, _)| entity(k)).collect();
     let mut inputs = Vec::new();
     let mut added = Vec::new();
     let mut removed = Vec::new();
+    let mut seen: std::collections::HashSet<String> = std::collections::HashSet::new();
     for (k, v) in &fo {
-        match fnew.iter().find(|(k2, _)| k2 == k) {
-            Some((_, v2)) if v2 != v => inputs.push(InputChange {
+        match new_map.get(k.as_str()) {
+            Some(v2) if *v2 != v.as_str() => inputs.push(InputChange {
                 what: k.clone(),
                 old: Some(v.clone()),
-                new: Some(v2.clone()),
+                new: Some((*v2).to_string()),
             }),
             Some(_) => {}
             None => {
                 if let Some(e) = entity(k) {
-                    if !removed.contains(&e)
-                        && !fnew.iter().any(|(k2, _)| entity(k2).as_ref() == Some(&e))
-                    {
-                        removed.push(e);
+                    if !new_entities.contains(&e) {
+                        if seen.insert(e.clone()) {
+                            removed.push(e);
+                        }
+                        continue;
                     }
-                    continue;
                 }
                 inputs.push(InputChange {
                     what: k.clone(),
@@ -358,17 +367,14 @@ pub fn diff(
         }
     }
     for (k, v) in &fnew {
-        if fo.iter().any(|(k2, _)| k2 == k) {
+        if old_map.contains_key(k.as_str()) {
             continue;
         }
         if let Some(e) = entity(k) {
-            if !added.contains(&e) && !fo.iter().any(|(k2, _)| entity(k2).as_ref() == Some(&e)) {
-                added.push(e);
-            }
-            if !fo
-                .iter()
-                .any(|(k2, _)| entity(k2).as_ref() == entity(k).as_ref())
-            {
+            if !old_entities.contains(&e) {
+                if seen.insert(e.clone()) {
+                    added.push(e);
+                }
                 continue;
             }
         }
@@ -383,17 +389,21 @@ pub fn diff(
     // is a rename.
     let mut renamed: Vec<InputChange> = Vec::new();
     let mut used = vec![false; inputs.len()];
-    for i in 0..inputs.len() {
-        if used[i] || inputs[i].new.is_some() {
-            continue;
+    // Added inputs by (kind, content), to pair with removed ones.
+    let mut added_by: std::collections::HashMap<(String, String), Vec<usize>> =
+        std::collections::HashMap::new();
+    for (j, c) in inputs.iter().enumerate().rev() {
+        if let (None, Some(v)) = (&c.old, &c.new) {
+            let kind = c.what.split(' ').next().unwrap_or("").to_string();
+            added_by.entry((kind, v.clone())).or_default().push(j);
         }
+    }
+    for i in 0..inputs.len() {
+        let (Some(v), None) = (&inputs[i].old, &inputs[i].new) else {
+            continue;
+        };
         let kind = inputs[i].what.split(' ').next().unwrap_or("").to_string();
-        if let Some(j) = (0..inputs.len()).find(|&j| {
-            !used[j]
-                && inputs[j].old.is_none()
-                && inputs[j].new == inputs[i].old
-                && inputs[j].what.split(' ').next() == Some(kind.as_str())
-        }) {
+        if let Some(j) = added_by.get_mut(&(kind, v.clone())).and_then(Vec::pop) {
             used[i] = true;
             used[j] = true;
             let new_name = inputs[j]
@@ -418,9 +428,20 @@ pub fn diff(
 
     let ro = results(&old.model, &old.solution);
     let rn = results(&new.model, &new.solution);
+    let ro_map: std::collections::HashMap<(&str, &str), Quantity> = ro
+        .iter()
+        .map(|(c, w, q)| ((c.as_str(), w.as_str()), *q))
+        .collect();
+    // Largest value of each kind per combination, for the round-off floor.
+    let mut largest: std::collections::HashMap<(&str, Dimension), f64> =
+        std::collections::HashMap::new();
+    for (c, _, x) in &rn {
+        let e = largest.entry((c.as_str(), x.dim)).or_insert(0.0);
+        *e = e.max(x.value.abs());
+    }
     let mut changes = Vec::new();
     for (c, what, q) in &rn {
-        let Some((_, _, o)) = ro.iter().find(|(c2, w2, _)| c2 == c && w2 == what) else {
+        let Some(o) = ro_map.get(&(c.as_str(), what.as_str())) else {
             continue;
         };
         let scale = o.value.abs();
@@ -428,11 +449,7 @@ pub fn diff(
         let reversed = o.value * q.value < 0.0;
         let percent = (scale > 0.0 && !reversed).then(|| 100.0 * (q.value.abs() - scale) / scale);
         // Changes at round-off level of the largest value of the kind are noise.
-        let floor = rn
-            .iter()
-            .filter(|(c2, _, x)| c2 == c && x.dim == q.dim)
-            .fold(0.0f64, |m, (_, _, x)| m.max(x.value.abs()))
-            * 1e-9;
+        let floor = largest.get(&(c.as_str(), q.dim)).copied().unwrap_or(0.0) * 1e-9;
         let significant = match percent {
             Some(p) => p.abs() > min_change_percent && delta.abs() > floor,
             None => delta.abs() > floor,
@@ -451,12 +468,17 @@ pub fn diff(
 
     let co = check_table(old);
     let cn = check_table(new);
+    let co_map: std::collections::HashMap<(&str, &str), (Option<f64>, bool)> = co
+        .iter()
+        .map(|(l, c, u, p)| ((l.as_str(), c.as_str()), (*u, *p)))
+        .collect();
+    let cn_keys: std::collections::HashSet<(&str, &str)> = cn
+        .iter()
+        .map(|(l, c, _, _)| (l.as_str(), c.as_str()))
+        .collect();
     let mut checks = Vec::new();
     for (label, combo, u, pass) in &cn {
-        let before = co
-            .iter()
-            .find(|(l, c, _, _)| l == label && c == combo)
-            .map(|(_, _, u, p)| (*u, *p));
+        let before = co_map.get(&(label.as_str(), combo.as_str())).copied();
         let changed = match before {
             None => true,
             Some((ou, op)) => {
@@ -479,7 +501,7 @@ pub fn diff(
         }
     }
     for (label, combo, u, pass) in &co {
-        if !cn.iter().any(|(l, c, _, _)| l == label && c == combo) {
+        if !cn_keys.contains(&(label.as_str(), combo.as_str())) {
             checks.push(CheckChange {
                 label: label.clone(),
                 combination: combo.clone(),

@@ -18,30 +18,86 @@ type Result<T> = std::result::Result<T, SyntaxError>;
 ///
 /// # Errors
 /// The syntax errors found: unbalanced braces, unterminated strings and
-/// too-deep nesting from a pre-scan, else pest's first error, worded.
+/// too-deep nesting from a pre-scan, else each statement's first error,
+/// worded for an engineer.
 pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
-    let pre = prescan(text);
+    let (pre, chunks) = prescan(text);
     if !pre.is_empty() {
         return Err(pre);
     }
-    let mut pairs = CalcParser::parse(Rule::file, text).map_err(|e| vec![from_pest(&e, text)])?;
-    let file = pairs.next().ok_or_else(|| vec![eof_error(text)])?;
-    let mut decls = Vec::new();
+    // Large files are parsed on every core; statements are independent.
+    let workers = if chunks.len() < 2000 {
+        1
+    } else {
+        std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
+    };
+    let per = chunks.len().div_ceil(workers).max(1);
+    let parts: Vec<(Vec<Decl>, Vec<SyntaxError>)> = if workers == 1 {
+        vec![parse_chunks(text, &chunks)]
+    } else {
+        std::thread::scope(|scope| {
+            let handles: Vec<_> = chunks
+                .chunks(per)
+                .map(|group| scope.spawn(move || parse_chunks(text, group)))
+                .collect();
+            handles
+                .into_iter()
+                .map(|h| {
+                    h.join()
+                        .unwrap_or_else(|_| (Vec::new(), vec![eof_error(text)]))
+                })
+                .collect()
+        })
+    };
+    let mut decls = Vec::with_capacity(chunks.len());
     let mut errors = Vec::new();
-    for p in file.into_inner() {
-        match p.as_rule() {
-            Rule::EOI | Rule::eol => {}
-            _ => match decl(p) {
-                Ok(d) => decls.push(d),
-                Err(e) => errors.push(e),
-            },
-        }
+    for (d, e) in parts {
+        decls.extend(d);
+        errors.extend(e);
     }
     if errors.is_empty() {
         Ok(File { decls })
     } else {
+        errors.truncate(MAX_SYNTAX_ERRORS);
         Err(errors)
     }
+}
+
+/// At most this many syntax errors are reported from one file.
+const MAX_SYNTAX_ERRORS: usize = 50;
+
+thread_local! {
+    /// Offset of the statement being lowered within the file.
+    static BASE: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
+}
+
+fn parse_chunks(text: &str, chunks: &[(usize, usize)]) -> (Vec<Decl>, Vec<SyntaxError>) {
+    let mut decls = Vec::with_capacity(chunks.len());
+    let mut errors = Vec::new();
+    for &(start, end) in chunks {
+        let chunk = &text[start..end];
+        BASE.with(|b| b.set(start));
+        match CalcParser::parse(Rule::statement, chunk) {
+            Ok(mut pairs) => {
+                let Some(stmt) = pairs.next() else { continue };
+                for p in stmt.into_inner() {
+                    if p.as_rule() == Rule::EOI {
+                        continue;
+                    }
+                    match decl(p) {
+                        Ok(d) => decls.push(d),
+                        Err(e) => errors.push(e),
+                    }
+                }
+            }
+            Err(e) => errors.push(from_pest(&e, text, start)),
+        }
+        if errors.len() >= MAX_SYNTAX_ERRORS {
+            break;
+        }
+    }
+    BASE.with(|b| b.set(0));
+    (decls, errors)
 }
 
 fn eof_error(text: &str) -> SyntaxError {
@@ -57,14 +113,21 @@ fn eof_error(text: &str) -> SyntaxError {
 /// Braces, strings and nesting depth, checked before pest runs so that the
 /// messages can point at the opening brace or quote, and so that hostile
 /// nesting never reaches the recursive parser.
-fn prescan(text: &str) -> Vec<SyntaxError> {
+fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
     let mut errors = Vec::new();
     let mut braces: Vec<usize> = Vec::new();
     let mut depth = 0usize;
     let bytes = text.as_bytes();
+    let mut chunks = Vec::new();
+    let mut chunk_start = 0usize;
+    let mut has_code = false;
     let mut i = 0;
     while i < bytes.len() {
-        match bytes[i] {
+        let b = bytes[i];
+        if !b.is_ascii_whitespace() && b != b'#' && b != b';' {
+            has_code = true;
+        }
+        match b {
             b'#' => {
                 while i < bytes.len() && bytes[i] != b'\n' {
                     i += 1;
@@ -101,21 +164,36 @@ fn prescan(text: &str) -> Vec<SyntaxError> {
                         span: Span::new(i, i + 1),
                         limit: MAX_NESTING,
                     });
-                    return errors;
+                    return (errors, chunks);
                 }
             }
             b')' => depth = depth.saturating_sub(1),
-            b'\n' => depth = 0,
+            b'\n' | b';' => {
+                if b == b'\n' {
+                    depth = 0;
+                }
+                // A statement ends at a line end or `;` outside braces.
+                if braces.is_empty() {
+                    if has_code {
+                        chunks.push((chunk_start, i));
+                    }
+                    chunk_start = i + 1;
+                    has_code = false;
+                }
+            }
             _ => {}
         }
         i += 1;
+    }
+    if has_code {
+        chunks.push((chunk_start, bytes.len()));
     }
     for open in braces {
         errors.push(SyntaxError::UnclosedBlock {
             span: Span::new(open, open + 1),
         });
     }
-    errors
+    (errors, chunks)
 }
 
 /// What the user is told a rule stands for.
@@ -136,7 +214,7 @@ fn describe(rule: Rule) -> Option<&'static str> {
         Rule::unit_expr | Rule::unit_name | Rule::unit_power | Rule::unit_atom => "a unit",
         Rule::mul_op | Rule::add_op | Rule::unit_op => "an operator",
         Rule::eol => "the end of the line",
-        Rule::EOI => "the end of the file",
+        Rule::EOI => "the end of the line",
         Rule::name => "a name",
         Rule::string => "a quoted string",
         Rule::open => "`{`",
@@ -155,9 +233,27 @@ fn describe(rule: Rule) -> Option<&'static str> {
         Rule::unit_system => "`us`, `si`",
         Rule::kw_at => "`at`",
         Rule::entry => "a `key = value` line",
-        Rule::kw_load | Rule::kw_temperature | Rule::kw_strain | Rule::kw_settle => {
-            "a case statement (`load`, `temperature`, `strain`, `settle`)"
-        }
+        Rule::calc_decl
+        | Rule::let_decl
+        | Rule::material_decl
+        | Rule::node_decl
+        | Rule::fix_decl
+        | Rule::part_decl
+        | Rule::rigid_decl
+        | Rule::tie_decl
+        | Rule::case_decl
+        | Rule::combine_decl
+        | Rule::check_decl
+        | Rule::units_decl
+        | Rule::statement => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
+        Rule::load_stmt
+        | Rule::temperature_stmt
+        | Rule::strain_stmt
+        | Rule::settle_stmt
+        | Rule::kw_load
+        | Rule::kw_temperature
+        | Rule::kw_strain
+        | Rule::kw_settle => "a case statement (`load`, `temperature`, `strain`, `settle`)",
         Rule::kw_calc
         | Rule::kw_let
         | Rule::kw_material
@@ -221,11 +317,12 @@ fn token_before(text: &str, pos: usize) -> String {
     }
 }
 
-fn from_pest(e: &pest::error::Error<Rule>, text: &str) -> SyntaxError {
-    let pos = match e.location {
-        pest::error::InputLocation::Pos(p) => p,
-        pest::error::InputLocation::Span((s, _)) => s,
-    };
+fn from_pest(e: &pest::error::Error<Rule>, text: &str, base: usize) -> SyntaxError {
+    let pos = base
+        + match e.location {
+            pest::error::InputLocation::Pos(p) => p,
+            pest::error::InputLocation::Span((s, _)) => s,
+        };
     let mut words: Vec<&str> = Vec::new();
     if let pest::error::ErrorVariant::ParsingError { positives, .. } = &e.variant {
         for r in positives {
@@ -281,7 +378,8 @@ fn from_pest(e: &pest::error::Error<Rule>, text: &str) -> SyntaxError {
 
 fn span(p: &Pair<'_, Rule>) -> Span {
     let s = p.as_span();
-    Span::new(s.start(), s.end())
+    let base = BASE.with(std::cell::Cell::get);
+    Span::new(base + s.start(), base + s.end())
 }
 
 fn ident(p: &Pair<'_, Rule>) -> Ident {
