@@ -72,6 +72,16 @@ pub enum SyntaxError {
         span: Span,
     },
 
+    #[error("`{name}` is not a unit")]
+    #[diagnostic(code(tandem::syntax::unit))]
+    NotAUnit {
+        name: String,
+        #[label("not a unit")]
+        span: Span,
+        #[help]
+        help: Option<String>,
+    },
+
     #[error("a power of a unit must be a small whole number")]
     #[diagnostic(code(tandem::syntax::unit_power), help("write e.g. `in^2` or `m^-1`"))]
     BadUnitPower {

@@ -11,6 +11,7 @@ use super::ast::{
 use super::parser::{CalcParser, Rule};
 use super::{SyntaxError, MAX_NESTING};
 use crate::source::Span;
+use crate::units::lookup;
 
 type Result<T> = std::result::Result<T, SyntaxError>;
 
@@ -206,12 +207,13 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::signed
         | Rule::quantity
         | Rule::paren
-        | Rule::path
-        | Rule::call
+        | Rule::word
         | Rule::number
         | Rule::neg
         | Rule::arg => "a value",
-        Rule::unit_expr | Rule::unit_name | Rule::unit_power | Rule::unit_atom => "a unit",
+        Rule::unit_expr | Rule::unit_name | Rule::unit_power => "a unit",
+        Rule::args => "`(`",
+        Rule::field => "`.`",
         Rule::mul_op | Rule::add_op | Rule::unit_op => "an operator",
         Rule::eol => "the end of the line",
         Rule::EOI => "the end of the line",
@@ -566,9 +568,9 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
             if first.as_rule() == Rule::unit_system {
                 Decl::Units(Units::System(ident(&first)))
             } else {
-                let mut list = vec![unit_expr(first)?];
+                let mut list = vec![only_units(unit_expr(first)?)?];
                 while let Some(q) = next() {
-                    list.push(unit_expr(q)?);
+                    list.push(only_units(unit_expr(q)?)?);
                 }
                 Decl::Units(Units::List(list))
             }
@@ -832,63 +834,112 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             let mut it = parts(p);
             let num = need(it.next(), sp)?;
             let value = number(&num)?;
-            let unit = it.next().map(unit_expr).transpose()?;
-            let end = unit.as_ref().map_or(span(&num).end, |u| u.span.end);
+            let Some(u) = it.next() else {
+                return Ok(Expr {
+                    kind: ExprKind::Quantity { value, unit: None },
+                    span: span(&num),
+                });
+            };
+            let u = unit_expr(u)?;
+            // The unit is the leading run of unit names; what follows a
+            // word that is not a unit multiplies or divides the quantity.
+            let lead = u
+                .factors
+                .iter()
+                .take_while(|f| lookup(&f.name).is_some())
+                .count();
+            if lead == 0 {
+                let f = &u.factors[0];
+                return Err(not_a_unit(f));
+            }
+            let mut factors = u.factors;
+            let rest: Vec<UnitFactor> = factors.split_off(lead);
+            let unit_span = factors[0].span.to(factors[factors.len() - 1].span);
+            let q = Expr {
+                kind: ExprKind::Quantity {
+                    value,
+                    unit: Some(UnitExpr {
+                        factors,
+                        span: unit_span,
+                    }),
+                },
+                span: Span::new(sp.start, unit_span.end),
+            };
+            if rest.is_empty() {
+                return Ok(q);
+            }
+            let mut ops = Vec::with_capacity(rest.len());
+            let mut end = q.span.end;
+            for f in rest {
+                end = f.span.end;
+                let op = if f.divide { MulOp::Div } else { MulOp::Mul };
+                ops.push((op, factor_expr(f)));
+            }
+            let span = Span::new(q.span.start, end);
             Ok(Expr {
-                kind: ExprKind::Quantity { value, unit },
-                span: Span::new(sp.start, end),
-            })
-        }
-        Rule::unit_atom => {
-            let u = unit_expr(need(parts(p).next(), sp)?)?;
-            let span = u.span;
-            Ok(Expr {
-                kind: ExprKind::Unit(u),
+                kind: ExprKind::Product(Box::new(q), ops),
                 span,
             })
         }
-        Rule::path => {
+        Rule::word => {
             let mut it = parts(p);
-            let a = ident(&need(it.next(), sp)?);
-            let (kind, span) = match it.next() {
-                Some(f) => {
-                    let b = ident(&f);
-                    let span = a.span.to(b.span);
-                    (ExprKind::Field(a, b), span)
-                }
+            let id = ident(&need(it.next(), sp)?);
+            match it.next() {
                 None => {
-                    let span = a.span;
-                    (ExprKind::Name(a), span)
+                    let span = id.span;
+                    if lookup(&id.name).is_some() {
+                        let factors = vec![UnitFactor {
+                            name: id.name,
+                            power: 1,
+                            divide: false,
+                            span,
+                        }];
+                        return Ok(Expr {
+                            kind: ExprKind::Unit(UnitExpr { factors, span }),
+                            span,
+                        });
+                    }
+                    Ok(Expr {
+                        kind: ExprKind::Name(id),
+                        span,
+                    })
                 }
-            };
-            Ok(Expr { kind, span })
-        }
-        Rule::call => {
-            let mut it = parts(p);
-            let func = ident(&need(it.next(), sp)?);
-            let mut args = Vec::new();
-            for a in it {
-                let asp = span(&a);
-                let inner: Vec<_> = parts(a).collect();
-                let arg = match inner.as_slice() {
-                    [n, v] if n.as_rule() == Rule::name => Arg {
-                        name: Some(ident(n)),
-                        value: expr(v.clone())?,
-                        span: asp,
-                    },
-                    [v] => Arg {
-                        name: None,
-                        value: expr(v.clone())?,
-                        span: asp,
-                    },
-                    _ => return Err(internal(asp)),
-                };
-                args.push(arg);
+                Some(q) if q.as_rule() == Rule::field => {
+                    let f = ident(&need(parts(q).next(), sp)?);
+                    let span = id.span.to(f.span);
+                    Ok(Expr {
+                        kind: ExprKind::Field(id, f),
+                        span,
+                    })
+                }
+                Some(q) => {
+                    let end = span(&q).end;
+                    let mut args = Vec::new();
+                    for a in parts(q) {
+                        let asp = span(&a);
+                        let inner: Vec<_> = parts(a).collect();
+                        let arg = match inner.as_slice() {
+                            [n, v] if n.as_rule() == Rule::name => Arg {
+                                name: Some(ident(n)),
+                                value: expr(v.clone())?,
+                                span: asp,
+                            },
+                            [v] => Arg {
+                                name: None,
+                                value: expr(v.clone())?,
+                                span: asp,
+                            },
+                            _ => return Err(internal(asp)),
+                        };
+                        args.push(arg);
+                    }
+                    let span = Span::new(id.span.start, end);
+                    Ok(Expr {
+                        kind: ExprKind::Call { func: id, args },
+                        span,
+                    })
+                }
             }
-            Ok(Expr {
-                kind: ExprKind::Call { func, args },
-                span: sp,
-            })
         }
         _ => Err(internal(sp)),
     }
@@ -910,5 +961,67 @@ fn flat<O>(
             kind: make(Box::new(first), rest),
             span,
         }
+    }
+}
+
+/// A word standing after a unit: a unit factor, or a name to multiply by.
+fn factor_expr(f: UnitFactor) -> Expr {
+    let span = f.span;
+    let base = if lookup(&f.name).is_some() {
+        Expr {
+            kind: ExprKind::Unit(UnitExpr {
+                factors: vec![UnitFactor {
+                    name: f.name,
+                    power: 1,
+                    divide: false,
+                    span,
+                }],
+                span,
+            }),
+            span,
+        }
+    } else {
+        Expr {
+            kind: ExprKind::Name(Ident { name: f.name, span }),
+            span,
+        }
+    };
+    if f.power == 1 {
+        return base;
+    }
+    let exp = Expr {
+        kind: ExprKind::Quantity {
+            value: f64::from(f.power),
+            unit: None,
+        },
+        span,
+    };
+    Expr {
+        kind: ExprKind::Power(Box::new(base), Box::new(exp)),
+        span,
+    }
+}
+
+fn not_a_unit(f: &UnitFactor) -> SyntaxError {
+    let names = crate::units::units().iter().map(|u| u.name);
+    let help = match crate::model::did_you_mean(&f.name, names) {
+        Some(s) => format!("{s} To multiply by a value, write `* {}`", f.name),
+        None => format!(
+            "`tandem units` lists the units; to multiply by a value, write `* {}`",
+            f.name
+        ),
+    };
+    SyntaxError::NotAUnit {
+        name: f.name.clone(),
+        span: f.span,
+        help: Some(help),
+    }
+}
+
+/// A unit expression that must consist of units only (`units kip, in`).
+fn only_units(u: UnitExpr) -> Result<UnitExpr> {
+    match u.factors.iter().find(|f| lookup(&f.name).is_none()) {
+        Some(f) => Err(not_a_unit(f)),
+        None => Ok(u),
     }
 }
