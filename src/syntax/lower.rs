@@ -212,17 +212,15 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::neg
         | Rule::arg => "a value",
         Rule::unit_expr | Rule::unit_name | Rule::unit_power => "a unit",
-        Rule::args => "`(`",
         Rule::field => "`.`",
         Rule::mul_op | Rule::add_op | Rule::unit_op => "an operator",
-        Rule::eol => "the end of the line",
-        Rule::EOI => "the end of the line",
+        Rule::eol | Rule::EOI => "the end of the line",
         Rule::name => "a name",
         Rule::string => "a quoted string",
         Rule::open => "`{`",
         Rule::close => "`}`",
         Rule::eq => "`=`",
-        Rule::lparen => "`(`",
+        Rule::lparen | Rule::args => "`(`",
         Rule::rparen => "`)`",
         Rule::comma => "`,`",
         Rule::colon => "`:`",
@@ -247,16 +245,8 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::combine_decl
         | Rule::check_decl
         | Rule::units_decl
-        | Rule::statement => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
-        Rule::load_stmt
-        | Rule::temperature_stmt
-        | Rule::strain_stmt
-        | Rule::settle_stmt
-        | Rule::kw_load
-        | Rule::kw_temperature
-        | Rule::kw_strain
-        | Rule::kw_settle => "a case statement (`load`, `temperature`, `strain`, `settle`)",
-        Rule::kw_calc
+        | Rule::statement
+        | Rule::kw_calc
         | Rule::kw_let
         | Rule::kw_material
         | Rule::kw_node
@@ -268,6 +258,14 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::kw_combine
         | Rule::kw_check
         | Rule::kw_units => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
+        Rule::load_stmt
+        | Rule::temperature_stmt
+        | Rule::strain_stmt
+        | Rule::settle_stmt
+        | Rule::kw_load
+        | Rule::kw_temperature
+        | Rule::kw_strain
+        | Rule::kw_settle => "a case statement (`load`, `temperature`, `strain`, `settle`)",
         _ => return None,
     })
 }
