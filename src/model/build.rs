@@ -467,7 +467,12 @@ fn si_force(q: Quantity) -> Force {
 fn walk_units(e: &Expr, counts: &mut BTreeMap<String, usize>) {
     let mut count = |u: &ast::UnitExpr| {
         for f in &u.factors {
-            *counts.entry(f.name.clone()).or_default() += 1;
+            match counts.get_mut(&f.name) {
+                Some(c) => *c += 1,
+                None => {
+                    counts.insert(f.name.clone(), 1);
+                }
+            }
         }
     };
     match &e.kind {

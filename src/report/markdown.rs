@@ -250,7 +250,7 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
 
     doc.h(2, "Method and sign convention");
     doc.p(&format!(
-        "The assembly is statically indeterminate: statics alone cannot split the load among its parts. Each part obeys Hooke's law, N = k·(δ − δ₀), with k = E·A/L and δ₀ the elongation it would take free of force (misfit, temperature α·ΔT·L, free strain ε·L). Compatibility requires the parts' elongations to follow from the displacements of the nodes they share{}. Equilibrium holds at every free node. The three are solved together by the direct stiffness method for every load combination; supports, ties and rigid bodies are eliminated exactly.",
+        "Where several parts share a load, statics alone cannot split it among them; the calculation therefore joins three sets of equations. Each part obeys Hooke's law, N = k·(δ − δ₀), with k = E·A/L and δ₀ the elongation it would take free of force (misfit, temperature α·ΔT·L, free strain ε·L). Compatibility requires the parts' elongations to follow from the displacements of the nodes they share{}. Equilibrium holds at every free node. The three are solved together by the direct stiffness method for every load combination; supports, ties and rigid bodies are eliminated exactly.",
         if model.rigids.is_empty() { "" } else { " and from the small rigid-body motions of the rigid bodies" }
     ));
     doc.p(&match model.kind {
@@ -1205,6 +1205,16 @@ fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
         }
     }
     doc.end_list();
+    // One reason for every combination is said once.
+    let first_note = a.capacity.first().and_then(|c| c.note.clone());
+    if first_note.is_some()
+        && a.capacity
+            .iter()
+            .all(|c| c.note == first_note && c.events.is_empty())
+    {
+        doc.p(&format!("Capacity {}.", first_note.unwrap_or_default()));
+        return;
+    }
     for c in &a.capacity {
         let name = &solution.combinations[c.combination].name;
         doc.h(3, &format!("Combination `{name}`"));

@@ -162,7 +162,15 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             number(*ratio, 3)
         ));
     }
-    for c in &a.capacity {
+    let first_note = a.capacity.first().and_then(|c| c.note.clone());
+    let same_note = first_note.is_some()
+        && a.capacity
+            .iter()
+            .all(|c| c.note == first_note && c.events.is_empty());
+    if same_note {
+        out.push_str(&format!("\ncapacity: {}\n", first_note.unwrap_or_default()));
+    }
+    for c in a.capacity.iter().filter(|_| !same_note) {
         let name = &solution.combinations[c.combination].name;
         match (&c.note, c.first_yield, c.limit) {
             (Some(n), _, _) => out.push_str(&format!("\ncapacity in {name}: {n}\n")),
