@@ -12,27 +12,11 @@
 
 use std::fmt::Write as _;
 
+mod common;
+
 use tandem::source::Source;
 
-struct Rng(u64);
-
-impl Rng {
-    fn next(&mut self) -> f64 {
-        self.0 ^= self.0 << 13;
-        self.0 ^= self.0 >> 7;
-        self.0 ^= self.0 << 17;
-        (self.0 >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn below(&mut self, n: usize) -> usize {
-        ((self.next() * n as f64) as usize).min(n.saturating_sub(1))
-    }
-    fn chance(&mut self, p: f64) -> bool {
-        self.next() < p
-    }
-    fn pick<'a>(&mut self, xs: &[&'a str]) -> &'a str {
-        xs[self.below(xs.len())]
-    }
-}
+use common::Rng;
 
 fn calc(rng: &mut Rng) -> String {
     let plane = rng.chance(0.5);

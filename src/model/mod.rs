@@ -326,6 +326,30 @@ impl Model {
         self.lets.iter().find(|l| l.name == name).map(|l| l.value)
     }
 
+    /// Unit vector from a part's end A to end B (`[1, 0]` in axial models).
+    #[must_use]
+    pub fn direction(&self, part: usize) -> [f64; 2] {
+        let p = &self.parts[part];
+        let (a, b) = (&self.nodes[p.ends[0]], &self.nodes[p.ends[1]]);
+        match self.kind {
+            Kind::Axial => [1.0, 0.0],
+            Kind::Plane => {
+                let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
+                let l = dx.hypot(dy);
+                [dx / l, dy / l]
+            }
+        }
+    }
+
+    /// True when some part carries one sense only or has a gap, so that
+    /// its response is not linear.
+    #[must_use]
+    pub fn has_nonlinear_parts(&self) -> bool {
+        self.parts
+            .iter()
+            .any(|p| p.carries != Carries::Both || p.slack.value > 0.0)
+    }
+
     #[must_use]
     pub fn node_index(&self, name: &str) -> Option<usize> {
         self.nodes.iter().position(|n| n.name == name)

@@ -619,21 +619,9 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
 fn incidence(model: &Model) -> Vec<Vec<(usize, f64, [f64; 2])>> {
     let mut out = vec![Vec::new(); model.nodes.len()];
     for (i, p) in model.parts.iter().enumerate() {
-        for (end, sign) in [(0usize, 1.0), (1, -1.0)] {
-            let node = p.ends[end];
-            {
-                let (a, b) = (&model.nodes[p.ends[0]], &model.nodes[p.ends[1]]);
-                let dir = match model.kind {
-                    Kind::Axial => [1.0, 0.0],
-                    Kind::Plane => {
-                        let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
-                        let l = dx.hypot(dy);
-                        [dx / l, dy / l]
-                    }
-                };
-                out[node].push((i, sign, dir));
-            }
-        }
+        let dir = model.direction(i);
+        out[p.ends[0]].push((i, 1.0, dir));
+        out[p.ends[1]].push((i, -1.0, dir));
     }
     out
 }

@@ -5,7 +5,7 @@
 //! plastic), until the assembly becomes a mechanism: the plastic limit.
 
 use super::{SolveError, System, Take};
-use crate::model::{Carries, Model};
+use crate::model::Model;
 
 /// A part reaching yield.
 #[derive(Clone, Debug, PartialEq)]
@@ -65,10 +65,7 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
     if !model.materials.iter().any(|m| m.yield_strength.is_some()) {
         return Ok(Vec::new());
     }
-    let nonlinear = model
-        .parts
-        .iter()
-        .any(|p| p.carries != Carries::Both || p.slack.value > 0.0);
+    let nonlinear = model.has_nonlinear_parts();
     let system = System::new(model)?;
     let n = model.parts.len();
     let k_full = system.stiffness();

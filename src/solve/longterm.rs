@@ -4,7 +4,7 @@
 //! their sum.
 
 use super::{Actions, CombinationResult, PartState, SolveError, System, Take};
-use crate::model::{Carries, Model};
+use crate::model::Model;
 
 /// The long-term state of one combination.
 #[derive(Clone, Debug, PartialEq)]
@@ -39,10 +39,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
     if !creeps || !sustained {
         return Ok(Vec::new());
     }
-    let nonlinear = model
-        .parts
-        .iter()
-        .any(|p| p.carries != Carries::Both || p.slack.value > 0.0);
+    let nonlinear = model.has_nonlinear_parts();
     let system = System::new(model)?;
     let n = model.parts.len();
     let k_full = system.stiffness();

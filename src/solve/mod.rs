@@ -124,16 +124,9 @@ fn elements(model: &Model, map: &DofMap) -> Vec<Element> {
     model
         .parts
         .iter()
-        .map(|p| {
-            let (a, b) = (&model.nodes[p.ends[0]], &model.nodes[p.ends[1]]);
-            let dir = match model.kind {
-                Kind::Axial => [1.0, 0.0],
-                Kind::Plane => {
-                    let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
-                    let l = dx.hypot(dy);
-                    [dx / l, dy / l]
-                }
-            };
+        .enumerate()
+        .map(|(pi, p)| {
+            let dir = model.direction(pi);
             let mut g: Vec<(usize, f64)> = Vec::with_capacity(4);
             for (d, c) in dir.iter().enumerate().take(nd) {
                 for (i, v) in map.terms[p.ends[1] * nd + d].iter() {
@@ -541,6 +534,19 @@ fn law(model: &Model, i: usize, m: Mode) -> (bool, f64) {
     }
 }
 
+/// Each part's stiffness in its mode (zero when slack).
+fn engaged_stiffness(model: &Model, modes: &[Mode], k_full: &[f64]) -> Vec<f64> {
+    (0..modes.len())
+        .map(|i| {
+            if law(model, i, modes[i]).0 {
+                k_full[i]
+            } else {
+                0.0
+            }
+        })
+        .collect()
+}
+
 /// Solve every combination of a model.
 ///
 /// # Errors
@@ -611,15 +617,7 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
                     span: combo.span,
                 });
             }
-            let k: Vec<f64> = (0..modes.len())
-                .map(|i| {
-                    if law(model, i, modes[i]).0 {
-                        k_full[i]
-                    } else {
-                        0.0
-                    }
-                })
-                .collect();
+            let k = engaged_stiffness(model, &modes, &k_full);
             if cache.as_ref().is_none_or(|(c, _)| *c != key) {
                 let slack_parts: Vec<usize> = nonlinear
                     .iter()
@@ -654,15 +652,7 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
                 break (q, elong);
             }
         };
-        let k: Vec<f64> = (0..modes.len())
-            .map(|i| {
-                if law(model, i, modes[i]).0 {
-                    k_full[i]
-                } else {
-                    0.0
-                }
-            })
-            .collect();
+        let k = engaged_stiffness(model, &modes, &k_full);
         let forces: Vec<f64> = (0..modes.len())
             .map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1))
             .collect();

@@ -883,25 +883,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             let mut it = parts(p);
             let id = ident(&need(it.next(), sp)?);
             match it.next() {
-                None => {
-                    let span = id.span;
-                    if lookup(&id.name).is_some() {
-                        let factors = vec![UnitFactor {
-                            name: id.name,
-                            power: 1,
-                            divide: false,
-                            span,
-                        }];
-                        return Ok(Expr {
-                            kind: ExprKind::Unit(UnitExpr { factors, span }),
-                            span,
-                        });
-                    }
-                    Ok(Expr {
-                        kind: ExprKind::Name(id),
-                        span,
-                    })
-                }
+                None => Ok(word_expr(id.name, id.span)),
                 Some(q) if q.as_rule() == Rule::field => {
                     let f = ident(&need(parts(q).next(), sp)?);
                     let span = id.span.to(f.span);
@@ -962,28 +944,28 @@ fn flat<O>(
     }
 }
 
+/// A word standing alone: a unit when the table has it, else a name.
+fn word_expr(name: String, span: Span) -> Expr {
+    let kind = if lookup(&name).is_some() {
+        ExprKind::Unit(UnitExpr {
+            factors: vec![UnitFactor {
+                name,
+                power: 1,
+                divide: false,
+                span,
+            }],
+            span,
+        })
+    } else {
+        ExprKind::Name(Ident { name, span })
+    };
+    Expr { kind, span }
+}
+
 /// A word standing after a unit: a unit factor, or a name to multiply by.
 fn factor_expr(f: UnitFactor) -> Expr {
     let span = f.span;
-    let base = if lookup(&f.name).is_some() {
-        Expr {
-            kind: ExprKind::Unit(UnitExpr {
-                factors: vec![UnitFactor {
-                    name: f.name,
-                    power: 1,
-                    divide: false,
-                    span,
-                }],
-                span,
-            }),
-            span,
-        }
-    } else {
-        Expr {
-            kind: ExprKind::Name(Ident { name: f.name, span }),
-            span,
-        }
-    };
+    let base = word_expr(f.name, span);
     if f.power == 1 {
         return base;
     }

@@ -80,3 +80,29 @@ pub fn force(
         .force
         .value
 }
+
+/// A small deterministic generator (xorshift), so random tests reproduce.
+pub struct Rng(pub u64);
+
+impl Rng {
+    /// Uniform in [0, 1).
+    pub fn next(&mut self) -> f64 {
+        self.0 ^= self.0 << 13;
+        self.0 ^= self.0 >> 7;
+        self.0 ^= self.0 << 17;
+        (self.0 >> 11) as f64 / (1u64 << 53) as f64
+    }
+    pub fn range(&mut self, lo: f64, hi: f64) -> f64 {
+        lo + (hi - lo) * self.next()
+    }
+    #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
+    pub fn below(&mut self, n: usize) -> usize {
+        ((self.next() * n as f64) as usize).min(n.saturating_sub(1))
+    }
+    pub fn chance(&mut self, p: f64) -> bool {
+        self.next() < p
+    }
+    pub fn pick<'a>(&mut self, xs: &[&'a str]) -> &'a str {
+        xs[self.below(xs.len())]
+    }
+}
