@@ -2,6 +2,33 @@
 
 mod cli;
 
+// Output that a closed pipe (`tandem report x | head`) cannot turn into a
+// panic: write errors are ignored, as there is no one left to read them.
+macro_rules! out {
+    ($($t:tt)*) => {{
+        use std::io::Write as _;
+        let _ = write!(std::io::stdout(), $($t)*);
+    }};
+}
+macro_rules! outln {
+    ($($t:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stdout(), $($t)*);
+    }};
+}
+macro_rules! err {
+    ($($t:tt)*) => {{
+        use std::io::Write as _;
+        let _ = write!(std::io::stderr(), $($t)*);
+    }};
+}
+macro_rules! errln {
+    ($($t:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), $($t)*);
+    }};
+}
+
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -61,11 +88,11 @@ fn main() -> ExitCode {
             show,
         } => diff(&old, &new, min_change, json, &show),
         Command::Functions => {
-            print!("{}", tandem::model::eval::listing());
+            out!("{}", tandem::model::eval::listing());
             ExitCode::SUCCESS
         }
         Command::Units => {
-            print!("{}", tandem::units::listing());
+            out!("{}", tandem::units::listing());
             ExitCode::SUCCESS
         }
     }
@@ -75,15 +102,15 @@ fn read(path: &Path) -> Option<Source> {
     match tandem::read_source(path) {
         Ok(s) => Some(s),
         Err(msg) => {
-            eprintln!("error: {msg}");
+            errln!("error: {msg}");
             None
         }
     }
 }
 
 fn report_errors(errors: &[tandem::Error], source: &Source) {
-    eprint!("{}", render(errors, source, 100, color()));
-    eprintln!(
+    err!("{}", render(errors, source, 100, color()));
+    errln!(
         "{}: {} error{}",
         source.name,
         errors.len(),
@@ -99,7 +126,7 @@ fn check(files: &[PathBuf]) -> ExitCode {
             continue;
         };
         match tandem::check(&source) {
-            Ok(model) => println!("{}: ok, {}", source.name, tandem::model::summary(&model)),
+            Ok(model) => outln!("{}: ok, {}", source.name, tandem::model::summary(&model)),
             Err(errors) => {
                 report_errors(&errors, &source);
                 failed = true;
@@ -135,9 +162,9 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
     if json {
         let v = tandem::report::json::solution_json(&source.name, &a);
         match serde_json::to_string_pretty(&v) {
-            Ok(s) => println!("{s}"),
+            Ok(s) => outln!("{s}"),
             Err(e) => {
-                eprintln!("error: {e}");
+                errln!("error: {e}");
                 return bad();
             }
         }
@@ -145,11 +172,11 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         let d = match display(&a.model, show) {
             Ok(d) => d,
             Err(msg) => {
-                eprintln!("error: {msg}");
+                errln!("error: {msg}");
                 return bad();
             }
         };
-        print!("{}", tandem::report::table::solve_text(&a, &d));
+        out!("{}", tandem::report::table::solve_text(&a, &d));
     }
     if a.checks.failures() > 0 {
         ExitCode::from(1)
@@ -171,7 +198,7 @@ fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool),
         }
     };
     let d = display(&a.model, show).map_err(|msg| {
-        eprintln!("error: {msg}");
+        errln!("error: {msg}");
         bad()
     })?;
     let md = tandem::report::markdown::report(&source, &a, &d);
@@ -190,13 +217,13 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
     let targets: Vec<Option<PathBuf>> = match output {
         None if files.len() == 1 => vec![None],
         None => {
-            eprintln!("error: several files need `-o DIR` for the reports");
+            errln!("error: several files need `-o DIR` for the reports");
             return bad();
         }
         Some(out) if files.len() == 1 && !out.is_dir() => vec![Some(out.to_path_buf())],
         Some(dir) => {
             if !dir.is_dir() {
-                eprintln!(
+                errln!(
                     "error: {} is not a folder; several files need `-o DIR`",
                     dir.display()
                 );
@@ -215,7 +242,7 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
     };
     for t in targets.iter().flatten() {
         if tandem::output::is_input(t, files) {
-            eprintln!(
+            errln!(
                 "error: refusing to write the report over the input file {}",
                 t.display()
             );
@@ -252,10 +279,10 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
             Ok((text, fails)) => {
                 failed_check |= fails;
                 match target {
-                    None => print!("{text}"),
+                    None => out!("{text}"),
                     Some(path) => {
                         if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
-                            eprintln!("error: cannot write {}: {e}", path.display());
+                            errln!("error: cannot write {}: {e}", path.display());
                             code = bad();
                         }
                     }
@@ -283,10 +310,10 @@ fn fmt(files: &[PathBuf], check: bool) -> ExitCode {
             Ok(text) if text == source.text => {}
             Ok(text) => {
                 if check {
-                    println!("{}", source.name);
+                    outln!("{}", source.name);
                     unformatted = true;
                 } else if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
-                    eprintln!("error: cannot write {}: {e}", path.display());
+                    errln!("error: cannot write {}: {e}", path.display());
                     code = bad();
                 }
             }
@@ -323,19 +350,19 @@ fn read_revision(spec: &str) -> Option<Source> {
         Ok(out) if out.status.success() => match String::from_utf8(out.stdout) {
             Ok(text) => Some(Source::new(spec, text)),
             Err(_) => {
-                eprintln!("error: {spec} is not UTF-8 text");
+                errln!("error: {spec} is not UTF-8 text");
                 None
             }
         },
         Ok(out) => {
-            eprintln!(
+            errln!(
                 "error: cannot read {file} at revision {rev}: {}",
                 String::from_utf8_lossy(&out.stderr).trim()
             );
             None
         }
         Err(e) => {
-            eprintln!("error: cannot run git to read {spec}: {e}");
+            errln!("error: cannot run git to read {spec}: {e}");
             None
         }
     }
@@ -358,21 +385,21 @@ fn diff(old: &str, new: &Path, min_change: f64, json: bool, show: &Show) -> Exit
     let d = match display(&b.model, show) {
         Ok(d) => d,
         Err(msg) => {
-            eprintln!("error: {msg}");
+            errln!("error: {msg}");
             return bad();
         }
     };
     let result = tandem::review::diff::diff(&old_src, &a, &new_src, &b, &d, min_change.max(0.0));
     if json {
         match serde_json::to_string_pretty(&tandem::review::diff::json(&result)) {
-            Ok(s) => println!("{s}"),
+            Ok(s) => outln!("{s}"),
             Err(e) => {
-                eprintln!("error: {e}");
+                errln!("error: {e}");
                 return bad();
             }
         }
     } else {
-        print!("{}", tandem::review::diff::markdown(&result, &d));
+        out!("{}", tandem::review::diff::markdown(&result, &d));
     }
     if result.newly_failing() > 0 {
         ExitCode::from(1)
@@ -395,7 +422,7 @@ struct SweepArgs<'a> {
 fn sweep(args: &SweepArgs<'_>) -> ExitCode {
     use tandem::review::sweep::{self, Sweeper};
     let fail = |msg: String| {
-        eprintln!("error: {msg}");
+        errln!("error: {msg}");
         bad()
     };
     let Some((name, range)) = args.vary.split_once('=') else {
@@ -435,7 +462,7 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
         }
     }
     let solve_error = |(q, errors): (tandem::units::Quantity, Vec<tandem::Error>)| {
-        eprintln!("at {} = {} SI:", name.trim(), q.value);
+        errln!("at {} = {} SI:", name.trim(), q.value);
         report_errors(&errors, &source);
         bad()
     };
@@ -480,11 +507,11 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
     }
     if args.json {
         match serde_json::to_string_pretty(&sweep::json(&table, seek.as_ref())) {
-            Ok(s) => println!("{s}"),
+            Ok(s) => outln!("{s}"),
             Err(e) => return fail(e.to_string()),
         }
     } else {
-        print!("{}", sweep::text(&table, seek.as_ref(), &d));
+        out!("{}", sweep::text(&table, seek.as_ref(), &d));
     }
     ExitCode::SUCCESS
 }

@@ -62,6 +62,17 @@ pub enum SyntaxError {
         limit: usize,
     },
 
+    #[error("too many powers chained in one expression")]
+    #[diagnostic(
+        code(tandem::limit::powers),
+        help("an expression may chain at most {limit} `^`; name inner parts with `let`")
+    )]
+    TooManyPowers {
+        #[label("the limit is passed here")]
+        span: Span,
+        limit: usize,
+    },
+
     #[error("number out of range")]
     #[diagnostic(
         code(tandem::syntax::number),

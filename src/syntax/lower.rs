@@ -122,6 +122,8 @@ fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
     let mut chunks = Vec::new();
     let mut chunk_start = 0usize;
     let mut has_code = false;
+    // `^` is right-associative, so a chain of them nests; count per statement.
+    let mut carets = 0usize;
     let mut i = 0;
     while i < bytes.len() {
         let b = bytes[i];
@@ -169,6 +171,16 @@ fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
                 }
             }
             b')' => depth = depth.saturating_sub(1),
+            b'^' => {
+                carets += 1;
+                if carets > MAX_NESTING {
+                    errors.push(SyntaxError::TooManyPowers {
+                        span: Span::new(i, i + 1),
+                        limit: MAX_NESTING,
+                    });
+                    return (errors, chunks);
+                }
+            }
             b'\n' | b';' => {
                 if b == b'\n' {
                     depth = 0;
@@ -181,6 +193,7 @@ fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
                     chunk_start = i + 1;
                     has_code = false;
                 }
+                carets = 0;
             }
             _ => {}
         }
