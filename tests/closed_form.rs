@@ -327,3 +327,29 @@ load bot = 5 kip
         "{err}"
     );
 }
+
+/// Stiffnesses 1e13 apart give a precision warning (common practice: a
+/// double-precision solve keeps about 16 digits; beyond a 1e12 spread the
+/// soft part's share loses most of them).
+#[test]
+fn stiffness_spread_is_warned() {
+    let text = "
+node a at 0 in
+node b at 0 in
+node c at 0 in
+fix a
+part soft { stiffness = 1e-6 kip/in; ends = a, b }
+part stiff { stiffness = 1e7 kip/in; ends = b, c }
+part tie_back { stiffness = 1 kip/in; ends = a, c }
+load c = 1 kip
+";
+    let (_, s) = solve(text);
+    assert!(
+        s.warnings.iter().any(|w| w.contains("differ by a factor")),
+        "{:?}",
+        s.warnings
+    );
+    let text_ok = text.replace("1e-6 kip/in", "1 kip/in");
+    let (_, s) = solve(&text_ok);
+    assert!(s.warnings.is_empty());
+}
