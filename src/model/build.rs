@@ -87,7 +87,7 @@ impl<'a> Names<'a> {
     }
 
     /// Resolve a name that must be of `kind`, with a suggestion when not.
-    fn expect(&self, id: &Ident, kind: NameKind) -> Result<usize, ModelError> {
+    fn resolve(&self, id: &Ident, kind: NameKind) -> Result<usize, ModelError> {
         match self.get(&id.name) {
             Some((k, i, _)) if k == kind => Ok(i),
             Some((k, _, _)) => Err(ModelError::WrongKind {
@@ -895,7 +895,7 @@ impl Builder {
         for d in &file.decls {
             if let Decl::Fix(list) = d {
                 for s in list {
-                    let Some(i) = self.ok(names.expect(&s.node, NameKind::Node)) else {
+                    let Some(i) = self.ok(names.resolve(&s.node, NameKind::Node)) else {
                         continue;
                     };
                     match (kind, s.axis) {
@@ -948,7 +948,7 @@ impl Builder {
                     };
                     let mut idx = Vec::new();
                     for id in list {
-                        if let Some(i) = self.ok(names.expect(id, NameKind::Node)) {
+                        if let Some(i) = self.ok(names.resolve(id, NameKind::Node)) {
                             if let Some(first) = rigid_of.get(&i) {
                                 self.errors.push(ModelError::RigidShared {
                                     node: id.name.clone(),
@@ -981,7 +981,7 @@ impl Builder {
                         .nodes
                         .iter()
                         .filter_map(|id| {
-                            push_err(&mut self.errors, names.expect(id, NameKind::Node))
+                            push_err(&mut self.errors, names.resolve(id, NameKind::Node))
                         })
                         .collect();
                     if idx.len() == t.nodes.len() {
@@ -1066,7 +1066,7 @@ impl Builder {
             if let Decl::Combine(c) = d {
                 let mut terms: Vec<(usize, f64)> = Vec::new();
                 for t in &c.terms {
-                    if let Some(i) = self.ok(names.expect(&t.case, NameKind::Case)) {
+                    if let Some(i) = self.ok(names.resolve(&t.case, NameKind::Case)) {
                         if terms.iter().any(|(j, _)| *j == i) {
                             self.errors.push(ModelError::CaseTwice {
                                 case: t.case.name.clone(),
@@ -1331,8 +1331,8 @@ impl Builder {
         let mut ends = None;
         match self.opt(f.names("ends")) {
             Some(list) if list.len() == 2 => {
-                let a = self.ok(names.expect(list[0], NameKind::Node));
-                let b = self.ok(names.expect(list[1], NameKind::Node));
+                let a = self.ok(names.resolve(list[0], NameKind::Node));
+                let b = self.ok(names.resolve(list[1], NameKind::Node));
                 if let (Some(a), Some(b)) = (a, b) {
                     if a == b {
                         self.errors.push(ModelError::SameNode {
@@ -1405,7 +1405,7 @@ impl Builder {
                 }
                 Some(_) => match self.opt(f.names("material")) {
                     Some(list) if list.len() == 1 => {
-                        let i = self.ok(names.expect(list[0], NameKind::Material));
+                        let i = self.ok(names.resolve(list[0], NameKind::Material));
                         // only materials that built are in `materials`
                         i.and_then(|_| materials.iter().position(|m| m.name == list[0].name))
                     }
@@ -1671,7 +1671,7 @@ impl Builder {
             }
         };
         let part_of = |id: &Ident, b: &mut Self| -> Option<usize> {
-            let i = b.ok(names.expect(id, NameKind::Part))?;
+            let i = b.ok(names.resolve(id, NameKind::Part))?;
             // The i-th declared part is parts[i] unless an earlier one failed.
             if parts.get(i).is_some_and(|p| p.name == id.name) {
                 Some(i)
@@ -1685,7 +1685,7 @@ impl Builder {
         for s in stmts {
             match s {
                 Stmt::Load { node, force, span } => {
-                    let Some(i) = self.ok(names.expect(node, NameKind::Node)) else {
+                    let Some(i) = self.ok(names.resolve(node, NameKind::Node)) else {
                         continue;
                     };
                     let what = format!("the load on `{}`", node.name);
@@ -1804,7 +1804,7 @@ impl Builder {
                     movement,
                     span,
                 } => {
-                    let Some(i) = self.ok(names.expect(node, NameKind::Node)) else {
+                    let Some(i) = self.ok(names.resolve(node, NameKind::Node)) else {
                         continue;
                     };
                     let direction = match (kind, axis) {
