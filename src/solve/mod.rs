@@ -848,14 +848,12 @@ fn results(
     let rotations = model
         .rigids
         .iter()
-        .enumerate()
-        .map(|(ri, rb)| {
+        .map(|rb| {
             if model.kind == Kind::Axial {
                 return 0.0;
             }
-            // rotation from two nodes of the body: (u_y difference, x difference)
+            // The rotation from the first node and any other at a distance.
             let a = rb.nodes[0];
-            let _ = ri;
             rb.nodes
                 .iter()
                 .skip(1)
