@@ -9,9 +9,9 @@ fn psi() -> f64 {
     lookup("psi").map_or(f64::NAN, |u| u.factor)
 }
 
-/// ACI 318-19 19.2.2.1(b): Ec = 57,000 sqrt(f'c) psi. The commentary's values
-/// for f'c = 3000 / 4000 / 5000 psi are 3,122,019 / 3,604,997 / 4,030,509 psi
-/// (57,000 x sqrt(f'c), rounded to the psi).
+/// ACI 318-19 19.2.2.1(b): Ec = 57,000 sqrt(f'c) psi. For f'c = 3000 / 4000 /
+/// 5000 psi the formula gives 3,122,019 / 3,604,997 / 4,030,509 psi (hand
+/// calculation, rounded to the psi).
 #[test]
 fn aci_modulus_formula() {
     for (fc, expected) in [
