@@ -152,3 +152,35 @@ fn sweep_errors() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("must be positive"));
 }
+
+/// A parameter that enters only a check keeps the one solution; one that
+/// enters a part re-solves. Both give the closed-form utilization.
+#[test]
+fn only_what_depends_on_the_parameter_is_re_solved() {
+    let text = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/sweep/plate.tandem"),
+    )
+    .expect("read")
+    .replace(
+        "let t = 0.5 in",
+        "let t = 0.5 in\nlet limit = 20 ksi\nlet twice = 2 * limit",
+    )
+    .replace("<= 20 ksi", "<= twice / 2");
+    let file = tandem::syntax::parse(&text).expect("parses");
+    assert!(tandem::model::solver_depends_on(&file, "t"));
+    assert!(!tandem::model::solver_depends_on(&file, "limit"));
+    let src = Source::new("plate.tandem", text);
+    let sweeper = Sweeper::new(&src, "limit", &[]).unwrap_or_else(|_| panic!("sweeper"));
+    let table = sweeper
+        .sweep(
+            tandem::quantity("10 ksi").expect("q"),
+            tandem::quantity("40 ksi").expect("q"),
+            4,
+        )
+        .unwrap_or_else(|_| panic!("sweep"));
+    // σ at t = 0.5 in: 400·29000/(29000·5 + 4000·100) ksi
+    let sigma = 400.0 * 29000.0 / (29000.0 * 5.0 + 4000.0 * 100.0);
+    for (s, limit) in table.steps.iter().zip([10.0, 20.0, 30.0, 40.0]) {
+        assert!((s.governing.unwrap_or(0.0) - sigma / limit).abs() < 1e-9);
+    }
+}

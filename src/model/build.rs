@@ -1880,3 +1880,53 @@ impl Builder {
         case
     }
 }
+
+/// Whether anything the solver uses depends on a `let` (directly or through
+/// other `let`s): materials, nodes, parts, cases. When not, a change of the
+/// `let` changes only the checks, and the solution can be kept.
+#[must_use]
+pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
+    // Lets that depend on `name`, found by repeated passes (a fixed point;
+    // the number of passes is bounded by the chain length).
+    let lets: Vec<&ast::Let> = file
+        .decls
+        .iter()
+        .filter_map(|d| match d {
+            Decl::Let(l) => Some(l),
+            _ => None,
+        })
+        .collect();
+    let refs: Vec<Vec<String>> = lets
+        .iter()
+        .map(|l| {
+            let mut v = Vec::new();
+            walk_names(&l.value, &mut v);
+            v.into_iter().map(|i| i.name.clone()).collect()
+        })
+        .collect();
+    let mut dependent: std::collections::HashSet<String> = std::collections::HashSet::new();
+    dependent.insert(name.to_string());
+    loop {
+        let before = dependent.len();
+        for (l, r) in lets.iter().zip(&refs) {
+            if r.iter().any(|n| dependent.contains(n)) {
+                dependent.insert(l.name.name.clone());
+            }
+        }
+        if dependent.len() == before {
+            break;
+        }
+    }
+    file.decls.iter().any(|d| {
+        if matches!(d, Decl::Let(_) | Decl::Check(_) | Decl::Calc(_)) {
+            return false;
+        }
+        let mut exprs = Vec::new();
+        decl_exprs(d, &mut exprs);
+        exprs.iter().any(|e| {
+            let mut v = Vec::new();
+            walk_names(e, &mut v);
+            v.iter().any(|i| dependent.contains(&i.name))
+        })
+    })
+}

@@ -1,8 +1,11 @@
 //! Parameter sweeps and goal seek (`tandem sweep`).
 //!
 //! The file is parsed once; each step re-evaluates the model from the syntax
-//! tree with the swept `let` fixed at the step's value, then solves it and
-//! evaluates its checks.
+//! tree with the swept `let` fixed at the step's value and evaluates the
+//! checks. The assembly is re-solved only when something the solver uses
+//! (a material, node, part or case) depends on the parameter; a parameter
+//! that enters only the checks (a limit, an allowable used in a `check`)
+//! keeps the one solution.
 
 use serde_json::{json, Value};
 
@@ -63,6 +66,9 @@ pub struct Sweeper<'a> {
     dim: Dimension,
     shown: Vec<Shown>,
     source: &'a Source,
+    /// The solution at the file's own value, kept when the parameter only
+    /// enters the checks (nothing the solver uses depends on it).
+    fixed_solution: Option<crate::solve::Solution>,
 }
 
 fn errors<E: Into<Error>>(es: Vec<E>) -> Vec<Error> {
@@ -113,12 +119,18 @@ impl<'a> Sweeper<'a> {
                 field: field.into(),
             });
         }
+        let fixed_solution = if crate::model::solver_depends_on(&file, name) {
+            None
+        } else {
+            Some(solve(&model).map_err(|e| Ok(vec![Error::from(e)]))?)
+        };
         Ok(Self {
             file,
             name: name.into(),
             dim: l.value.dim,
             shown: list,
             source,
+            fixed_solution,
         })
     }
 
@@ -134,8 +146,16 @@ impl<'a> Sweeper<'a> {
     pub fn at(&self, value: Quantity) -> Result<(Model, Checks, Step), Vec<Error>> {
         let model = build_with(&self.file, Limits::default(), &[(self.name.clone(), value)])
             .map_err(errors)?;
-        let solution = solve(&model).map_err(|e| vec![Error::from(e)])?;
-        let checks = evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
+        // Re-solve only when the solver's inputs depend on the parameter.
+        let solved;
+        let solution = match &self.fixed_solution {
+            Some(s) => s,
+            None => {
+                solved = solve(&model).map_err(|e| vec![Error::from(e)])?;
+                &solved
+            }
+        };
+        let checks = evaluate(&model, solution).map_err(|e| vec![Error::from(e)])?;
         let governing = checks
             .outcomes
             .iter()
