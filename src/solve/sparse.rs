@@ -14,7 +14,7 @@ use faer::sparse::linalg::cholesky::LltRef;
 use faer::sparse::linalg::cholesky::{
     factorize_symbolic_cholesky, CholeskySymbolicParams, SymbolicCholesky, SymmetricOrdering,
 };
-use faer::sparse::{SparseColMatRef, SymbolicSparseColMat, SymbolicSparseColMatRef};
+use faer::sparse::{SparseColMatRef, SymbolicSparseColMatRef};
 use faer::{Conj, MatMut, Par, Side, Spec};
 
 /// Pivots below this fraction of their (unit, after scaling) diagonal mark a mechanism.
@@ -150,7 +150,7 @@ impl Pattern {
             l,
             scale,
         };
-        if let Some(mode) = factor.mechanism_mode(values) {
+        if let Some(mode) = factor.mechanism_mode() {
             return Err(Failure::Mechanism(mode));
         }
         Ok(factor)
@@ -210,7 +210,7 @@ impl Factor<'_> {
 
     /// When a pivot was regularised, the free motion it stands for: one
     /// solve with a generic right-hand side, dominated by that motion.
-    fn mechanism_mode(&self, _values: &[f64]) -> Option<Vec<f64>> {
+    fn mechanism_mode(&self) -> Option<Vec<f64>> {
         let n = self.pattern.n;
         let diag = self.l_diagonal();
         let regularised = diag.iter().any(|d| d * d <= 2.0 * REGULARISED);
@@ -238,17 +238,4 @@ impl Factor<'_> {
         );
         Some(y.iter().zip(&self.scale).map(|(v, s)| v * s).collect())
     }
-}
-
-/// Build the symbolic pattern of an n×n matrix from its column structure,
-/// for tests of the pattern itself.
-#[allow(dead_code)]
-pub(crate) fn symbolic_of(pattern: &Pattern) -> SymbolicSparseColMat<usize> {
-    SymbolicSparseColMat::new_checked(
-        pattern.n,
-        pattern.n,
-        pattern.col_ptr.clone(),
-        None,
-        pattern.row_idx.clone(),
-    )
 }
