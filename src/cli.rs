@@ -11,7 +11,7 @@ use clap::{Args, Parser, Subcommand};
 /// tandem is a design aid. Its results must be checked by a qualified
 /// engineer; local codes and licensed practice govern.
 #[derive(Debug, Parser)]
-#[command(name = "tandem", version, about, long_about = None)]
+#[command(name = "tandem", version)]
 pub struct Cli {
     #[command(subcommand)]
     pub command: Command,
