@@ -238,3 +238,18 @@ fn report_refuses_to_overwrite_its_input() {
     assert_eq!(std::fs::read_to_string(&input).expect("still there"), text);
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// The calc shown in README.md checks and solves, so the README stays true.
+#[test]
+fn readme_calc_solves() {
+    let readme =
+        std::fs::read_to_string(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md"))
+            .expect("README");
+    let at = readme.find("## A calc file").expect("section");
+    let block = readme[at..].split("```").nth(1).expect("code block");
+    let src = tandem::source::Source::new("README.md", block);
+    let a = tandem::analyse(&src)
+        .unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)));
+    assert_eq!(a.model.parts.len(), 2);
+    assert_eq!(a.checks.failures(), 0);
+}
