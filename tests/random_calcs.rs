@@ -226,3 +226,75 @@ fn random_calcs_check_solve_and_report() {
         "only {solved} of 400 solved ({refused} refused)"
     );
 }
+
+/// Random chains and meshes of one-sense and gapped parts: the active set
+/// always settles (the damped Newton fallback) or the assembly is reported
+/// as a mechanism; what solves keeps equilibrium and every part obeys its
+/// law (no tension in a compression-only part, nothing inside a gap).
+#[test]
+fn one_sense_and_gapped_parts_always_settle() {
+    let mut rng = Rng(12345);
+    let (mut solved, mut mechanisms) = (0, 0);
+    for _ in 0..1500 {
+        let n = 3 + rng.below(4);
+        let mut t = String::from("material s { E = 29000 ksi; alpha = 6.5e-6 / degF }\n");
+        for i in 0..n {
+            let _ = writeln!(t, "node n{i} at {} in", i * 10);
+        }
+        t.push_str("fix n0\n");
+        if rng.chance(0.7) {
+            let _ = writeln!(t, "fix n{}", n - 1);
+        }
+        let mut k = 0;
+        for i in 1..n {
+            for j in 0..i {
+                if j + 1 == i || rng.chance(0.3) {
+                    let carries = rng.pick(&["tension", "compression", "both"]);
+                    let slack = if rng.chance(0.5) {
+                        format!("; slack = 0.0{} in", 1 + rng.below(9))
+                    } else {
+                        String::new()
+                    };
+                    let _ = writeln!(t, "part p{k} {{ material = s; area = {} in^2; ends = n{j}, n{i}; carries = {carries}{slack} }}", 1 + rng.below(5));
+                    k += 1;
+                }
+            }
+        }
+        for i in 1..n {
+            if rng.chance(0.5) {
+                let _ = writeln!(t, "load n{i} = {} kip", rng.below(400) as i64 - 200);
+            }
+        }
+        if rng.chance(0.5) {
+            t.push_str("temperature = 100 degF\n");
+        }
+        let src = Source::new("c.tandem", t.clone());
+        let m = tandem::check(&src)
+            .unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)));
+        match tandem::solve::solve(&m) {
+            Ok(s) => {
+                solved += 1;
+                let c = &s.combinations[0];
+                // forces of round-off size (a micronewton) are noise, not imbalance
+                assert!(
+                    c.equilibrium_residual.value <= 1e-9 * c.force_scale.value.max(1e3),
+                    "{t}"
+                );
+                let tol = 1e-9 * c.force_scale.value.max(1e3);
+                for (p, r) in m.parts.iter().zip(&c.parts) {
+                    match p.carries {
+                        tandem::model::Carries::Tension => assert!(r.force.value >= -tol, "{t}"),
+                        tandem::model::Carries::Compression => assert!(r.force.value <= tol, "{t}"),
+                        tandem::model::Carries::Both => {}
+                    }
+                }
+            }
+            Err(e) => {
+                let text = format!("{e:?}");
+                assert!(text.contains("Mechanism"), "did not settle:\n{t}\n{text}");
+                mechanisms += 1;
+            }
+        }
+    }
+    assert!(solved > 500, "{solved} solved, {mechanisms} mechanisms");
+}

@@ -453,6 +453,27 @@ impl<'m> System<'m> {
         }
     }
 
+    /// Σ c_i·g_i over the parts: per-part coefficients into the unknowns.
+    fn gather(&self, c: &[f64]) -> Vec<f64> {
+        let mut out = vec![0.0; self.map.n];
+        for (e, &ci) in self.elems.iter().zip(c) {
+            if ci != 0.0 {
+                for &(j, g) in &e.g {
+                    out[j] += ci * g;
+                }
+            }
+        }
+        out
+    }
+
+    /// g_i·v for every part.
+    fn project(&self, v: &[f64]) -> Vec<f64> {
+        self.elems
+            .iter()
+            .map(|e| e.g.iter().map(|&(j, g)| g * v[j]).sum())
+            .collect()
+    }
+
     /// Solve for the unknowns and the part elongations: parts with stiffness
     /// `k[i]` aim at elongation `target[i]` (free elongation plus any gap);
     /// `forces[i]` are constant part forces (yielded parts) pushed onto the
@@ -534,6 +555,115 @@ fn law(model: &Model, i: usize, m: Mode) -> (bool, f64) {
     }
 }
 
+/// The force of a part at free movement `delta` (elongation less free
+/// elongation) by its law, and the mode that force belongs to.
+fn law_force(model: &Model, i: usize, k: f64, delta: f64) -> (f64, Mode) {
+    let p = &model.parts[i];
+    let s = p.slack.value;
+    match p.carries {
+        Carries::Both if s == 0.0 => (k * delta, Mode::Linear),
+        Carries::Tension | Carries::Both if delta > s => (k * (delta - s), Mode::Tension),
+        Carries::Compression | Carries::Both if delta < -s => (k * (delta + s), Mode::Compression),
+        _ => (0.0, Mode::Slack),
+    }
+}
+
+/// The engaged set by damped Newton on the assembly's energy, when flipping
+/// parts does not settle. The energy of parts that carry one sense or have
+/// a gap is convex and piecewise quadratic, so Newton steps with an exact
+/// line search always lower it; slack parts keep a trace of stiffness in the
+/// Newton matrix only, so that an intermediate state is never singular.
+fn newton_modes(
+    system: &System<'_>,
+    a: &Actions,
+    k_full: &[f64],
+    start: &[Mode],
+    max_steps: usize,
+) -> Result<Vec<Mode>, SolveError> {
+    let model = system.model;
+    let n = k_full.len();
+    let zero = vec![0.0; n];
+    // Start from the solution of the starting state (all one-sense parts engaged).
+    let k0: Vec<f64> = (0..n)
+        .map(|i| {
+            if law(model, i, start[i]).0 {
+                k_full[i]
+            } else {
+                1e-8 * k_full[i]
+            }
+        })
+        .collect();
+    let f0 = system.factor(&k0, &[])?;
+    let target0: Vec<f64> = (0..n)
+        .map(|i| a.free[i] + law(model, i, start[i]).1)
+        .collect();
+    let (mut q, _) = system.respond(&f0, &k0, &target0, &zero, a);
+    let mut modes = start.to_vec();
+    for _ in 0..max_steps {
+        let base: Vec<f64> = system.project(&q);
+        let delta: Vec<f64> = (0..n).map(|i| base[i] + a.e0[i] - a.free[i]).collect();
+        let forces: Vec<(f64, Mode)> = (0..n)
+            .map(|i| law_force(model, i, k_full[i], delta[i]))
+            .collect();
+        let new_modes: Vec<Mode> = forces.iter().map(|x| x.1).collect();
+        // gradient of the energy: Σ N_i g_i − f
+        let mut grad = system.gather(&forces.iter().map(|x| x.0).collect::<Vec<_>>());
+        for (g, f) in grad.iter_mut().zip(&a.f_loads) {
+            *g -= f;
+        }
+        let scale = a
+            .f_loads
+            .iter()
+            .chain(grad.iter())
+            .fold(0.0f64, |m, v| m.max(v.abs()))
+            .max(1e-300);
+        let gnorm = grad.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        if new_modes == modes && gnorm <= 1e-12 * scale {
+            return Ok(modes);
+        }
+        modes = new_modes;
+        let kh: Vec<f64> = (0..n)
+            .map(|i| {
+                if modes[i] == Mode::Slack {
+                    1e-8 * k_full[i]
+                } else {
+                    k_full[i]
+                }
+            })
+            .collect();
+        let factor = system.factor(&kh, &[])?;
+        let mut d: Vec<f64> = grad.iter().map(|g| -g).collect();
+        factor.solve(&mut d);
+        let gd = system.project(&d);
+        let fd: f64 = a.f_loads.iter().zip(&d).map(|(f, x)| f * x).sum();
+        let slope = |t: f64| -> f64 {
+            (0..n)
+                .map(|i| law_force(model, i, k_full[i], delta[i] + t * gd[i]).0 * gd[i])
+                .sum::<f64>()
+                - fd
+        };
+        // exact line search on the monotone derivative
+        let t = if slope(1.0) <= 0.0 {
+            1.0
+        } else {
+            let (mut lo, mut hi) = (0.0, 1.0);
+            for _ in 0..60 {
+                let mid = 0.5 * (lo + hi);
+                if slope(mid) > 0.0 {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
+            }
+            0.5 * (lo + hi)
+        };
+        for (x, dx) in q.iter_mut().zip(&d) {
+            *x += t * dx;
+        }
+    }
+    Ok(modes)
+}
+
 /// Each part's stiffness in its mode (zero when slack).
 fn engaged_stiffness(model: &Model, modes: &[Mode], k_full: &[f64]) -> Vec<f64> {
     (0..modes.len())
@@ -595,20 +725,39 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
         let mut modes = initial.clone();
         let mut seen: HashSet<u64> = HashSet::new();
         let mut trials = 0;
+        // Flip every part whose state is wrong at once; if that comes back
+        // to a state seen before, flip one part at a time, the most wrong
+        // first; if that cycles too, or a trial state cannot stand, find the
+        // set by damped Newton on the energy.
+        let mut single = false;
+        let mut newton_tried = false;
+        let mut previous: Option<Vec<Mode>> = None;
         let (q, elong) = loop {
             trials += 1;
             let key = state_hash(&modes);
             if !seen.insert(key) {
-                let flipping: Vec<String> = nonlinear
-                    .iter()
-                    .take(4)
-                    .map(|&i| format!("`{}`", model.parts[i].name))
-                    .collect();
-                return Err(SolveError::Cycling {
-                    combination: combo.name.clone(),
-                    parts: flipping.join(", "),
-                    span: combo.span,
-                });
+                if single {
+                    if newton_tried {
+                        let flipping: Vec<String> = nonlinear
+                            .iter()
+                            .take(4)
+                            .map(|&i| format!("`{}`", model.parts[i].name))
+                            .collect();
+                        return Err(SolveError::Cycling {
+                            combination: combo.name.clone(),
+                            parts: flipping.join(", "),
+                            span: combo.span,
+                        });
+                    }
+                    // Flipping does not settle: let Newton find the set.
+                    newton_tried = true;
+                    modes = newton_modes(&system, &a, &k_full, &initial, max_trials)?;
+                    seen.clear();
+                    continue;
+                }
+                single = true;
+                seen.clear();
+                seen.insert(key);
             }
             if trials > max_trials {
                 return Err(SolveError::TooManyTrials {
@@ -624,7 +773,18 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
                     .copied()
                     .filter(|&i| modes[i] == Mode::Slack)
                     .collect();
-                cache = Some((key, system.factor(&k, &slack_parts)?));
+                match system.factor(&k, &slack_parts) {
+                    Ok(f) => cache = Some((key, f)),
+                    Err(SolveError::Mechanism { .. }) if !newton_tried && previous.is_some() => {
+                        // A trial state that cannot stand: let Newton find the set.
+                        newton_tried = true;
+                        single = true;
+                        modes = newton_modes(&system, &a, &k_full, &initial, max_trials)?;
+                        seen.clear();
+                        continue;
+                    }
+                    Err(e) => return Err(e),
+                }
             }
             let target: Vec<f64> = (0..modes.len())
                 .map(|i| a.free[i] + law(model, i, modes[i]).1)
@@ -633,23 +793,49 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
                 return Err(numeric(model, "no factorisation".into()));
             };
             let (q, elong) = system.respond(f, &k, &target, &zero, &a);
-            let mut changed = false;
+            // Each wrong part and how far its elongation is from its state.
+            let mut wrong: Vec<(usize, Mode, f64)> = Vec::new();
             for &i in &nonlinear {
                 let p = &model.parts[i];
                 let delta = elong[i] - a.free[i];
                 let s = p.slack.value;
+                // A part at the edge of its state by round-off keeps it.
+                let tol = 1e-12 * p.length.value.max(1e-3);
                 let want = match p.carries {
                     Carries::Tension | Carries::Both if delta > s => Mode::Tension,
                     Carries::Compression | Carries::Both if delta < -s => Mode::Compression,
                     _ => Mode::Slack,
                 };
-                if want != modes[i] {
-                    modes[i] = want;
-                    changed = true;
+                let edge = match (modes[i], want) {
+                    (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs() <= tol,
+                    (Mode::Compression, _) | (_, Mode::Compression) => (delta + s).abs() <= tol,
+                    _ => false,
+                };
+                if want != modes[i] && !edge {
+                    let by = match (modes[i], want) {
+                        (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs(),
+                        _ => (delta + s).abs(),
+                    };
+                    wrong.push((i, want, by));
                 }
             }
-            if !changed {
+            if wrong.is_empty() {
                 break (q, elong);
+            }
+            previous = Some(modes.clone());
+            if single {
+                let worst = wrong
+                    .iter()
+                    .copied()
+                    .max_by(|x, y| x.2.total_cmp(&y.2))
+                    .map(|(i, m, _)| (i, m));
+                if let Some((i, m)) = worst {
+                    modes[i] = m;
+                }
+            } else {
+                for (i, m, _) in wrong {
+                    modes[i] = m;
+                }
             }
         };
         let k = engaged_stiffness(model, &modes, &k_full);
