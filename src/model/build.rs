@@ -655,14 +655,7 @@ impl Builder {
         file: &ast::File,
         names: &Names<'_>,
     ) -> (Vec<LetValue>, Vec<Option<Result<Quantity, ()>>>) {
-        let lets: Vec<&ast::Let> = file
-            .decls
-            .iter()
-            .filter_map(|d| match d {
-                Decl::Let(l) => Some(l),
-                _ => None,
-            })
-            .collect();
+        let lets = file_lets(file);
         // Only the first declaration of a name is registered.
         let registered = |i: usize, l: &ast::Let| {
             names.get(&l.name.name) == Some((NameKind::Let, i, l.name.span))
@@ -1881,40 +1874,41 @@ impl Builder {
     }
 }
 
-/// Whether anything the solver uses depends on a `let` (directly or through
-/// other `let`s): materials, nodes, parts, cases. When not, a change of the
-/// `let` changes only the checks, and the solution can be kept.
-#[must_use]
-pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
-    // Lets that depend on `name`, found by repeated passes (a fixed point;
-    // the number of passes is bounded by the chain length).
-    let lets: Vec<&ast::Let> = file
-        .decls
+/// The `let` declarations of a file, in file order.
+fn file_lets(file: &ast::File) -> Vec<&ast::Let> {
+    file.decls
         .iter()
         .filter_map(|d| match d {
             Decl::Let(l) => Some(l),
             _ => None,
         })
-        .collect();
-    let refs: Vec<Vec<String>> = lets
-        .iter()
-        .map(|l| {
-            let mut v = Vec::new();
-            walk_names(&l.value, &mut v);
-            v.into_iter().map(|i| i.name.clone()).collect()
-        })
-        .collect();
+        .collect()
+}
+
+/// Whether anything the solver uses depends on a `let` (directly or through
+/// other `let`s): materials, nodes, parts, cases. When not, a change of the
+/// `let` changes only the checks, and the solution can be kept.
+#[must_use]
+pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
+    // Lets that depend on `name`: a walk over the reverse references.
+    let lets = file_lets(file);
+    let mut users: HashMap<String, Vec<usize>> = HashMap::new();
+    for (i, l) in lets.iter().enumerate() {
+        let mut v = Vec::new();
+        walk_names(&l.value, &mut v);
+        for id in v {
+            users.entry(id.name.clone()).or_default().push(i);
+        }
+    }
     let mut dependent: std::collections::HashSet<String> = std::collections::HashSet::new();
     dependent.insert(name.to_string());
-    loop {
-        let before = dependent.len();
-        for (l, r) in lets.iter().zip(&refs) {
-            if r.iter().any(|n| dependent.contains(n)) {
-                dependent.insert(l.name.name.clone());
+    let mut stack = vec![name.to_string()];
+    while let Some(n) = stack.pop() {
+        for &i in users.get(&n).map_or(&[][..], Vec::as_slice) {
+            let l = &lets[i].name.name;
+            if dependent.insert(l.clone()) {
+                stack.push(l.clone());
             }
-        }
-        if dependent.len() == before {
-            break;
         }
     }
     file.decls.iter().any(|d| {
