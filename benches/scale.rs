@@ -156,6 +156,7 @@ fn main() {
                     capacity: Vec::new(),
                     long_term: Vec::new(),
                     buckling: Vec::new(),
+                    long_term_checks: None,
                 };
                 let d = tandem::report::Display::for_model(&a.model, 4);
                 let t = Instant::now();

@@ -88,6 +88,20 @@ pub struct Analysis {
     pub long_term: Vec<solve::longterm::LongTerm>,
     /// Euler loads of parts with a `buckling_length`.
     pub buckling: Vec<checks::Buckling>,
+    /// The checks evaluated on the long-term states, with those states as a
+    /// solution of their own (combinations in the order of `long_term`).
+    pub long_term_checks: Option<(solve::Solution, checks::Checks)>,
+}
+
+impl Analysis {
+    /// Checks that fail, short term and long term.
+    pub fn failures(&self) -> usize {
+        self.checks.failures()
+            + self
+                .long_term_checks
+                .as_ref()
+                .map_or(0, |(_, c)| c.failures())
+    }
 }
 
 /// Check, solve and evaluate the checks of a calc file.
@@ -101,6 +115,19 @@ pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
     let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
     let long_term = solve::longterm::long_term(&model).map_err(|e| vec![Error::from(e)])?;
     let buckling = checks::buckling(&model, &solution);
+    let states: Vec<solve::CombinationResult> =
+        long_term.iter().filter_map(|l| l.result.clone()).collect();
+    let long_term_checks = if states.is_empty() {
+        None
+    } else {
+        let lt = solve::Solution {
+            unknowns: solution.unknowns,
+            combinations: states,
+            warnings: Vec::new(),
+        };
+        let c = checks::evaluate(&model, &lt).map_err(|e| vec![Error::from(e)])?;
+        Some((lt, c))
+    };
     Ok(Analysis {
         model,
         solution,
@@ -108,6 +135,7 @@ pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
         capacity,
         long_term,
         buckling,
+        long_term_checks,
     })
 }
 

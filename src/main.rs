@@ -178,7 +178,7 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         };
         out!("{}", tandem::report::table::solve_text(&a, &d));
     }
-    if a.checks.failures() > 0 {
+    if a.failures() > 0 {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
@@ -208,7 +208,7 @@ fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool),
     } else {
         md
     };
-    Ok((text, a.checks.failures() > 0))
+    Ok((text, a.failures() > 0))
 }
 
 fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> ExitCode {

@@ -227,3 +227,28 @@ fn modulus_sources_are_tracked() {
         .expect("material");
     assert_eq!(mat.e_sources, vec!["ACI 318-19 19.2.2.1(b)"]);
 }
+
+/// Checks are evaluated on the long-term state too: creep of a sustained
+/// load makes the shortening grow by (1 + φ) for a concrete-only column,
+/// so a movement limit that passes short term can fail long term.
+#[test]
+fn checks_in_the_long_term_state() {
+    let text = "
+material concrete { E = 30 GPa; creep = 2.0 }
+node a at 0 m
+node b at 3 m
+fix a
+part c { material = concrete; area = 90000 mm^2; ends = a, b }
+case dead sustained { load b = -1000 kN }
+check \"shortening\" : abs(b.displacement) <= 2 mm
+";
+    let a = analyse(text);
+    // short term: P L / (E A) = 1e6 × 3 / (30e9 × 0.09) = 1.111 mm
+    let short = a.checks.governing()[0].utilization.unwrap_or(0.0);
+    assert!((short - 1.111_111 / 2.0).abs() < 1e-5);
+    let (_, lt) = a.long_term_checks.as_ref().expect("long-term checks");
+    let long = lt.governing()[0].utilization.unwrap_or(0.0);
+    assert!((long - 3.0 * short).abs() < 1e-9, "{long}");
+    assert_eq!(a.checks.failures(), 0);
+    assert_eq!(a.failures(), 1);
+}

@@ -166,6 +166,14 @@ pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
         "yielded": yielded,
         "capacity": capacity,
         "long_term": long_term,
+        "long_term_checks": a.long_term_checks.as_ref().map(|(lt, c)| c.outcomes.iter().map(|o| json!({
+            "label": o.label,
+            "combination": lt.combinations[o.combination].name,
+            "demand": o.demand.value,
+            "capacity": o.capacity.value,
+            "utilization": o.utilization,
+            "pass": o.pass,
+        })).collect::<Vec<_>>()),
         "buckling": buckling,
         "warnings": solution.warnings,
     })

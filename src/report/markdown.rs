@@ -179,7 +179,17 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             solution.combinations[o.combination].name
         )
     });
-    doc.p(&format!("**Status:** {status}{highest}."));
+    let long = match &a.long_term_checks {
+        Some((_, c)) if c.failures() > 0 => {
+            format!("; **{} checks fail in the long-term state**", c.failures())
+        }
+        Some((_, c)) => format!(
+            "; all {} checks pass in the long-term state",
+            c.governing().len()
+        ),
+        None => String::new(),
+    };
+    doc.p(&format!("**Status:** {status}{highest}{long}."));
 
     // Summary.
     doc.h(2, "Summary");
@@ -1344,6 +1354,39 @@ fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             ],
             &rows,
             &[1, 2, 3, 4, 5],
+        );
+    }
+    if let Some((lt, checks)) = &a.long_term_checks {
+        doc.h(3, "Checks in the long-term state");
+        let rows: Vec<Vec<String>> = checks
+            .governing()
+            .iter()
+            .map(|o| {
+                vec![
+                    o.label.clone(),
+                    format!("`{}`", lt.combinations[o.combination].name),
+                    f.d.quantity(o.demand),
+                    format!("{} {}", o.op.symbol(), f.d.quantity(o.capacity)),
+                    pct(o.utilization),
+                    if o.pass {
+                        "pass".into()
+                    } else {
+                        "**FAIL**".into()
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &[
+                "Check",
+                "Governing combination",
+                "Demand",
+                "Capacity",
+                "Utilization",
+                "Result",
+            ],
+            &rows,
+            &[2, 3, 4],
         );
     }
 }

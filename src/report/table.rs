@@ -262,5 +262,23 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             )
         });
     }
+    if let Some((lt, c)) = &a.long_term_checks {
+        out.push_str("\nchecks in the long-term state (governing combination)\n");
+        let mut rows = vec![vec![
+            "check".to_string(),
+            "combination".to_string(),
+            "utilization".to_string(),
+            "result".to_string(),
+        ]];
+        for o in c.governing() {
+            rows.push(vec![
+                o.label.clone(),
+                lt.combinations[o.combination].name.clone(),
+                o.utilization.map_or("—".into(), |u| number(u, 3)),
+                if o.pass { "pass" } else { "FAIL" }.to_string(),
+            ]);
+        }
+        out.push_str(&aligned(&rows, &[0, 1, 3], "  "));
+    }
     out
 }
