@@ -139,7 +139,7 @@ fn report_structure() {
             assert!(
                 headings
                     .iter()
-                    .any(|x| x.starts_with(&format!("Combination {} =", c.name))),
+                    .any(|x| x.starts_with(&format!("Combination {} ", c.name))),
                 "{}: combination {} missing in {headings:?}",
                 name_of(&path),
                 c.name

@@ -649,7 +649,10 @@ fn combination(
     let combo = &model.combinations[ci];
     doc.h(
         2,
-        &format!("Combination `{}` = {}", r.name, combination_text(model, ci)),
+        &format!(
+            "Combination {}",
+            super::table::combination_heading(model, ci, true)
+        ),
     );
     let nd = model.kind.dofs();
     let axis = ["x", "y"];

@@ -33,6 +33,22 @@ pub(crate) fn aligned(rows: &[Vec<String>], left: &[usize], indent: &str) -> Str
     out
 }
 
+/// The heading of a combination: `name = 1.2 dead + 1.6 live`, or for a
+/// case solved alone (no `combine` in the file) `name (case alone)`.
+pub fn combination_heading(model: &Model, index: usize, code: bool) -> String {
+    let c = &model.combinations[index];
+    let name = if code {
+        format!("`{}`", c.name)
+    } else {
+        c.name.clone()
+    };
+    if c.declared {
+        format!("{name} = {}", combination_text(model, index))
+    } else {
+        format!("{name} (case alone)")
+    }
+}
+
 /// How a combination is made, e.g. `1.2 dead + 1.6 live`.
 pub fn combination_text(model: &Model, index: usize) -> String {
     let c = &model.combinations[index];
@@ -76,9 +92,8 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
     }
     for (ci, r) in solution.combinations.iter().enumerate() {
         out.push_str(&format!(
-            "\ncombination {} = {}\n",
-            r.name,
-            combination_text(model, ci)
+            "\ncombination {}\n",
+            combination_heading(model, ci, false)
         ));
         let mut rows = vec![vec![
             "part".to_string(),
