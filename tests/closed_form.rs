@@ -353,3 +353,72 @@ load c = 1 kip
     let (_, s) = solve(&text_ok);
     assert!(s.warnings.is_empty());
 }
+
+/// A rigid beam pinned at one end on a roller at the other that settles by
+/// s: the beam rotates θ = −s/L about the pin (rigid-body kinematics), so a
+/// vertical rod hung at mid-span stretches by s/2 and carries k·s/2.
+#[test]
+fn settlement_of_a_rigid_body_support() {
+    let text = "
+material steel { E = 29000 ksi }
+node pin at (0 in, 0 in)
+node mid at (60 in, 0 in)
+node end at (120 in, 0 in)
+node top at (60 in, 48 in)
+fix pin
+fix end y
+fix top
+rigid beam { nodes = pin, mid, end }
+part rod { material = steel; area = 0.5 in^2; ends = mid, top }
+settle end y = -0.12 in
+";
+    let (m, s) = solve(text);
+    let k = 29000.0 * KSI * 0.5 * IN * IN / (48.0 * IN);
+    assert!(rel(force(&m, &s, "loads", "rod"), k * 0.06 * IN) < 1e-9);
+    let r = &s.combinations[0];
+    assert!(rel(r.rotations[0], -0.12 / 120.0) < 1e-9);
+    assert!(rel(r.nodes[1].displacement[1].value, -0.06 * IN) < 1e-9);
+    assert!(r.equilibrium_residual.value < 1e-9 * r.force_scale.value);
+}
+
+/// A tie carries a support movement across: node b tied to a support that
+/// moves 0.1 in toward the far support shortens the part b–c by 0.1 in.
+#[test]
+fn settlement_through_a_tie() {
+    let text = "
+material steel { E = 29000 ksi }
+node a at 0 in
+node b at 0 in
+node c at 50 in
+fix a, c
+tie a, b
+part p { material = steel; area = 1 in^2; ends = b, c }
+settle a = 0.1 in
+";
+    let (m, s) = solve(text);
+    let k = 29000.0 * KSI * IN * IN / (50.0 * IN);
+    assert!(rel(force(&m, &s, "loads", "p"), -k * 0.1 * IN) < 1e-9);
+    let r = &s.combinations[0];
+    assert!(rel(r.nodes[0].reaction[0].value, k * 0.1 * IN) < 1e-9);
+}
+
+/// Support movements that no rigid motion can follow are refused.
+#[test]
+fn conflicting_settlements_on_a_rigid_body() {
+    let text = "
+material steel { E = 29000 ksi }
+node a at (0 in, 0 in)
+node b at (60 in, 0 in)
+node c at (120 in, 0 in)
+node top at (60 in, 48 in)
+fix a
+fix b y
+fix c y
+fix top
+rigid beam { nodes = a, b, c }
+part rod { material = steel; area = 0.5 in^2; ends = b, top }
+settle c y = -0.12 in
+";
+    let err = solve_err(text);
+    assert!(err.contains("do not fit together"), "{err}");
+}
