@@ -252,3 +252,39 @@ check \"shortening\" : abs(b.displacement) <= 2 mm
     assert_eq!(a.checks.failures(), 0);
     assert_eq!(a.failures(), 1);
 }
+
+/// Tension-only rods that stay in tension are traced like any part: the
+/// same rigid bar on two rods, now `carries = tension`, reaches the same
+/// plastic limit; a compression-only sleeve that would let go is not traced.
+#[test]
+fn one_sense_parts_in_capacity() {
+    let a = analyse(
+        "
+material steel { E = 200 GPa; yield = 250 MPa }
+node pin at (0 m, 0 m)
+node h1 at (1 m, 0 m)
+node h2 at (2.5 m, 0 m)
+node tip at (3 m, 0 m)
+node t1 at (1 m, 2 m)
+node t2 at (2.5 m, 3 m)
+fix pin, t1, t2
+rigid bar { nodes = pin, h1, h2, tip }
+part r1 { material = steel; area = 300 mm^2; ends = h1, t1; carries = tension }
+part r2 { material = steel; area = 200 mm^2; ends = h2, t2; carries = tension }
+load tip = (0 kN, -10 kN)
+",
+    );
+    let wp = a.capacity[0].limit.expect("limit") * 10e3;
+    let expected = (250e6 * 300e-6 * 1.0 + 250e6 * 200e-6 * 2.5) / 3.0;
+    assert!(rel(wp, expected) < 1e-9);
+    let text = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/bolted_sleeve.tandem"),
+    )
+    .expect("read");
+    let b = analyse(&text);
+    let note = b.capacity[1].note.clone().unwrap_or_default();
+    assert!(
+        note.contains("`sleeve`") && note.contains("go slack"),
+        "{note}"
+    );
+}

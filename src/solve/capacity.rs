@@ -5,7 +5,7 @@
 //! plastic), until the assembly becomes a mechanism: the plastic limit.
 
 use super::{SolveError, System, Take};
-use crate::model::Model;
+use crate::model::{Carries, Model};
 
 /// A part reaching yield.
 #[derive(Clone, Debug, PartialEq)]
@@ -65,15 +65,15 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
     if !model.materials.iter().any(|m| m.yield_strength.is_some()) {
         return Ok(Vec::new());
     }
-    let nonlinear = model.has_nonlinear_parts();
+    let gapped = model.parts.iter().any(|p| p.slack.value > 0.0);
     let system = System::new(model)?;
     let n = model.parts.len();
     let k_full = system.stiffness();
     let zero = vec![0.0; n];
     let mut out = Vec::new();
     for (ci, combo) in model.combinations.iter().enumerate() {
-        if nonlinear {
-            out.push(skipped(ci, "not traced: the assembly has one-sense or gapped parts, whose engagement would change along the path"));
+        if gapped {
+            out.push(skipped(ci, "not traced: the assembly has parts with gaps, whose engagement would change along the path"));
             continue;
         }
         let constant = system.actions(
@@ -141,6 +141,17 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                 .collect();
             // Next part to reach its yield force.
             let mut next = f64::INFINITY;
+            let wrong_sense = |lam: f64| {
+                (0..n).find(|&i| {
+                    let f = nc[i] + lam * np[i];
+                    let tol = 1e-9 * nc[i].abs().max(np[i].abs() * lam.abs()).max(1.0);
+                    match model.parts[i].carries {
+                        Carries::Tension => f < -tol,
+                        Carries::Compression => f > tol,
+                        Carries::Both => false,
+                    }
+                })
+            };
             let mut candidates: Vec<(usize, f64, bool)> = Vec::new();
             for i in 0..n {
                 if yielded[i].is_some() {
@@ -167,6 +178,18 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                 let l = l.max(lambda);
                 candidates.push((i, l, tension));
                 next = next.min(l);
+            }
+            // One-sense parts are traced as engaged; the path holds only if
+            // each keeps its sense over this stage (forces vary linearly).
+            let end = if next.is_finite() { next } else { lambda };
+            if let Some(i) = wrong_sense(lambda).or_else(|| wrong_sense(end)) {
+                note = Some(format!(
+                    "not traced: part `{}`, which carries {} only, would go slack along the path",
+                    model.parts[i].name,
+                    model.parts[i].carries.name()
+                ));
+                events.clear();
+                break;
             }
             if note.is_some() || !next.is_finite() {
                 for i in 0..n {
