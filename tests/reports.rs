@@ -420,7 +420,7 @@ impl<'a> Eval<'a> {
         let unit = match attached {
             Some(u) => Some(u.to_string()),
             None => match self.peek() {
-                Some(u) if u.starts_with(|c: char| c.is_alphabetic() || c == '°') => {
+                Some(u) if u.starts_with(|c: char| c.is_alphabetic() || c == '°' || c == 'µ') => {
                     self.pos += 1;
                     Some(u.to_string())
                 }

@@ -946,7 +946,7 @@ fn combination(
                     });
                     num.push(format!(
                         "{fac}{} · {}",
-                        f.plain(s.strain.value),
+                        f.microstrain(s.strain.value),
                         f.with(p.length.value, &f.d.small)
                     ));
                 }
@@ -1162,6 +1162,16 @@ fn combination(
 }
 
 impl Fmt<'_> {
+    /// A strain in microstrain, in parentheses when negative.
+    fn microstrain(&self, v: f64) -> String {
+        let s = format!("{} µε", self.n(v * 1e6));
+        if s.starts_with('-') {
+            format!("({s})")
+        } else {
+            s
+        }
+    }
+
     fn plain_rad(&self, v: f64) -> String {
         let s = format!("{} rad", self.n(v));
         if s.starts_with('-') {
