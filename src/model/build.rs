@@ -463,74 +463,29 @@ fn si_force(q: Quantity) -> Force {
     Force::new::<newton>(q.value)
 }
 
-/// Every expression in the file, for counting the units it uses.
+/// Count the unit names an expression writes.
 fn walk_units(e: &Expr, counts: &mut BTreeMap<String, usize>) {
-    let mut count = |u: &ast::UnitExpr| {
-        for f in &u.factors {
-            match counts.get_mut(&f.name) {
-                Some(c) => *c += 1,
-                None => {
-                    counts.insert(f.name.clone(), 1);
+    e.visit(&mut |x| {
+        if let ExprKind::Quantity { unit: Some(u), .. } | ExprKind::Unit(u) = &x.kind {
+            for f in &u.factors {
+                match counts.get_mut(&f.name) {
+                    Some(c) => *c += 1,
+                    None => {
+                        counts.insert(f.name.clone(), 1);
+                    }
                 }
             }
         }
-    };
-    match &e.kind {
-        ExprKind::Quantity { unit: Some(u), .. } | ExprKind::Unit(u) => count(u),
-        ExprKind::Quantity { unit: None, .. } | ExprKind::Name(_) | ExprKind::Field(..) => {}
-        ExprKind::Neg(x) => walk_units(x, counts),
-        ExprKind::Sum(a, rest) => {
-            walk_units(a, counts);
-            for (_, x) in rest {
-                walk_units(x, counts);
-            }
-        }
-        ExprKind::Product(a, rest) => {
-            walk_units(a, counts);
-            for (_, x) in rest {
-                walk_units(x, counts);
-            }
-        }
-        ExprKind::Power(a, b) => {
-            walk_units(a, counts);
-            walk_units(b, counts);
-        }
-        ExprKind::Call { args, .. } => {
-            for a in args {
-                walk_units(&a.value, counts);
-            }
-        }
-    }
+    });
 }
 
 /// Names a bare expression refers to (for ordering `let`s).
 fn walk_names<'e>(e: &'e Expr, out: &mut Vec<&'e Ident>) {
-    match &e.kind {
-        ExprKind::Name(id) => out.push(id),
-        ExprKind::Quantity { .. } | ExprKind::Unit(_) | ExprKind::Field(..) => {}
-        ExprKind::Neg(x) => walk_names(x, out),
-        ExprKind::Sum(a, rest) => {
-            walk_names(a, out);
-            for (_, x) in rest {
-                walk_names(x, out);
-            }
+    e.visit(&mut |x| {
+        if let ExprKind::Name(id) = &x.kind {
+            out.push(id);
         }
-        ExprKind::Product(a, rest) => {
-            walk_names(a, out);
-            for (_, x) in rest {
-                walk_names(x, out);
-            }
-        }
-        ExprKind::Power(a, b) => {
-            walk_names(a, out);
-            walk_names(b, out);
-        }
-        ExprKind::Call { args, .. } => {
-            for a in args {
-                walk_names(&a.value, out);
-            }
-        }
-    }
+    });
 }
 
 fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {

@@ -400,36 +400,15 @@ pub fn formula_source(name: &str) -> Option<&'static str> {
 
 /// Published sources of the formulas an expression calls.
 pub fn sources(e: &Expr, out: &mut Vec<&'static str>) {
-    match &e.kind {
-        ExprKind::Call { func, args } => {
+    e.visit(&mut |x| {
+        if let ExprKind::Call { func, .. } = &x.kind {
             if let Some(s) = formula_source(&func.name) {
                 if !out.contains(&s) {
                     out.push(s);
                 }
             }
-            for a in args {
-                sources(&a.value, out);
-            }
         }
-        ExprKind::Neg(x) => sources(x, out),
-        ExprKind::Sum(a, rest) => {
-            sources(a, out);
-            for (_, x) in rest {
-                sources(x, out);
-            }
-        }
-        ExprKind::Product(a, rest) => {
-            sources(a, out);
-            for (_, x) in rest {
-                sources(x, out);
-            }
-        }
-        ExprKind::Power(a, b) => {
-            sources(a, out);
-            sources(b, out);
-        }
-        _ => {}
-    }
+    });
 }
 
 fn too_thick(func: &Ident, span: Span, rule: &str) -> ModelError {

@@ -77,12 +77,7 @@ impl Fmt<'_> {
     }
     /// A value as it stands inside a sum or product: negatives in parentheses.
     fn term(&self, si: f64, u: &Shown) -> String {
-        let s = self.with(si, u);
-        if s.starts_with('-') {
-            format!("({s})")
-        } else {
-            s
-        }
+        bracket_negative(self.with(si, u))
     }
     fn force(&self, si: f64) -> String {
         self.with(si, &self.d.force)
@@ -116,12 +111,16 @@ impl Fmt<'_> {
         format!("{:.3e}/{}", si * t.factor, degree(&t.name))
     }
     fn plain(&self, v: f64) -> String {
-        let s = self.n(v);
-        if s.starts_with('-') {
-            format!("({s})")
-        } else {
-            s
-        }
+        bracket_negative(self.n(v))
+    }
+}
+
+/// A negative value in parentheses, so `a - (-b)` reads unambiguously.
+fn bracket_negative(s: String) -> String {
+    if s.starts_with('-') {
+        format!("({s})")
+    } else {
+        s
     }
 }
 
@@ -1164,21 +1163,11 @@ fn combination(
 impl Fmt<'_> {
     /// A strain in microstrain, in parentheses when negative.
     fn microstrain(&self, v: f64) -> String {
-        let s = format!("{} µε", self.n(v * 1e6));
-        if s.starts_with('-') {
-            format!("({s})")
-        } else {
-            s
-        }
+        bracket_negative(format!("{} µε", self.n(v * 1e6)))
     }
 
     fn plain_rad(&self, v: f64) -> String {
-        let s = format!("{} rad", self.n(v));
-        if s.starts_with('-') {
-            format!("({s})")
-        } else {
-            s
-        }
+        bracket_negative(format!("{} rad", self.n(v)))
     }
 }
 

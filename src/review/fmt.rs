@@ -196,7 +196,11 @@ impl Ctx<'_> {
             l.indent = 2;
             lines.push(l);
         }
-        let close = block.span.end.saturating_sub(1);
+        self.closed(lines, block.span.end.saturating_sub(1))
+    }
+
+    /// A block item: its header and body lines, closed by `}` at `close`.
+    fn closed(&self, mut lines: Vec<Line>, close: usize) -> Item {
         lines.push(Line {
             left: "}".into(),
             anchor: close,
@@ -374,18 +378,7 @@ impl Ctx<'_> {
                     l.indent = 2;
                     lines.push(l);
                 }
-                lines.push(Line {
-                    left: "}".into(),
-                    anchor: close,
-                    ends_on: self.line(close),
-                    ..Line::default()
-                });
-                let n = lines.len();
-                Item {
-                    run: None,
-                    lines,
-                    body: 1..n - 1,
-                }
+                self.closed(lines, close)
             }
         }
     }

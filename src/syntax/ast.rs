@@ -299,3 +299,40 @@ pub struct UnitFactor {
     pub divide: bool,
     pub span: Span,
 }
+
+impl Expr {
+    /// Visit this expression and every expression inside it, outer first.
+    /// Depth is bounded by the parser's nesting limits, and sums and
+    /// products are flat, so the recursion stays shallow.
+    pub fn visit<'e>(&'e self, f: &mut impl FnMut(&'e Expr)) {
+        f(self);
+        match &self.kind {
+            ExprKind::Quantity { .. }
+            | ExprKind::Unit(_)
+            | ExprKind::Name(_)
+            | ExprKind::Field(..) => {}
+            ExprKind::Neg(x) => x.visit(f),
+            ExprKind::Sum(a, rest) => {
+                a.visit(f);
+                for (_, x) in rest {
+                    x.visit(f);
+                }
+            }
+            ExprKind::Product(a, rest) => {
+                a.visit(f);
+                for (_, x) in rest {
+                    x.visit(f);
+                }
+            }
+            ExprKind::Power(a, b) => {
+                a.visit(f);
+                b.visit(f);
+            }
+            ExprKind::Call { args, .. } => {
+                for a in args {
+                    a.value.visit(f);
+                }
+            }
+        }
+    }
+}
