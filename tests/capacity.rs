@@ -4,17 +4,7 @@
 
 mod common;
 
-use tandem::source::Source;
-
-fn analyse(text: &str) -> tandem::Analysis {
-    let src = Source::new("t.tandem", text);
-    tandem::analyse(&src)
-        .unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)))
-}
-
-fn rel(a: f64, b: f64) -> f64 {
-    ((a - b) / b).abs()
-}
+use common::{analyse, rel};
 
 /// Two parallel bars of equal length, steel (400 mm², 200 GPa, 250 MPa) and
 /// aluminium (600 mm², 70 GPa, 240 MPa). Closed form (elastic–perfectly

@@ -41,6 +41,13 @@ pub fn rel(a: f64, b: f64) -> f64 {
     }
 }
 
+/// The whole analysis of `text` (solve, checks, capacity, long term, buckling).
+pub fn analyse(text: &str) -> tandem::Analysis {
+    let src = Source::new("test.tandem", text);
+    tandem::analyse(&src)
+        .unwrap_or_else(|e| panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)))
+}
+
 /// Check and solve `text`.
 pub fn solve(text: &str) -> (tandem::model::Model, tandem::solve::Solution) {
     let m = model(text);
