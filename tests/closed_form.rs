@@ -1,6 +1,6 @@
 #![allow(clippy::approx_constant, clippy::float_cmp)]
 //! The solver against closed-form results of mechanics of materials
-//! (e.g. Gere & Goodno, Mechanics of Materials, ch. 2: statically
+//! (e.g. Gere & Goodno, Mechanics of Materials, ch. 2, from memory: statically
 //! indeterminate axial members, thermal effects, misfits), each in an
 //! invented scenario, to 1e-9 relative.
 

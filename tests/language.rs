@@ -82,7 +82,7 @@ fn lets_in_any_order() {
 }
 
 /// Area and second-moment formulas of solid and hollow shapes (any
-/// mechanics-of-materials text, e.g. Roark's Formulas for Stress and Strain,
+/// mechanics-of-materials text, e.g. Roark's Formulas for Stress and Strain, from memory:
 /// Table A.1): circle pi d^2/4, pi d^4/64; rectangle b h, b h^3/12.
 #[test]
 fn section_areas() {
