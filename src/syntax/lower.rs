@@ -76,29 +76,81 @@ fn parse_chunks(text: &str, chunks: &[(usize, usize)]) -> (Vec<Decl>, Vec<Syntax
     let mut decls = Vec::with_capacity(chunks.len());
     let mut errors = Vec::new();
     for &(start, end) in chunks {
-        let chunk = &text[start..end];
-        BASE.with(|b| b.set(start));
-        match CalcParser::parse(Rule::statement, chunk) {
-            Ok(mut pairs) => {
-                let Some(stmt) = pairs.next() else { continue };
-                for p in stmt.into_inner() {
-                    if p.as_rule() == Rule::EOI {
-                        continue;
-                    }
-                    match decl(p) {
-                        Ok(d) => decls.push(d),
-                        Err(e) => errors.push(e),
-                    }
-                }
-            }
-            Err(e) => errors.push(from_pest(&e, text, start)),
+        let fast = super::fast::statement(&text[start..end], start);
+        if cfg!(debug_assertions) {
+            // Debug builds (the tests) hold the hand-written parser to the
+            // grammar on every statement they parse.
+            let pest = pest_statement(text, start, end);
+            let agree = match (&fast, &pest) {
+                (Some(f), Ok(Some(p))) => f == p,
+                (None, Err(_)) => true,
+                _ => false,
+            };
+            debug_assert!(
+                agree,
+                "parsers disagree on {:?}:\n{fast:#?}\n{pest:#?}",
+                &text[start..end]
+            );
+        }
+        if let Some(d) = fast {
+            decls.push(d);
+            continue;
+        }
+        match pest_statement(text, start, end) {
+            Ok(Some(d)) => decls.push(d),
+            Ok(None) => {}
+            Err(e) => errors.push(e),
         }
         if errors.len() >= MAX_SYNTAX_ERRORS {
             break;
         }
     }
-    BASE.with(|b| b.set(0));
     (decls, errors)
+}
+
+/// One statement through pest and the lowering.
+fn pest_statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
+    BASE.with(|b| b.set(start));
+    let out = match CalcParser::parse(Rule::statement, &text[start..end]) {
+        Ok(mut pairs) => pairs.next().and_then(|stmt| {
+            stmt.into_inner()
+                .find(|p| p.as_rule() != Rule::EOI)
+                .map(decl)
+        }),
+        Err(e) => Some(Err(from_pest(&e, text, start))),
+    };
+    BASE.with(|b| b.set(0));
+    out.transpose()
+}
+
+/// For the tests: parse each statement of `text` with the hand-written
+/// parser and with pest, and describe the first statement where they
+/// differ. The number of statements compared when they all agree.
+///
+/// # Errors
+/// The statement's text and both results when the parsers disagree.
+#[doc(hidden)]
+pub fn compare_parsers(text: &str) -> std::result::Result<usize, String> {
+    let (pre, chunks) = prescan(text);
+    if !pre.is_empty() {
+        return Ok(0);
+    }
+    for &(start, end) in &chunks {
+        let fast = super::fast::statement(&text[start..end], start);
+        let pest = pest_statement(text, start, end);
+        let agree = match (&fast, &pest) {
+            (Some(f), Ok(Some(p))) => f == p,
+            (None, Err(_)) => true,
+            _ => false,
+        };
+        if !agree {
+            return Err(format!(
+                "statement {:?}\nhand-written: {fast:#?}\npest: {pest:#?}",
+                &text[start..end]
+            ));
+        }
+    }
+    Ok(chunks.len())
 }
 
 fn eof_error(text: &str) -> SyntaxError {
@@ -389,10 +441,24 @@ fn from_pest(e: &pest::error::Error<Rule>, text: &str, base: usize) -> SyntaxErr
     }
 }
 
+/// The span of a pair, from its first token to the end of its last one.
+/// (A pest pair also takes in blanks and comments skipped before an
+/// optional part that then did not match; those are left out, so that the
+/// spans equal the hand-written parser's.)
 fn span(p: &Pair<'_, Rule>) -> Span {
     let s = p.as_span();
     let base = BASE.with(std::cell::Cell::get);
-    Span::new(base + s.start(), base + s.end())
+    Span::new(base + s.start(), base + tight_end(p))
+}
+
+fn tight_end(p: &Pair<'_, Rule>) -> usize {
+    if p.as_rule() == Rule::string {
+        return p.as_span().end();
+    }
+    match p.clone().into_inner().last() {
+        Some(q) => tight_end(&q),
+        None => p.as_span().end(),
+    }
 }
 
 fn ident(p: &Pair<'_, Rule>) -> Ident {
@@ -958,7 +1024,7 @@ fn flat<O>(
 }
 
 /// A word standing alone: a unit when the table has it, else a name.
-fn word_expr(name: String, span: Span) -> Expr {
+pub(super) fn word_expr(name: String, span: Span) -> Expr {
     let kind = if lookup(&name).is_some() {
         ExprKind::Unit(UnitExpr {
             factors: vec![UnitFactor {
@@ -976,7 +1042,7 @@ fn word_expr(name: String, span: Span) -> Expr {
 }
 
 /// A word standing after a unit: a unit factor, or a name to multiply by.
-fn factor_expr(f: UnitFactor) -> Expr {
+pub(super) fn factor_expr(f: UnitFactor) -> Expr {
     let span = f.span;
     let base = word_expr(f.name, span);
     if f.power == 1 {

@@ -3,11 +3,12 @@
 
 pub mod ast;
 mod error;
+mod fast;
 mod lower;
 mod parser;
 
 pub use error::SyntaxError;
-pub use lower::parse;
+pub use lower::{compare_parsers, parse};
 
 /// Deepest nesting of parentheses an expression may have.
 pub const MAX_NESTING: usize = 64;

@@ -219,5 +219,14 @@ pub fn units() -> &'static [Unit] {
 /// The unit of this name, if it is one.
 #[must_use]
 pub fn lookup(name: &str) -> Option<&'static Unit> {
-    units().iter().find(|u| u.name == name)
+    static INDEX: OnceLock<std::collections::HashMap<&'static str, usize>> = OnceLock::new();
+    let index = INDEX.get_or_init(|| {
+        let mut m = std::collections::HashMap::new();
+        for (i, u) in units().iter().enumerate() {
+            // the first of a name wins, as in table order
+            m.entry(u.name).or_insert(i);
+        }
+        m
+    });
+    index.get(name).map(|&i| &units()[i])
 }
