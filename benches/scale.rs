@@ -2,7 +2,7 @@
 //! parse + check and for solve, with the peak memory of the process.
 //!
 //! `cargo bench --bench scale` runs every size; `cargo bench --bench scale --
-//! 100000` stops at that many parts. Figures go in docs/performance.md.
+//! 100000` stops at that many parts, and `-- 1000000 chain` runs one kind. Figures go in docs/performance.md.
 
 use std::fmt::Write as _;
 use std::time::Instant;
@@ -107,11 +107,19 @@ fn main() {
         .skip(1)
         .find_map(|a| a.parse().ok())
         .unwrap_or(1_000_000);
+    // `chain`, `bundle` or `grid` among the arguments runs that kind only.
+    let only: Vec<String> = std::env::args()
+        .skip(1)
+        .filter(|a| ["chain", "bundle", "grid"].contains(&a.as_str()))
+        .collect();
     println!("| assembly | parts | unknowns | text MiB | parse s | check s | solve s | report s | peak RSS MiB |");
     println!("|---|---|---|---|---|---|---|---|---|");
     let kinds: [(&str, Generator); 3] =
         [("chain", chain), ("bundle", bundle), ("plane grid", grid)];
     for (name, make) in kinds {
+        if !only.is_empty() && !only.iter().any(|o| name.contains(o.as_str())) {
+            continue;
+        }
         let mut n = 100;
         while n <= limit {
             let text = make(n);
@@ -123,6 +131,7 @@ fn main() {
                 return;
             };
             let tp = Instant::now();
+            let rss_parsed = peak_rss_mib();
             let model = match tandem::model::build(&file, tandem::model::Limits::default()) {
                 Ok(m) => m,
                 Err(e) => {
@@ -133,9 +142,10 @@ fn main() {
             };
             let t1 = Instant::now();
             eprintln!(
-                "  parse {:.3} s, check {:.3} s",
+                "  parse {:.3} s (peak {rss_parsed:.0} MiB), check {:.3} s (peak {:.0} MiB)",
                 (tp - t0).as_secs_f64(),
-                (t1 - tp).as_secs_f64()
+                (t1 - tp).as_secs_f64(),
+                peak_rss_mib()
             );
             let sol = match tandem::solve::solve(&model) {
                 Ok(s) => s,

@@ -1,7 +1,9 @@
 //! Syntax tree to [`Model`]: every name resolved, every expression evaluated
 //! and its dimension checked. All errors in a file are collected.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
+
+use foldhash::{HashMap, HashMapExt};
 
 use uom::si::area::square_meter;
 use uom::si::f64::{
@@ -307,9 +309,35 @@ fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option
     }
 }
 
+/// What a block declares, for messages (`part \`p1\``); written out only
+/// when a message needs it, not once per part.
+#[derive(Clone, Copy)]
+struct What<'a> {
+    kind: &'static str,
+    name: Option<&'a str>,
+}
+
+impl<'a> What<'a> {
+    fn named(kind: &'static str, name: &'a str) -> Self {
+        Self {
+            kind,
+            name: Some(name),
+        }
+    }
+}
+
+impl std::fmt::Display for What<'_> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self.name {
+            Some(n) => write!(f, "{} `{n}`", self.kind),
+            None => f.write_str(self.kind),
+        }
+    }
+}
+
 /// The entries of one block, by key, after unknown and repeated keys.
 struct Fields<'a> {
-    block: String,
+    block: What<'a>,
     span: Span,
     map: BTreeMap<&'static str, &'a Entry>,
 }
@@ -322,7 +350,7 @@ fn example_for(dim: Dimension) -> Option<String> {
 impl<'a> Fields<'a> {
     fn new(
         block: &'a ast::Block,
-        what: String,
+        what: What<'a>,
         keys: &[&'static str],
         errors: &mut Vec<ModelError>,
     ) -> Self {
@@ -333,7 +361,7 @@ impl<'a> Fields<'a> {
                     if let Some(first) = map.get(k) {
                         errors.push(ModelError::DuplicateKey {
                             key: e.key.name.clone(),
-                            block: what.clone(),
+                            block: what.to_string(),
                             span: e.key.span,
                             first: first.key.span,
                         });
@@ -343,7 +371,7 @@ impl<'a> Fields<'a> {
                 }
                 None => errors.push(ModelError::UnknownKey {
                     key: e.key.name.clone(),
-                    block: what.clone(),
+                    block: what.to_string(),
                     span: e.key.span,
                     help: Some(
                         did_you_mean(&e.key.name, keys.iter().copied()).unwrap_or_else(|| {
@@ -372,7 +400,7 @@ impl<'a> Fields<'a> {
 
     fn missing(&self, key: &'static str, help: Option<String>) -> ModelError {
         ModelError::MissingKey {
-            block: self.block.clone(),
+            block: self.block.to_string(),
             key,
             span: self.span,
             help,
@@ -548,7 +576,7 @@ impl Builder {
 
     fn register<'a>(&mut self, file: &'a ast::File) -> Names<'a> {
         let mut names = Names {
-            map: HashMap::new(),
+            map: HashMap::with_capacity(file.decls.len()),
             by_kind: BTreeMap::new(),
         };
         let mut counters = [0usize; 7];
@@ -759,7 +787,15 @@ impl Builder {
         for d in &file.decls {
             match d {
                 Decl::Calc(b) => {
-                    let f = Fields::new(b, "the title block".into(), Title::KEYS, &mut self.errors);
+                    let f = Fields::new(
+                        b,
+                        What {
+                            kind: "the title block",
+                            name: None,
+                        },
+                        Title::KEYS,
+                        &mut self.errors,
+                    );
                     for key in Title::KEYS {
                         if let Some(e) = f.map.get(key) {
                             match &e.value {
@@ -878,7 +914,7 @@ impl Builder {
         for d in &file.decls {
             match d {
                 Decl::Rigid(nb) => {
-                    let what = format!("rigid body `{}`", nb.name.name);
+                    let what = What::named("rigid body", &nb.name.name);
                     let f = Fields::new(&nb.block, what, &["nodes"], &mut self.errors);
                     let Some(list) = self.opt(f.names("nodes")) else {
                         if !f.has("nodes") {
@@ -990,7 +1026,7 @@ impl Builder {
                         span: s.span(),
                         case,
                     }),
-                    None => loose.push(s),
+                    None => loose.push(&**s),
                 },
                 _ => {}
             }
@@ -1163,8 +1199,8 @@ impl Builder {
             "allowable_compression",
             "creep",
         ];
-        let what = format!("material `{}`", nb.name.name);
-        let f = Fields::new(&nb.block, what.clone(), KEYS, &mut self.errors);
+        let what = What::named("material", &nb.name.name);
+        let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
         let e = self.opt(f.quantity("E", Dimension::PRESSURE, scope));
         if !f.has("E") {
             self.errors.push(f.missing(
@@ -1271,8 +1307,8 @@ impl Builder {
             "euler_fraction",
         ];
         let pname = &nb.name.name;
-        let what = format!("part `{pname}`");
-        let f = Fields::new(&nb.block, what.clone(), KEYS, &mut self.errors);
+        let what = What::named("part", pname);
+        let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
         let before = self.errors.len();
 
         // ends
@@ -1320,7 +1356,7 @@ impl Builder {
                     self.errors.push(ModelError::Conflict {
                         key: other.into(),
                         other: "stiffness".into(),
-                        block: what.clone(),
+                        block: what.to_string(),
                         span: e.key.span,
                         help: Some("a spring takes `stiffness` alone; a member takes `material` and `area`".into()),
                     });
@@ -1373,7 +1409,7 @@ impl Builder {
                 self.errors.push(ModelError::Conflict {
                     key: "section".into(),
                     other: "area".into(),
-                    block: what.clone(),
+                    block: what.to_string(),
                     span: s.key.span.to(a.key.span),
                     help: Some("`section` gives the area; drop `area`".into()),
                 });
@@ -1496,7 +1532,7 @@ impl Builder {
         {
             let sp = f.map.get("buckling_length").map_or(nb.span, |e| e.span);
             self.errors.push(ModelError::MissingKey {
-                block: what.clone(),
+                block: what.to_string(),
                 key: "inertia",
                 span: sp,
                 help: Some("a buckling check needs a second moment: give `section = ring(...)` or `inertia = ...`".into()),
@@ -1834,7 +1870,7 @@ fn file_lets(file: &ast::File) -> Vec<&ast::Let> {
     file.decls
         .iter()
         .filter_map(|d| match d {
-            Decl::Let(l) => Some(l),
+            Decl::Let(l) => Some(&**l),
             _ => None,
         })
         .collect()

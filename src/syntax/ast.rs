@@ -16,23 +16,24 @@ pub struct File {
     pub decls: Vec<Decl>,
 }
 
-/// One top-level declaration.
+/// One top-level declaration. The larger kinds are boxed so that a file of
+/// a million parts keeps a compact list.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Decl {
     Calc(Block),
-    Let(Let),
+    Let(Box<Let>),
     Material(NamedBlock),
     Part(NamedBlock),
     Rigid(NamedBlock),
-    Node(Node),
+    Node(Box<Node>),
     Fix(Vec<Support>),
     Tie(Tie),
     Case(Case),
     Combine(Combine),
-    Check(Check),
+    Check(Box<Check>),
     Units(Units),
     /// A case statement standing at top level (the file's single case).
-    Stmt(Stmt),
+    Stmt(Box<Stmt>),
 }
 
 /// `let NAME = EXPR`

@@ -168,7 +168,7 @@ impl P<'_> {
                 }
                 let value = self.expr()?;
                 let span = self.span(start, value.span.end - self.base);
-                Decl::Let(Let { name, value, span })
+                Decl::Let(Box::new(Let { name, value, span }))
             }
             kw @ ("material" | "part" | "rigid") => {
                 let name = self.ident()?;
@@ -188,7 +188,7 @@ impl P<'_> {
                 }
                 let at = self.coord()?;
                 let span = self.span(start, at.span().end - self.base);
-                Decl::Node(Node { name, at, span })
+                Decl::Node(Box::new(Node { name, at, span }))
             }
             "fix" => {
                 let mut supports = vec![self.support()?];
@@ -279,13 +279,13 @@ impl P<'_> {
                 };
                 let rhs = self.expr()?;
                 let span = self.span(start, rhs.span.end - self.base);
-                Decl::Check(Check {
+                Decl::Check(Box::new(Check {
                     label,
                     lhs,
                     op,
                     rhs,
                     span,
-                })
+                }))
             }
             "units" => {
                 let m = self.mark();
@@ -325,7 +325,7 @@ impl P<'_> {
             }
             _ => {
                 self.reset(m);
-                Decl::Stmt(self.case_stmt()?)
+                Decl::Stmt(Box::new(self.case_stmt()?))
             }
         };
         Some(d)

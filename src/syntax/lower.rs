@@ -50,10 +50,16 @@ pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
                 .collect()
         })
     };
-    let mut decls = Vec::with_capacity(chunks.len());
+    // The first worker's list grows in place; the others are moved onto it.
+    let mut decls = Vec::new();
     let mut errors = Vec::new();
     for (d, e) in parts {
-        decls.extend(d);
+        if decls.is_empty() {
+            decls = d;
+            decls.reserve(chunks.len().saturating_sub(decls.len()));
+        } else {
+            decls.extend(d);
+        }
         errors.extend(e);
     }
     if errors.is_empty() {
@@ -509,7 +515,7 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
         rule,
         Rule::load_stmt | Rule::temperature_stmt | Rule::strain_stmt | Rule::settle_stmt
     ) {
-        return Ok(Decl::Stmt(stmt(p)?));
+        return Ok(Decl::Stmt(Box::new(stmt(p)?)));
     }
     let mut it = parts(p);
     let mut next = || it.next();
@@ -518,11 +524,11 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
         Rule::let_decl => {
             let name = ident(&need(next(), sp)?);
             let value = expr(need(next(), sp)?)?;
-            Decl::Let(Let {
+            Decl::Let(Box::new(Let {
                 name,
                 value,
                 span: sp,
-            })
+            }))
         }
         Rule::material_decl | Rule::part_decl | Rule::rigid_decl => {
             let name = ident(&need(next(), sp)?);
@@ -540,7 +546,7 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
         Rule::node_decl => {
             let name = ident(&need(next(), sp)?);
             let at = coord(need(next(), sp)?)?;
-            Decl::Node(Node { name, at, span: sp })
+            Decl::Node(Box::new(Node { name, at, span: sp }))
         }
         Rule::fix_decl => {
             let mut supports = Vec::new();
@@ -632,13 +638,13 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                 _ => Compare::Gt,
             };
             let rhs = expr(need(next(), sp)?)?;
-            Decl::Check(Check {
+            Decl::Check(Box::new(Check {
                 label,
                 lhs,
                 op,
                 rhs,
                 span: sp,
-            })
+            }))
         }
         Rule::units_decl => {
             let first = need(next(), sp)?;
