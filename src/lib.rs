@@ -177,7 +177,7 @@ pub fn quantity(text: &str) -> Result<units::Quantity, String> {
                 .map(units::Quantity::number)
                 .ok_or_else(|| model::ModelError::UnknownName {
                     kind: "name",
-                    name: id.name.clone(),
+                    name: id.name.to_string(),
                     span: id.span,
                     help: None,
                 })

@@ -93,7 +93,7 @@ impl<'a> Names<'a> {
         match self.get(&id.name) {
             Some((k, i, _)) if k == kind => Ok(i),
             Some((k, _, _)) => Err(ModelError::WrongKind {
-                name: id.name.clone(),
+                name: id.name.to_string(),
                 found: k.word(),
                 expected: kind.word(),
                 span: id.span,
@@ -101,7 +101,7 @@ impl<'a> Names<'a> {
             }),
             None => Err(ModelError::UnknownName {
                 kind: kind.word(),
-                name: id.name.clone(),
+                name: id.name.to_string(),
                 span: id.span,
                 help: did_you_mean(&id.name, self.of_kind(kind)).or_else(|| {
                     let all: Vec<_> = self.of_kind(kind).take(6).collect();
@@ -140,7 +140,7 @@ impl Scope for LetScope<'_, '_> {
                 _ => Err(ModelError::poisoned()),
             },
             Some((k, _, _)) => Err(ModelError::WrongKind {
-                name: id.name.clone(),
+                name: id.name.to_string(),
                 found: k.word(),
                 expected: "value",
                 span: id.span,
@@ -155,7 +155,7 @@ impl Scope for LetScope<'_, '_> {
             }),
             None => Err(ModelError::UnknownName {
                 kind: "name",
-                name: id.name.clone(),
+                name: id.name.to_string(),
                 span: id.span,
                 help: did_you_mean(
                     &id.name,
@@ -217,7 +217,7 @@ impl Scope for CheckScope<'_, '_> {
             ),
             Some((k, _, _)) => {
                 return Err(ModelError::WrongKind {
-                    name: object.name.clone(),
+                    name: object.name.to_string(),
                     found: k.word(),
                     expected: "part or node",
                     span: object.span,
@@ -227,7 +227,7 @@ impl Scope for CheckScope<'_, '_> {
             None => {
                 return Err(ModelError::UnknownName {
                     kind: "part or node",
-                    name: object.name.clone(),
+                    name: object.name.to_string(),
                     span: object.span,
                     help: did_you_mean(
                         &object.name,
@@ -242,9 +242,9 @@ impl Scope for CheckScope<'_, '_> {
         match fields.iter().find(|(f, _)| *f == field.name) {
             Some((_, dim)) => Ok(Quantity::new(1.0, *dim)),
             None => Err(ModelError::UnknownField {
-                field: field.name.clone(),
+                field: field.name.to_string(),
                 on,
-                name: object.name.clone(),
+                name: object.name.to_string(),
                 span: field.span,
                 help: Some(
                     did_you_mean(&field.name, fields.iter().map(|(f, _)| *f)).unwrap_or_else(
@@ -360,7 +360,7 @@ impl<'a> Fields<'a> {
                 Some(k) => {
                     if let Some(first) = map.get(k) {
                         errors.push(ModelError::DuplicateKey {
-                            key: e.key.name.clone(),
+                            key: e.key.name.to_string(),
                             block: what.to_string(),
                             span: e.key.span,
                             first: first.key.span,
@@ -370,7 +370,7 @@ impl<'a> Fields<'a> {
                     }
                 }
                 None => errors.push(ModelError::UnknownKey {
-                    key: e.key.name.clone(),
+                    key: e.key.name.to_string(),
                     block: what.to_string(),
                     span: e.key.span,
                     help: Some(
@@ -496,10 +496,10 @@ fn walk_units(e: &Expr, counts: &mut BTreeMap<String, usize>) {
     e.visit(&mut |x| {
         if let ExprKind::Quantity { unit: Some(u), .. } | ExprKind::Unit(u) = &x.kind {
             for f in &u.factors {
-                match counts.get_mut(&f.name) {
+                match counts.get_mut(f.name.as_str()) {
                     Some(c) => *c += 1,
                     None => {
-                        counts.insert(f.name.clone(), 1);
+                        counts.insert(f.name.to_string(), 1);
                     }
                 }
             }
@@ -613,14 +613,14 @@ impl Builder {
             };
             if let Some(what) = reserved {
                 self.errors.push(ModelError::Reserved {
-                    name: id.name.clone(),
+                    name: id.name.to_string(),
                     what,
                     span: id.span,
                 });
             }
             if let Some((_, _, first)) = names.map.get(id.name.as_str()) {
                 self.errors.push(ModelError::Duplicate {
-                    name: id.name.clone(),
+                    name: id.name.to_string(),
                     span: id.span,
                     first: *first,
                 });
@@ -684,7 +684,7 @@ impl Builder {
                                 .collect();
                             if !in_cycle[w] {
                                 self.errors.push(ModelError::Cycle {
-                                    name: lets[w].name.name.clone(),
+                                    name: lets[w].name.name.to_string(),
                                     chain: chain.join(" → "),
                                     span: lets[w].name.span,
                                 });
@@ -738,7 +738,7 @@ impl Builder {
             srcs[i] = s;
         }
         for (l, s) in lets.iter().zip(&srcs) {
-            self.let_sources.insert(l.name.name.clone(), s.clone());
+            self.let_sources.insert(l.name.name.to_string(), s.clone());
         }
         let out = lets
             .iter()
@@ -746,7 +746,7 @@ impl Builder {
             .zip(srcs)
             .filter_map(|((l, v), sources)| match v {
                 Some(Ok(q)) => Some(LetValue {
-                    name: l.name.name.clone(),
+                    name: l.name.name.to_string(),
                     value: *q,
                     expr: l.value.clone(),
                     sources,
@@ -852,7 +852,7 @@ impl Builder {
                         Coord::Plane(ex, ey, _) => (coord(ex, &mut self), coord(ey, &mut self)),
                     };
                     nodes.push(Node {
-                        name: n.name.name.clone(),
+                        name: n.name.name.to_string(),
                         x: x.unwrap_or_default(),
                         y: y.unwrap_or_default(),
                         fixed: [false; 2],
@@ -935,7 +935,7 @@ impl Builder {
                         if let Some(i) = self.ok(names.resolve(id, NameKind::Node)) {
                             if let Some(first) = rigid_of.get(&i) {
                                 self.errors.push(ModelError::RigidShared {
-                                    node: id.name.clone(),
+                                    node: id.name.to_string(),
                                     span: id.span,
                                     first: *first,
                                 });
@@ -955,7 +955,7 @@ impl Builder {
                         continue;
                     }
                     rigids.push(Rigid {
-                        name: nb.name.name.clone(),
+                        name: nb.name.name.to_string(),
                         nodes: idx,
                         span: nb.span,
                     });
@@ -1053,8 +1053,8 @@ impl Builder {
                     if let Some(i) = self.ok(names.resolve(&t.case, NameKind::Case)) {
                         if terms.iter().any(|(j, _)| *j == i) {
                             self.errors.push(ModelError::CaseTwice {
-                                case: t.case.name.clone(),
-                                combination: c.name.name.clone(),
+                                case: t.case.name.to_string(),
+                                combination: c.name.name.to_string(),
                                 span: t.span,
                             });
                         } else {
@@ -1063,7 +1063,7 @@ impl Builder {
                     }
                 }
                 combinations.push(Combination {
-                    name: c.name.name.clone(),
+                    name: c.name.name.to_string(),
                     terms,
                     declared: true,
                     span: c.span,
@@ -1249,7 +1249,12 @@ impl Builder {
             let mut refs = Vec::new();
             walk_names(expr, &mut refs);
             for id in refs {
-                for s in self.let_sources.get(&id.name).cloned().unwrap_or_default() {
+                for s in self
+                    .let_sources
+                    .get(id.name.as_str())
+                    .cloned()
+                    .unwrap_or_default()
+                {
                     if !e_sources.contains(&s) {
                         e_sources.push(s);
                     }
@@ -1268,7 +1273,7 @@ impl Builder {
             return None;
         }
         Some(Material {
-            name: nb.name.name.clone(),
+            name: nb.name.name.to_string(),
             e: si_pressure(e),
             alpha,
             yield_strength,
@@ -1320,8 +1325,8 @@ impl Builder {
                 if let (Some(a), Some(b)) = (a, b) {
                     if a == b {
                         self.errors.push(ModelError::SameNode {
-                            part: pname.clone(),
-                            node: list[0].name.clone(),
+                            part: pname.to_string(),
+                            node: list[0].name.to_string(),
                             span: list[0].span.to(list[1].span),
                         });
                     } else {
@@ -1586,7 +1591,7 @@ impl Builder {
             let allowed = matches!(law, Law::Spring { .. }) && kind == Kind::Axial;
             if !allowed {
                 self.errors.push(ModelError::ZeroLength {
-                    part: pname.clone(),
+                    part: pname.to_string(),
                     a: a.name.clone(),
                     b: b.name.clone(),
                     span: f.map.get("ends").map_or(nb.span, |e| e.span),
@@ -1595,7 +1600,7 @@ impl Builder {
             }
         }
         let part = Part {
-            name: pname.clone(),
+            name: pname.to_string(),
             ends,
             law,
             length: Length::new::<meter>(length),
@@ -1824,7 +1829,7 @@ impl Builder {
                             ""
                         };
                         self.errors.push(ModelError::SettleFree {
-                            node: node.name.clone(),
+                            node: node.name.to_string(),
                             direction: dir.into(),
                             span: *span,
                             help: Some(format!(
@@ -1888,7 +1893,7 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
         let mut v = Vec::new();
         walk_names(&l.value, &mut v);
         for id in v {
-            users.entry(id.name.clone()).or_default().push(i);
+            users.entry(id.name.to_string()).or_default().push(i);
         }
     }
     let mut dependent: std::collections::HashSet<String> = std::collections::HashSet::new();
@@ -1897,8 +1902,8 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
     while let Some(n) = stack.pop() {
         for &i in users.get(&n).map_or(&[][..], Vec::as_slice) {
             let l = &lets[i].name.name;
-            if dependent.insert(l.clone()) {
-                stack.push(l.clone());
+            if dependent.insert(l.to_string()) {
+                stack.push(l.to_string());
             }
         }
     }
@@ -1911,7 +1916,7 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
         exprs.iter().any(|e| {
             let mut v = Vec::new();
             walk_names(e, &mut v);
-            v.iter().any(|i| dependent.contains(&i.name))
+            v.iter().any(|i| dependent.contains(i.name.as_str()))
         })
     })
 }

@@ -104,7 +104,7 @@ pub fn unit_value(u: &UnitExpr) -> Result<Quantity, ModelError> {
     for f in &u.factors {
         let unit = lookup(&f.name).ok_or_else(|| ModelError::UnknownName {
             kind: "unit",
-            name: f.name.clone(),
+            name: f.name.to_string(),
             span: f.span,
             help: Some("`tandem units` lists the units".into()),
         })?;
@@ -490,7 +490,7 @@ fn call(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Val
         }
         _ => {
             return Err(ModelError::UnknownFunction {
-                name: func.name.clone(),
+                name: func.name.to_string(),
                 span: func.span,
                 help: Some(match did_you_mean(name, FUNCTIONS.iter().copied()) {
                     Some(s) => s,

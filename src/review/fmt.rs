@@ -188,7 +188,7 @@ impl Ctx<'_> {
                 ),
             };
             let mut l = self.single(
-                e.key.name.clone(),
+                e.key.name.to_string(),
                 format!("= {value}"),
                 e.key.span.start,
                 end,
@@ -261,7 +261,7 @@ impl Ctx<'_> {
                     .map(|s| match s.axis {
                         Some((Axis::X, _)) => format!("{} x", s.node.name),
                         Some((Axis::Y, _)) => format!("{} y", s.node.name),
-                        None => s.node.name.clone(),
+                        None => s.node.name.to_string(),
                     })
                     .collect();
                 let start = list.first().map_or(0, |s| s.span.start);
@@ -328,7 +328,7 @@ impl Ctx<'_> {
             }
             Decl::Units(u) => {
                 let (text, end) = match u {
-                    ast::Units::System(id) => (id.name.clone(), id.span.end),
+                    ast::Units::System(id) => (id.name.to_string(), id.span.end),
                     ast::Units::List(list) => (
                         list.iter()
                             .map(|x| self.slice(x.span))

@@ -6,7 +6,8 @@ use crate::source::Span;
 /// A name as written, with its span.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Ident {
-    pub name: String,
+    /// Kept inline (no allocation) up to 24 bytes.
+    pub name: compact_str::CompactString,
     pub span: Span,
 }
 
@@ -295,7 +296,7 @@ pub struct UnitExpr {
 /// One unit name with its power; `divide` when it follows a `/`.
 #[derive(Clone, Debug, PartialEq)]
 pub struct UnitFactor {
-    pub name: String,
+    pub name: compact_str::CompactString,
     pub power: i32,
     pub divide: bool,
     pub span: Span,

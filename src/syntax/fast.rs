@@ -124,7 +124,7 @@ impl P<'_> {
     fn ident(&mut self) -> Option<Ident> {
         let (a, b) = self.word()?;
         Some(Ident {
-            name: self.text[a..b].to_string(),
+            name: self.text[a..b].into(),
             span: self.span(a, b),
         })
     }
@@ -293,7 +293,7 @@ impl P<'_> {
                     let w = &self.text[ua..ub];
                     if w == "us" || w == "si" {
                         return Some(Decl::Units(Units::System(Ident {
-                            name: w.to_string(),
+                            name: w.into(),
                             span: self.span(ua, ub),
                         })));
                     }
@@ -894,7 +894,7 @@ impl P<'_> {
             }
         }
         Some(UnitFactor {
-            name: self.text[a..b].to_string(),
+            name: self.text[a..b].into(),
             power,
             divide,
             span,
@@ -910,7 +910,7 @@ impl P<'_> {
             Some(b'(') => {
                 if let Some((args, end)) = self.args() {
                     let func = Ident {
-                        name: self.text[a..b].to_string(),
+                        name: self.text[a..b].into(),
                         span: id_span,
                     };
                     return Some(Expr {
@@ -925,7 +925,7 @@ impl P<'_> {
                 if let Some(f) = self.ident() {
                     let span = id_span.to(f.span);
                     let id = Ident {
-                        name: self.text[a..b].to_string(),
+                        name: self.text[a..b].into(),
                         span: id_span,
                     };
                     return Some(Expr {
@@ -937,7 +937,7 @@ impl P<'_> {
             }
             _ => self.reset(m),
         }
-        Some(word_expr(self.text[a..b].to_string(), id_span))
+        Some(word_expr(self.text[a..b].into(), id_span))
     }
 
     /// `( arg, ... )` at the current position; the arguments and the end.

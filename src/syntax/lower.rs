@@ -469,7 +469,7 @@ fn tight_end(p: &Pair<'_, Rule>) -> usize {
 
 fn ident(p: &Pair<'_, Rule>) -> Ident {
     Ident {
-        name: p.as_str().to_string(),
+        name: p.as_str().into(),
         span: span(p),
     }
 }
@@ -812,7 +812,7 @@ fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
                 let whole = span(&q);
                 let mut it = parts(q);
                 let name_pair = need(it.next(), whole)?;
-                let name = name_pair.as_str().to_string();
+                let name = name_pair.as_str().into();
                 let mut fsp = span(&name_pair);
                 let power = match it.next() {
                     Some(e) => {
@@ -1030,7 +1030,7 @@ fn flat<O>(
 }
 
 /// A word standing alone: a unit when the table has it, else a name.
-pub(super) fn word_expr(name: String, span: Span) -> Expr {
+pub(super) fn word_expr(name: compact_str::CompactString, span: Span) -> Expr {
     let kind = if lookup(&name).is_some() {
         ExprKind::Unit(UnitExpr {
             factors: vec![UnitFactor {
@@ -1077,7 +1077,7 @@ fn not_a_unit(f: &UnitFactor) -> SyntaxError {
         ),
     };
     SyntaxError::NotAUnit {
-        name: f.name.clone(),
+        name: f.name.to_string(),
         span: f.span,
         help: Some(help),
     }
