@@ -335,11 +335,29 @@ impl std::fmt::Display for What<'_> {
     }
 }
 
+/// A block's entries by key: a short list searched in order (a block has a
+/// dozen keys at most), cheaper than a map for each of a million parts.
+struct Keys<'a>(Vec<(&'static str, &'a Entry)>);
+
+impl<'a> Keys<'a> {
+    fn get(&self, key: &str) -> Option<&'a Entry> {
+        self.0.iter().find(|(k, _)| *k == key).map(|(_, e)| *e)
+    }
+
+    fn contains_key(&self, key: &str) -> bool {
+        self.get(key).is_some()
+    }
+
+    fn insert(&mut self, key: &'static str, e: &'a Entry) {
+        self.0.push((key, e));
+    }
+}
+
 /// The entries of one block, by key, after unknown and repeated keys.
 struct Fields<'a> {
     block: What<'a>,
     span: Span,
-    map: BTreeMap<&'static str, &'a Entry>,
+    map: Keys<'a>,
 }
 
 fn example_for(dim: Dimension) -> Option<String> {
@@ -354,7 +372,7 @@ impl<'a> Fields<'a> {
         keys: &[&'static str],
         errors: &mut Vec<ModelError>,
     ) -> Self {
-        let mut map: BTreeMap<&'static str, &'a Entry> = BTreeMap::new();
+        let mut map = Keys(Vec::with_capacity(block.entries.len()));
         for e in &block.entries {
             match keys.iter().find(|k| **k == e.key.name) {
                 Some(k) => {
