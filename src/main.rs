@@ -143,7 +143,7 @@ fn check(files: &[PathBuf]) -> ExitCode {
 fn display(model: &tandem::model::Model, show: &Show) -> Result<Display, String> {
     let digits = usize::from(show.digits);
     Ok(match &show.units {
-        Some(text) => Display::choose(&tandem::parse_units(text)?, &model.unit_usage, digits),
+        Some(text) => Display::for_model_with(model, &tandem::parse_units(text)?, digits),
         None => Display::for_model(model, digits),
     })
 }

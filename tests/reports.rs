@@ -492,3 +492,23 @@ fn verifier_rejects_wrong_arithmetic() {
     assert!(!s.overlaps(Eval::new("1.000 kip", 4).whole().expect("one")));
     assert!(Eval::new("N(core)", 4).whole().is_none());
 }
+
+/// Short assemblies show lengths in the small unit, long ones in the large
+/// one, and a listed length unit wins (common practice: a 400 mm grip is
+/// written in mm, a 16 ft column in ft).
+#[test]
+fn length_unit_follows_the_size_of_the_assembly() {
+    let short = "material s { E = 200 GPa }\nnode a at 0 mm\nnode b at 400 mm\nfix a\n\
+                 part p { material = s; area = 100 mm^2; ends = a, b }\nload b = 10 kN\n";
+    let long = short.replace("400 mm", "4 m");
+    let listed = format!("units kN, m\n{short}");
+    let table = |text: &str| {
+        let src = tandem::source::Source::new("len.tandem", text.to_string());
+        let a = tandem::analyse(&src).expect("solves");
+        let d = tandem::report::Display::for_model(&a.model, 4);
+        tandem::report::markdown::report(&src, &a, &d)
+    };
+    assert!(table(short).contains("| b | 400.0 mm | free |"));
+    assert!(table(&long).contains("| b | 4.000 m | free |"));
+    assert!(table(&listed).contains("| b | 0.4000 m | free |"));
+}

@@ -100,7 +100,33 @@ impl Display {
 
     /// From the file's `units` line, else from the units it writes most.
     pub fn for_model(model: &Model, digits: usize) -> Self {
-        Self::choose(&model.units, &model.unit_usage, digits)
+        Self::for_model_with(model, &model.units, digits)
+    }
+
+    /// The display for a model under a unit choice (from the file or the
+    /// command line). Unless the choice lists a length unit, an assembly
+    /// whose every position and part length is under one foot (or metre) is
+    /// shown in inches (or millimetres), so that a 4 in bolt grip does not
+    /// read as 0.3333 ft.
+    pub fn for_model_with(model: &Model, choice: &UnitChoice, digits: usize) -> Self {
+        let mut d = Self::choose(choice, &model.unit_usage, digits);
+        if !matches!(choice, UnitChoice::List(_)) {
+            let longest = model
+                .parts
+                .iter()
+                .map(|p| p.length.value)
+                .chain(
+                    model
+                        .nodes
+                        .iter()
+                        .flat_map(|n| [n.x.value.abs(), n.y.value.abs()]),
+                )
+                .fold(0.0, f64::max);
+            if longest > 0.0 && longest < d.length.factor {
+                d.length = d.small.clone();
+            }
+        }
+        d
     }
 
     /// Resolve a choice against the file's unit usage.
