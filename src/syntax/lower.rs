@@ -87,13 +87,8 @@ fn parse_chunks(text: &str, chunks: &[(usize, usize)]) -> (Vec<Decl>, Vec<Syntax
             // Debug builds (the tests) hold the hand-written parser to the
             // grammar on every statement they parse.
             let pest = pest_statement(text, start, end);
-            let agree = match (&fast, &pest) {
-                (Some(f), Ok(Some(p))) => f == p,
-                (None, Err(_)) => true,
-                _ => false,
-            };
             debug_assert!(
-                agree,
+                agree(fast.as_ref(), &pest),
                 "parsers disagree on {:?}:\n{fast:#?}\n{pest:#?}",
                 &text[start..end]
             );
@@ -129,6 +124,16 @@ fn pest_statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> 
     out.transpose()
 }
 
+/// Whether the hand-written parser's result is pest's: the same tree, or
+/// both refusing.
+fn agree(fast: Option<&Decl>, pest: &Result<Option<Decl>>) -> bool {
+    match (fast, pest) {
+        (Some(f), Ok(Some(p))) => f == p,
+        (None, Err(_)) => true,
+        _ => false,
+    }
+}
+
 /// For the tests: parse each statement of `text` with the hand-written
 /// parser and with pest, and describe the first statement where they
 /// differ. The number of statements compared when they all agree.
@@ -144,12 +149,7 @@ pub fn compare_parsers(text: &str) -> std::result::Result<usize, String> {
     for &(start, end) in &chunks {
         let fast = super::fast::statement(&text[start..end], start);
         let pest = pest_statement(text, start, end);
-        let agree = match (&fast, &pest) {
-            (Some(f), Ok(Some(p))) => f == p,
-            (None, Err(_)) => true,
-            _ => false,
-        };
-        if !agree {
+        if !agree(fast.as_ref(), &pest) {
             return Err(format!(
                 "statement {:?}\nhand-written: {fast:#?}\npest: {pest:#?}",
                 &text[start..end]
