@@ -89,6 +89,11 @@ fn grid(parts: usize) -> String {
 /// Makes the text of an assembly of about `n` parts.
 type Generator = fn(usize) -> String;
 
+// The command-line tool's allocator, so that the figures are its figures.
+#[cfg(not(target_env = "msvc"))]
+#[global_allocator]
+static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
+
 fn peak_rss_mib() -> f64 {
     std::fs::read_to_string("/proc/self/status")
         .ok()
@@ -147,6 +152,8 @@ fn main() {
                 (t1 - tp).as_secs_f64(),
                 peak_rss_mib()
             );
+            // As `tandem::check` does, the syntax tree goes once the model is built.
+            drop(file);
             let sol = match tandem::solve::solve(&model) {
                 Ok(s) => s,
                 Err(e) => {

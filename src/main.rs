@@ -49,6 +49,10 @@ fn bad() -> ExitCode {
     ExitCode::from(2)
 }
 
+#[cfg(not(target_env = "msvc"))]
+#[global_allocator]
+static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {

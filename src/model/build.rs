@@ -916,14 +916,15 @@ impl Builder {
         }
 
         // Parts.
-        let mut parts = Vec::new();
-        for d in &file.decls {
-            if let Decl::Part(nb) = d {
-                if let Some(p) = self.part(nb, &scope, &names, &materials, &nodes, kind) {
-                    parts.push(p);
-                }
-            }
-        }
+        let part_decls: Vec<&ast::NamedBlock> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Part(nb) => Some(nb),
+                _ => None,
+            })
+            .collect();
+        let parts = self.parts(&part_decls, &scope, &names, &materials, &nodes, kind);
 
         // Rigid bodies and ties.
         let mut rigids = Vec::new();
@@ -1303,6 +1304,58 @@ impl Builder {
             e_sources,
             span: nb.span,
         })
+    }
+
+    /// Every part, on every core for large files: a part needs only the
+    /// names, materials and nodes, so contiguous runs of parts are built
+    /// apart and joined in file order (errors too).
+    fn parts(
+        &mut self,
+        decls: &[&ast::NamedBlock],
+        scope: &LetScope<'_, '_>,
+        names: &Names<'_>,
+        materials: &[Material],
+        nodes: &[Node],
+        kind: Kind,
+    ) -> Vec<Part> {
+        let workers = if decls.len() < 20_000 {
+            1
+        } else {
+            std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
+        };
+        if workers == 1 {
+            return decls
+                .iter()
+                .filter_map(|nb| self.part(nb, scope, names, materials, nodes, kind))
+                .collect();
+        }
+        let per = decls.len().div_ceil(workers);
+        let limits = self.limits;
+        let runs: Vec<(Vec<Part>, Vec<ModelError>)> = std::thread::scope(|s| {
+            let handles: Vec<_> = decls
+                .chunks(per)
+                .map(|run| {
+                    s.spawn(move || {
+                        let mut b = Builder::new(limits);
+                        let parts: Vec<Part> = run
+                            .iter()
+                            .filter_map(|nb| b.part(nb, scope, names, materials, nodes, kind))
+                            .collect();
+                        (parts, b.errors)
+                    })
+                })
+                .collect();
+            handles
+                .into_iter()
+                .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+                .collect()
+        });
+        let mut parts = Vec::with_capacity(decls.len());
+        for (p, e) in runs {
+            parts.extend(p);
+            self.errors.extend(e);
+        }
+        parts
     }
 
     #[allow(clippy::too_many_lines)]

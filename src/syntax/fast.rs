@@ -360,6 +360,9 @@ impl P<'_> {
             }
             if self.peek() == Some(b'}') {
                 self.pos += 1;
+                // Lists are kept at their length (growth leaves room for
+                // four); a million blocks make the slack count.
+                items.shrink_to_fit();
                 return Some((items, self.pos));
             }
             if !items.is_empty() && seps == 0 {
@@ -403,6 +406,7 @@ impl P<'_> {
                     }
                 }
             }
+            list.shrink_to_fit();
             Value::Exprs(list)
         };
         let end = match &value {
