@@ -544,7 +544,8 @@ fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
     };
     let coord = |c: &'e Coord, out: &mut Vec<&'e Expr>| match c {
         Coord::Axial(e) => out.push(e),
-        Coord::Plane(x, y, _) => {
+        Coord::Plane(xy, _) => {
+            let [x, y] = &**xy;
             out.push(x);
             out.push(y);
         }
@@ -867,7 +868,7 @@ impl Builder {
                     };
                     let (x, y) = match &n.at {
                         Coord::Axial(e) => (coord(e, &mut self), Some(Length::new::<meter>(0.0))),
-                        Coord::Plane(ex, ey, _) => (coord(ex, &mut self), coord(ey, &mut self)),
+                        Coord::Plane(xy, _) => (coord(&xy[0], &mut self), coord(&xy[1], &mut self)),
                     };
                     nodes.push(Node {
                         name: n.name.name.to_string(),
@@ -1752,12 +1753,13 @@ impl Builder {
                     let f = match (kind, force) {
                         (Kind::Axial, Coord::Axial(e)) => typed(e, Dimension::FORCE, what, self)
                             .map(|q| [si_force(q), Force::default()]),
-                        (Kind::Plane, Coord::Plane(ex, ey, _)) => {
+                        (Kind::Plane, Coord::Plane(xy, _)) => {
+                            let [ex, ey] = &**xy;
                             let x = typed(ex, Dimension::FORCE, what.clone(), self);
                             let y = typed(ey, Dimension::FORCE, what, self);
                             x.zip(y).map(|(x, y)| [si_force(x), si_force(y)])
                         }
-                        (Kind::Axial, Coord::Plane(_, _, sp)) => {
+                        (Kind::Axial, Coord::Plane(_, sp)) => {
                             self.errors.push(ModelError::ModelKind {
                                 message: "an axial model takes a load as one force".into(),
                                 span: *sp,

@@ -173,7 +173,7 @@ pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
         }
         ExprKind::Unit(u) => unit_value(u)?,
         ExprKind::Name(id) => scope.name(id)?,
-        ExprKind::Field(a, b) => scope.field(a, b)?,
+        ExprKind::Field(f) => scope.field(&f[0], &f[1])?,
         ExprKind::Neg(inner) => {
             let q = eval(inner, scope)?;
             Quantity::new(-q.value, q.dim)
@@ -211,7 +211,7 @@ pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
             let x = eval(exp, scope)?;
             b.pow(x).map_err(|err| unit_error(&err, e.span, "raise"))?
         }
-        ExprKind::Call { func, args } => return call(func, args, e.span, scope),
+        ExprKind::Call(c) => return call(&c.func, &c.args, e.span, scope),
     };
     if q.value.is_finite() {
         Ok(Val::Q(q))
@@ -401,7 +401,8 @@ pub fn formula_source(name: &str) -> Option<&'static str> {
 /// Published sources of the formulas an expression calls.
 pub fn sources(e: &Expr, out: &mut Vec<&'static str>) {
     e.visit(&mut |x| {
-        if let ExprKind::Call { func, .. } = &x.kind {
+        if let ExprKind::Call(c) = &x.kind {
+            let func = &c.func;
             if let Some(s) = formula_source(&func.name) {
                 if !out.contains(&s) {
                     out.push(s);

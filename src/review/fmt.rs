@@ -115,8 +115,8 @@ impl Ctx<'_> {
     fn coord(&self, c: &Coord) -> (String, usize) {
         match c {
             Coord::Axial(e) => (self.slice(e.span), e.span.end),
-            Coord::Plane(x, y, sp) => (
-                format!("({}, {})", self.slice(x.span), self.slice(y.span)),
+            Coord::Plane(xy, sp) => (
+                format!("({}, {})", self.slice(xy[0].span), self.slice(xy[1].span)),
                 sp.end,
             ),
         }

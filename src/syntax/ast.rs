@@ -86,7 +86,8 @@ pub struct Str {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Coord {
     Axial(Expr),
-    Plane(Expr, Expr, Span),
+    /// `(x, y)`, boxed so that axial positions stay small.
+    Plane(Box<[Expr; 2]>, Span),
 }
 
 impl Coord {
@@ -94,7 +95,7 @@ impl Coord {
     pub fn span(&self) -> Span {
         match self {
             Coord::Axial(e) => e.span,
-            Coord::Plane(_, _, s) => *s,
+            Coord::Plane(_, s) => *s,
         }
     }
 }
@@ -250,8 +251,9 @@ pub enum ExprKind {
     Unit(UnitExpr),
     /// A name: a `let`, a constant, or (in some keys) a material or node.
     Name(Ident),
-    /// `PART.force`, `NODE.displacement`.
-    Field(Ident, Ident),
+    /// `PART.force`, `NODE.displacement`: the name and the field (boxed, as
+    /// are calls, so that the common expressions stay small).
+    Field(Box<[Ident; 2]>),
     /// Unary minus.
     Neg(Box<Expr>),
     /// `first (op operand)*` with `+`/`-`.
@@ -261,7 +263,14 @@ pub enum ExprKind {
     /// `base ^ exponent` (right-associative chains are nested).
     Power(Box<Expr>, Box<Expr>),
     /// `f(args)`.
-    Call { func: Ident, args: Vec<Arg> },
+    Call(Box<Call>),
+}
+
+/// `f(args)`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Call {
+    pub func: Ident,
+    pub args: Vec<Arg>,
 }
 
 /// `+` or `-`.
@@ -330,8 +339,8 @@ impl Expr {
                 a.visit(f);
                 b.visit(f);
             }
-            ExprKind::Call { args, .. } => {
-                for a in args {
+            ExprKind::Call(c) => {
+                for a in &c.args {
                     a.value.visit(f);
                 }
             }

@@ -15,9 +15,9 @@
 //! A failed alternative restores the position, as a PEG does.
 
 use super::ast::{
-    AddOp, Arg, Axis, Block, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry, Expr,
-    ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr, UnitFactor,
-    Units, Value,
+    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
+    Expr, ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
+    UnitFactor, Units, Value,
 };
 use super::lower::{factor_expr, word_expr};
 use crate::source::Span;
@@ -656,7 +656,10 @@ impl P<'_> {
                 if self.eat(b',') {
                     if let Some(y) = self.expr() {
                         if self.eat(b')') {
-                            return Some(Coord::Plane(x, y, self.span(start, self.pos)));
+                            return Some(Coord::Plane(
+                                Box::new([x, y]),
+                                self.span(start, self.pos),
+                            ));
                         }
                     }
                 }
@@ -918,7 +921,7 @@ impl P<'_> {
                         span: id_span,
                     };
                     return Some(Expr {
-                        kind: ExprKind::Call { func, args },
+                        kind: ExprKind::Call(Box::new(Call { func, args })),
                         span: self.span(a, end),
                     });
                 }
@@ -933,7 +936,7 @@ impl P<'_> {
                         span: id_span,
                     };
                     return Some(Expr {
-                        kind: ExprKind::Field(id, f),
+                        kind: ExprKind::Field(Box::new([id, f])),
                         span,
                     });
                 }

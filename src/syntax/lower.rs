@@ -4,8 +4,8 @@ use pest::iterators::Pair;
 use pest::Parser;
 
 use super::ast::{
-    AddOp, Arg, Axis, Block, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry, Expr,
-    ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
+    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
+    Expr, ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
     UnitFactor, Units, Value,
 };
 use super::parser::{CalcParser, Rule};
@@ -741,7 +741,7 @@ fn coord(p: Pair<'_, Rule>) -> Result<Coord> {
         let mut it = parts(p);
         let x = expr(need(it.next(), sp)?)?;
         let y = expr(need(it.next(), sp)?)?;
-        Ok(Coord::Plane(x, y, sp))
+        Ok(Coord::Plane(Box::new([x, y]), sp))
     } else {
         Ok(Coord::Axial(expr(p)?))
     }
@@ -973,7 +973,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                     let f = ident(&need(parts(q).next(), sp)?);
                     let span = id.span.to(f.span);
                     Ok(Expr {
-                        kind: ExprKind::Field(id, f),
+                        kind: ExprKind::Field(Box::new([id, f])),
                         span,
                     })
                 }
@@ -1000,7 +1000,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                     }
                     let span = Span::new(id.span.start, end);
                     Ok(Expr {
-                        kind: ExprKind::Call { func: id, args },
+                        kind: ExprKind::Call(Box::new(Call { func: id, args })),
                         span,
                     })
                 }
