@@ -637,15 +637,19 @@ impl Builder {
                     span: id.span,
                 });
             }
-            if let Some((_, _, first)) = names.map.get(id.name.as_str()) {
-                self.errors.push(ModelError::Duplicate {
-                    name: id.name.to_string(),
-                    span: id.span,
-                    first: *first,
-                });
-                continue;
+            match names.map.entry(id.name.as_str()) {
+                std::collections::hash_map::Entry::Occupied(o) => {
+                    self.errors.push(ModelError::Duplicate {
+                        name: id.name.to_string(),
+                        span: id.span,
+                        first: o.get().2,
+                    });
+                    continue;
+                }
+                std::collections::hash_map::Entry::Vacant(v) => {
+                    v.insert((kind, index, id.span));
+                }
             }
-            names.map.insert(&id.name, (kind, index, id.span));
             names.by_kind.entry(kind as u8).or_default().push(&id.name);
         }
         names

@@ -219,9 +219,9 @@ pub fn units() -> &'static [Unit] {
 /// The unit of this name, if it is one.
 #[must_use]
 pub fn lookup(name: &str) -> Option<&'static Unit> {
-    static INDEX: OnceLock<std::collections::HashMap<&'static str, usize>> = OnceLock::new();
+    static INDEX: OnceLock<foldhash::HashMap<&'static str, usize>> = OnceLock::new();
     let index = INDEX.get_or_init(|| {
-        let mut m = std::collections::HashMap::new();
+        let mut m = foldhash::HashMap::default();
         for (i, u) in units().iter().enumerate() {
             // the first of a name wins, as in table order
             m.entry(u.name).or_insert(i);
