@@ -153,7 +153,7 @@ fn main() {
                 peak_rss_mib()
             );
             // As `tandem::check` does, the syntax tree goes once the model is built.
-            drop(file);
+            tandem::release(file);
             let sol = match tandem::solve::solve(&model) {
                 Ok(s) => s,
                 Err(e) => {
