@@ -90,7 +90,7 @@ fn grid(parts: usize) -> String {
 type Generator = fn(usize) -> String;
 
 // The command-line tool's allocator, so that the figures are its figures.
-#[cfg(not(target_env = "msvc"))]
+#[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
 static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 

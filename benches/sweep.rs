@@ -7,7 +7,7 @@ use tandem::review::sweep::Sweeper;
 use tandem::source::Source;
 
 // The command-line tool's allocator, so that the figures are its figures.
-#[cfg(not(target_env = "msvc"))]
+#[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
 static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
