@@ -21,7 +21,7 @@ impl Source {
     /// The text of a span.
     #[must_use]
     pub fn slice(&self, span: Span) -> &str {
-        self.text.get(span.start..span.end).unwrap_or("")
+        self.text.get(span.start()..span.end()).unwrap_or("")
     }
 
     /// The source in the form miette renders.
@@ -42,28 +42,53 @@ impl Source {
     }
 }
 
-/// A byte range in a source file.
+/// A byte range in a source file, kept in 32 bits a side (files are at most
+/// `MAX_FILE_BYTES`), so that the syntax tree of a large calc stays small.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default, PartialOrd, Ord)]
 pub struct Span {
-    pub start: usize,
-    pub end: usize,
+    start: u32,
+    end: u32,
 }
 
 impl Span {
     #[must_use]
-    pub const fn new(start: usize, end: usize) -> Self {
-        Self { start, end }
+    pub fn new(start: usize, end: usize) -> Self {
+        Self {
+            start: narrow(start),
+            end: narrow(end),
+        }
+    }
+
+    /// The first byte.
+    #[must_use]
+    pub fn start(self) -> usize {
+        self.start as usize
+    }
+
+    /// One past the last byte.
+    #[must_use]
+    pub fn end(self) -> usize {
+        self.end as usize
     }
 
     /// The smallest span covering both.
     #[must_use]
     pub fn to(self, other: Self) -> Self {
-        Self::new(self.start.min(other.start), self.end.max(other.end))
+        Self {
+            start: self.start.min(other.start),
+            end: self.end.max(other.end),
+        }
     }
+}
+
+/// An offset in 32 bits; offsets past 4 GiB (never reached: files are read
+/// up to 128 MiB) are held at the largest value rather than wrapped.
+fn narrow(x: usize) -> u32 {
+    u32::try_from(x).unwrap_or(u32::MAX)
 }
 
 impl From<Span> for SourceSpan {
     fn from(s: Span) -> Self {
-        SourceSpan::new(s.start.into(), s.end.saturating_sub(s.start))
+        SourceSpan::new(s.start().into(), s.end().saturating_sub(s.start()))
     }
 }

@@ -107,17 +107,17 @@ struct Ctx<'a> {
 
 impl Ctx<'_> {
     fn slice(&self, sp: Span) -> String {
-        fold(self.text.get(sp.start..sp.end).unwrap_or(""))
+        fold(self.text.get(sp.start()..sp.end()).unwrap_or(""))
     }
     fn line(&self, offset: usize) -> usize {
         line_of(&self.starts, offset)
     }
     fn coord(&self, c: &Coord) -> (String, usize) {
         match c {
-            Coord::Axial(e) => (self.slice(e.span), e.span.end),
+            Coord::Axial(e) => (self.slice(e.span), e.span.end()),
             Coord::Plane(xy, sp) => (
                 format!("({}, {})", self.slice(xy[0].span), self.slice(xy[1].span)),
-                sp.end,
+                sp.end(),
             ),
         }
     }
@@ -148,12 +148,12 @@ impl Ctx<'_> {
                     None => "temperature".into(),
                 },
                 format!("= {}", self.slice(change.span)),
-                change.span.end,
+                change.span.end(),
             ),
             Stmt::Strain { part, value, .. } => (
                 format!("strain {}", part.name),
                 format!("= {}", self.slice(value.span)),
-                value.span.end,
+                value.span.end(),
             ),
             Stmt::Settle {
                 node,
@@ -163,40 +163,40 @@ impl Ctx<'_> {
             } => (
                 format!("settle {}{}", node.name, axis(a)),
                 format!("= {}", self.slice(movement.span)),
-                movement.span.end,
+                movement.span.end(),
             ),
         };
-        self.single(left, right, s.span().start, end)
+        self.single(left, right, s.span().start(), end)
     }
 
     fn block(&self, header: &str, start: usize, block: &ast::Block) -> Item {
         let mut lines = vec![Line {
             left: format!("{header} {{"),
             anchor: start,
-            ends_on: self.line(block.span.start),
+            ends_on: self.line(block.span.start()),
             ..Line::default()
         }];
         for e in &block.entries {
             let (value, end) = match &e.value {
-                Value::Str(s) => (self.slice(s.span), s.span.end),
+                Value::Str(s) => (self.slice(s.span), s.span.end()),
                 Value::Exprs(list) => (
                     list.iter()
                         .map(|x| self.slice(x.span))
                         .collect::<Vec<_>>()
                         .join(", "),
-                    list.last().map_or(e.key.span.end, |x| x.span.end),
+                    list.last().map_or(e.key.span.end(), |x| x.span.end()),
                 ),
             };
             let mut l = self.single(
                 e.key.name.to_string(),
                 format!("= {value}"),
-                e.key.span.start,
+                e.key.span.start(),
                 end,
             );
             l.indent = 2;
             lines.push(l);
         }
-        self.closed(lines, block.span.end.saturating_sub(1))
+        self.closed(lines, block.span.end().saturating_sub(1))
     }
 
     /// A block item: its header and body lines, closed by `}` at `close`.
@@ -222,25 +222,29 @@ impl Ctx<'_> {
             body: 0..0,
         };
         match d {
-            Decl::Calc(b) => self.block("calc", b.span.start, b),
+            Decl::Calc(b) => self.block("calc", b.span.start(), b),
             Decl::Material(nb) => self.block(
                 &format!("material {}", nb.name.name),
-                nb.span.start,
+                nb.span.start(),
                 &nb.block,
             ),
-            Decl::Part(nb) => {
-                self.block(&format!("part {}", nb.name.name), nb.span.start, &nb.block)
-            }
-            Decl::Rigid(nb) => {
-                self.block(&format!("rigid {}", nb.name.name), nb.span.start, &nb.block)
-            }
+            Decl::Part(nb) => self.block(
+                &format!("part {}", nb.name.name),
+                nb.span.start(),
+                &nb.block,
+            ),
+            Decl::Rigid(nb) => self.block(
+                &format!("rigid {}", nb.name.name),
+                nb.span.start(),
+                &nb.block,
+            ),
             Decl::Let(l) => one(
                 "let",
                 self.single(
                     format!("let {}", l.name.name),
                     format!("= {}", self.slice(l.value.span)),
-                    l.span.start,
-                    l.value.span.end,
+                    l.span.start(),
+                    l.value.span.end(),
                 ),
             ),
             Decl::Node(n) => {
@@ -250,7 +254,7 @@ impl Ctx<'_> {
                     self.single(
                         format!("node {}", n.name.name),
                         format!("at {c}"),
-                        n.span.start,
+                        n.span.start(),
                         end,
                     ),
                 )
@@ -264,10 +268,10 @@ impl Ctx<'_> {
                         None => s.node.name.to_string(),
                     })
                     .collect();
-                let start = list.first().map_or(0, |s| s.span.start);
+                let start = list.first().map_or(0, |s| s.span.start());
                 let end = list
                     .last()
-                    .map_or(start, |s| s.axis.map_or(s.node.span.end, |a| a.1.end));
+                    .map_or(start, |s| s.axis.map_or(s.node.span.end(), |a| a.1.end()));
                 // the keyword sits just before the first support
                 let kw = self.text[..start].rfind("fix").unwrap_or(start);
                 one(
@@ -277,30 +281,30 @@ impl Ctx<'_> {
             }
             Decl::Tie(t) => {
                 let names: Vec<&str> = t.nodes.iter().map(|n| n.name.as_str()).collect();
-                let end = t.nodes.last().map_or(t.span.start, |n| n.span.end);
+                let end = t.nodes.last().map_or(t.span.start(), |n| n.span.end());
                 one(
                     "tie",
                     self.single(
                         format!("tie {}", names.join(", ")),
                         String::new(),
-                        t.span.start,
+                        t.span.start(),
                         end,
                     ),
                 )
             }
             Decl::Combine(c) => {
-                let end = c.terms.last().map_or(c.name.span.end, |t| t.span.end);
-                let after_name = &self.text[c.name.span.end..end];
+                let end = c.terms.last().map_or(c.name.span.end(), |t| t.span.end());
+                let after_name = &self.text[c.name.span.end()..end];
                 let eq = after_name
                     .find('=')
-                    .map_or(c.name.span.end, |i| c.name.span.end + i + 1);
+                    .map_or(c.name.span.end(), |i| c.name.span.end() + i + 1);
                 let terms = self.slice(Span::new(eq, end));
                 one(
                     "combine",
                     self.single(
                         format!("combine {}", c.name.name),
                         format!("= {terms}"),
-                        c.span.start,
+                        c.span.start(),
                         end,
                     ),
                 )
@@ -321,20 +325,20 @@ impl Ctx<'_> {
                             self.slice(c.lhs.span),
                             self.slice(c.rhs.span)
                         ),
-                        c.span.start,
-                        c.rhs.span.end,
+                        c.span.start(),
+                        c.rhs.span.end(),
                     ),
                 )
             }
             Decl::Units(u) => {
                 let (text, end) = match u {
-                    ast::Units::System(id) => (id.name.to_string(), id.span.end),
+                    ast::Units::System(id) => (id.name.to_string(), id.span.end()),
                     ast::Units::List(list) => (
                         list.iter()
                             .map(|x| self.slice(x.span))
                             .collect::<Vec<_>>()
                             .join(", "),
-                        list.last().map_or(0, |x| x.span.end),
+                        list.last().map_or(0, |x| x.span.end()),
                     ),
                 };
                 let start = self.text[..end].rfind("units").unwrap_or(0);
@@ -350,11 +354,11 @@ impl Ctx<'_> {
                     .iter()
                     .fold(String::new(), |acc, f| acc + " " + &f.name);
                 let header = format!("case {}{flags}", c.name.name);
-                let body_open = c.stmts.first().map_or(c.span.end, |s| s.span().start);
-                let open = self.text[c.name.span.end..body_open]
+                let body_open = c.stmts.first().map_or(c.span.end(), |s| s.span().start());
+                let open = self.text[c.name.span.end()..body_open]
                     .find('{')
-                    .map_or(c.name.span.end, |i| c.name.span.end + i);
-                let close = self.text[..c.span.end].rfind('}').unwrap_or(c.span.end);
+                    .map_or(c.name.span.end(), |i| c.name.span.end() + i);
+                let close = self.text[..c.span.end()].rfind('}').unwrap_or(c.span.end());
                 let has_comment_inside = self.text[open..close].contains('#');
                 if c.stmts.len() <= 1 && !has_comment_inside {
                     let inner = c.stmts.first().map(|s| {
@@ -365,11 +369,11 @@ impl Ctx<'_> {
                         Some(s) => format!("{{ {s} }}"),
                         None => "{ }".to_string(),
                     };
-                    return one("case", self.single(header, code, c.span.start, close + 1));
+                    return one("case", self.single(header, code, c.span.start(), close + 1));
                 }
                 let mut lines = vec![Line {
                     left: format!("{header} {{"),
-                    anchor: c.span.start,
+                    anchor: c.span.start(),
                     ends_on: self.line(open),
                     ..Line::default()
                 }];

@@ -167,13 +167,13 @@ impl P<'_> {
                     return None;
                 }
                 let value = self.expr()?;
-                let span = self.span(start, value.span.end - self.base);
+                let span = self.span(start, value.span.end() - self.base);
                 Decl::Let(Box::new(Let { name, value, span }))
             }
             kw @ ("material" | "part" | "rigid") => {
                 let name = self.ident()?;
                 let block = self.block()?;
-                let span = self.span(start, block.span.end - self.base);
+                let span = self.span(start, block.span.end() - self.base);
                 let nb = NamedBlock { name, block, span };
                 match kw {
                     "material" => Decl::Material(nb),
@@ -187,7 +187,7 @@ impl P<'_> {
                     return None;
                 }
                 let at = self.coord()?;
-                let span = self.span(start, at.span().end - self.base);
+                let span = self.span(start, at.span().end() - self.base);
                 Decl::Node(Box::new(Node { name, at, span }))
             }
             "fix" => {
@@ -227,7 +227,7 @@ impl P<'_> {
                 if nodes.len() < 2 {
                     return None;
                 }
-                let end = nodes[nodes.len() - 1].span.end - self.base;
+                let end = nodes[nodes.len() - 1].span.end() - self.base;
                 Decl::Tie(Tie {
                     nodes,
                     span: self.span(start, end),
@@ -278,7 +278,7 @@ impl P<'_> {
                     1
                 };
                 let rhs = self.expr()?;
-                let span = self.span(start, rhs.span.end - self.base);
+                let span = self.span(start, rhs.span.end() - self.base);
                 Decl::Check(Box::new(Check {
                     label,
                     lhs,
@@ -334,8 +334,8 @@ impl P<'_> {
     fn support(&mut self) -> Option<Support> {
         let node = self.ident()?;
         let axis = self.axis();
-        let end = axis.map_or(node.span.end, |a| a.1.end);
-        let span = Span::new(node.span.start, end);
+        let end = axis.map_or(node.span.end(), |a| a.1.end());
+        let span = Span::new(node.span.start(), end);
         Some(Support { node, axis, span })
     }
 
@@ -410,10 +410,10 @@ impl P<'_> {
             Value::Exprs(list)
         };
         let end = match &value {
-            Value::Str(s) => s.span.end,
-            Value::Exprs(list) => list[list.len() - 1].span.end,
+            Value::Str(s) => s.span.end(),
+            Value::Exprs(list) => list[list.len() - 1].span.end(),
         };
-        let span = Span::new(key.span.start, end);
+        let span = Span::new(key.span.start(), end);
         Some(Entry { key, value, span })
     }
 
@@ -460,7 +460,7 @@ impl P<'_> {
                     return None;
                 }
                 let force = self.coord()?;
-                let span = self.span(start, force.span().end - self.base);
+                let span = self.span(start, force.span().end() - self.base);
                 Stmt::Load { node, force, span }
             }
             "temperature" => {
@@ -473,7 +473,7 @@ impl P<'_> {
                     return None;
                 }
                 let change = self.expr()?;
-                let span = self.span(start, change.span.end - self.base);
+                let span = self.span(start, change.span.end() - self.base);
                 Stmt::Temperature { part, change, span }
             }
             "strain" => {
@@ -482,7 +482,7 @@ impl P<'_> {
                     return None;
                 }
                 let value = self.expr()?;
-                let span = self.span(start, value.span.end - self.base);
+                let span = self.span(start, value.span.end() - self.base);
                 Stmt::Strain { part, value, span }
             }
             "settle" => {
@@ -492,7 +492,7 @@ impl P<'_> {
                     return None;
                 }
                 let movement = self.expr()?;
-                let span = self.span(start, movement.span.end - self.base);
+                let span = self.span(start, movement.span.end() - self.base);
                 Stmt::Settle {
                     node,
                     axis,
@@ -528,7 +528,7 @@ impl P<'_> {
                 }
             }
         }
-        let end = terms[terms.len() - 1].span.end - self.base;
+        let end = terms[terms.len() - 1].span.end() - self.base;
         Some(Decl::Combine(Combine {
             name,
             terms,
@@ -582,7 +582,7 @@ impl P<'_> {
         if negative {
             factor = -factor;
         }
-        let span = self.span(start, case.span.end - self.base);
+        let span = self.span(start, case.span.end() - self.base);
         Some(ComboTerm { factor, case, span })
     }
 
@@ -735,7 +735,7 @@ impl P<'_> {
         }
         let e = if power { self.power()? } else { self.atom()? };
         if negs % 2 == 1 {
-            let span = Span::new(self.base + start, e.span.end);
+            let span = Span::new(self.base + start, e.span.end());
             Some(Expr {
                 kind: ExprKind::Neg(Box::new(e)),
                 span,
@@ -829,19 +829,19 @@ impl P<'_> {
                     span: unit_span,
                 }),
             },
-            span: Span::new(num_span.start, unit_span.end),
+            span: Span::new(num_span.start(), unit_span.end()),
         };
         if rest.is_empty() {
             return Some(q);
         }
         let mut ops = Vec::with_capacity(rest.len());
-        let mut end = q.span.end;
+        let mut end = q.span.end();
         for f in rest {
-            end = f.span.end;
+            end = f.span.end();
             let op = if f.divide { MulOp::Div } else { MulOp::Mul };
             ops.push((op, factor_expr(f)));
         }
-        let span = Span::new(q.span.start, end);
+        let span = Span::new(q.span.start(), end);
         Some(Expr {
             kind: ExprKind::Product(Box::new(q), ops),
             span,
@@ -983,7 +983,7 @@ impl P<'_> {
             self.reset(m);
         }
         let value = self.expr()?;
-        let span = Span::new(self.base + start, value.span.end);
+        let span = Span::new(self.base + start, value.span.end());
         Some(Arg { name, value, span })
     }
 }

@@ -898,7 +898,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             }
             let mut e = atom.ok_or_else(|| internal(sp))?;
             if negs % 2 == 1 {
-                let span = Span::new(sp.start, e.span.end);
+                let span = Span::new(sp.start(), e.span.end());
                 e = Expr {
                     kind: ExprKind::Neg(Box::new(e)),
                     span,
@@ -946,19 +946,19 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                         span: unit_span,
                     }),
                 },
-                span: Span::new(sp.start, unit_span.end),
+                span: Span::new(sp.start(), unit_span.end()),
             };
             if rest.is_empty() {
                 return Ok(q);
             }
             let mut ops = Vec::with_capacity(rest.len());
-            let mut end = q.span.end;
+            let mut end = q.span.end();
             for f in rest {
-                end = f.span.end;
+                end = f.span.end();
                 let op = if f.divide { MulOp::Div } else { MulOp::Mul };
                 ops.push((op, factor_expr(f)));
             }
-            let span = Span::new(q.span.start, end);
+            let span = Span::new(q.span.start(), end);
             Ok(Expr {
                 kind: ExprKind::Product(Box::new(q), ops),
                 span,
@@ -978,7 +978,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                     })
                 }
                 Some(q) => {
-                    let end = span(&q).end;
+                    let end = span(&q).end();
                     let mut args = Vec::new();
                     for a in parts(q) {
                         let asp = span(&a);
@@ -998,7 +998,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                         };
                         args.push(arg);
                     }
-                    let span = Span::new(id.span.start, end);
+                    let span = Span::new(id.span.start(), end);
                     Ok(Expr {
                         kind: ExprKind::Call(Box::new(Call { func: id, args })),
                         span,
