@@ -22,8 +22,11 @@ pub enum Error {
     Solve(#[from] crate::solve::SolveError),
 }
 
+/// At most this many diagnostics are drawn; the count of the rest follows.
+pub const MAX_SHOWN: usize = 50;
+
 /// Render diagnostics against their source, without colour unless asked,
-/// wrapped at `width` columns.
+/// wrapped at `width` columns: the first [`MAX_SHOWN`], then how many more.
 #[must_use]
 pub fn render(errors: &[Error], source: &Source, width: usize, color: bool) -> String {
     let theme = if color {
@@ -33,13 +36,23 @@ pub fn render(errors: &[Error], source: &Source, width: usize, color: bool) -> S
     };
     let handler = GraphicalReportHandler::new_themed(theme).with_width(width);
     let mut out = String::new();
-    for e in errors {
-        let report = miette::Report::new(e.clone()).with_source_code(source.named());
+    // One shared copy of the text for every report, not one each.
+    let text: std::sync::Arc<str> = std::sync::Arc::from(source.text.as_str());
+    for e in errors.iter().take(MAX_SHOWN) {
+        let named = miette::NamedSource::new(&source.name, text.clone());
+        let report = miette::Report::new(e.clone()).with_source_code(named);
         let mut one = String::new();
         if handler.render_report(&mut one, report.as_ref()).is_err() {
             one = format!("{e}\n");
         }
         out.push_str(&one);
+    }
+    if errors.len() > MAX_SHOWN {
+        let more = errors.len() - MAX_SHOWN;
+        out.push_str(&format!(
+            "\n… and {more} more error{} not shown; fix these first, the rest often follow from them\n",
+            if more == 1 { "" } else { "s" }
+        ));
     }
     out
 }

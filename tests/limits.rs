@@ -93,3 +93,45 @@ fn long_chains_of_lets_do_not_recurse() {
     let q = common::value(&text, "v19999");
     assert!((q.value - 20_000.0 * 0.0254).abs() < 1e-6);
 }
+
+/// Thousands of wrong names: every one is an error, the first ones get a
+/// suggestion (each scans every name), and only the first
+/// `MAX_SHOWN` are drawn, with the count of the rest, so that a generated
+/// file gone wrong is reported at once rather than after minutes.
+#[test]
+fn thousands_of_errors_are_counted_but_drawn_and_suggested_for_the_first() {
+    use std::fmt::Write as _;
+    let n = 3000;
+    let mut text = String::from("material s { E = 29000 ksi }\nnode node0 at 0 in\nfix node0\n");
+    for i in 1..=n {
+        let _ = writeln!(text, "node node{i} at {i} in");
+    }
+    for i in 1..=n {
+        let _ = writeln!(
+            text,
+            "part p{i} {{ material = s; area = 1 in^2; ends = nodx{}, node{i} }}",
+            i - 1
+        );
+    }
+    let src = Source::new("many.tandem", text);
+    let errors = tandem::check(&src).expect_err("unknown nodes");
+    assert_eq!(errors.len(), n);
+    let help = |e: &tandem::Error| {
+        miette::Diagnostic::help(e)
+            .map(|h| h.to_string())
+            .unwrap_or_default()
+    };
+    assert!(
+        help(&errors[0]).contains("did you mean"),
+        "{}",
+        help(&errors[0])
+    );
+    assert!(!help(&errors[n - 1]).contains("did you mean"));
+    let shown = tandem::diagnostic::render(&errors, &src, 80, false);
+    let drawn = shown.matches("× unknown node").count();
+    assert_eq!(drawn, tandem::diagnostic::MAX_SHOWN, "{drawn} drawn");
+    assert!(shown.contains(&format!(
+        "and {} more errors not shown",
+        n - tandem::diagnostic::MAX_SHOWN
+    )));
+}

@@ -73,6 +73,10 @@ struct Names<'a> {
     map: HashMap<&'a str, (NameKind, usize, Span)>,
     /// Per kind, the names in file order (for suggestions).
     by_kind: BTreeMap<u8, Vec<&'a str>>,
+    /// Suggestions left to make: each scans every name of a kind, so a file
+    /// with thousands of wrong names gets suggestions for the first ones
+    /// only (the rest are not shown anyway).
+    suggestions: std::sync::atomic::AtomicUsize,
 }
 
 impl<'a> Names<'a> {
@@ -88,6 +92,27 @@ impl<'a> Names<'a> {
             .copied()
     }
 
+    /// The closest name of `kind`, while the budget of suggestions lasts.
+    fn suggest(&self, name: &str, kind: NameKind) -> Option<String> {
+        self.suggest_among(name, self.of_kind(kind))
+    }
+
+    /// The closest of `candidates`, while the budget of suggestions lasts.
+    fn suggest_among<'c>(
+        &self,
+        name: &str,
+        candidates: impl IntoIterator<Item = &'c str>,
+    ) -> Option<String> {
+        use std::sync::atomic::Ordering;
+        let left = self
+            .suggestions
+            .fetch_update(Ordering::Relaxed, Ordering::Relaxed, |n| n.checked_sub(1));
+        if left.is_err() {
+            return None;
+        }
+        did_you_mean(name, candidates)
+    }
+
     /// Resolve a name that must be of `kind`, with a suggestion when not.
     fn resolve(&self, id: &Ident, kind: NameKind) -> Result<usize, ModelError> {
         match self.get(&id.name) {
@@ -97,13 +122,13 @@ impl<'a> Names<'a> {
                 found: k.word(),
                 expected: kind.word(),
                 span: id.span,
-                help: did_you_mean(&id.name, self.of_kind(kind)),
+                help: self.suggest(&id.name, kind),
             }),
             None => Err(ModelError::UnknownName {
                 kind: kind.word(),
                 name: id.name.to_string(),
                 span: id.span,
-                help: did_you_mean(&id.name, self.of_kind(kind)).or_else(|| {
+                help: self.suggest(&id.name, kind).or_else(|| {
                     let all: Vec<_> = self.of_kind(kind).take(6).collect();
                     if all.is_empty() {
                         Some(format!("the file declares no {}", kind.word()))
@@ -157,13 +182,15 @@ impl Scope for LetScope<'_, '_> {
                 kind: "name",
                 name: id.name.to_string(),
                 span: id.span,
-                help: did_you_mean(
-                    &id.name,
-                    self.names
-                        .of_kind(NameKind::Let)
-                        .chain(CONSTANTS.iter().copied()),
-                )
-                .or_else(|| Some(format!("declare it with `let {} = ...`", id.name))),
+                help: self
+                    .names
+                    .suggest_among(
+                        &id.name,
+                        self.names
+                            .of_kind(NameKind::Let)
+                            .chain(CONSTANTS.iter().copied()),
+                    )
+                    .or_else(|| Some(format!("declare it with `let {} = ...`", id.name))),
             }),
         }
     }
@@ -229,7 +256,7 @@ impl Scope for CheckScope<'_, '_> {
                     kind: "part or node",
                     name: object.name.to_string(),
                     span: object.span,
-                    help: did_you_mean(
+                    help: self.lets.names.suggest_among(
                         &object.name,
                         self.lets
                             .names
@@ -597,6 +624,7 @@ impl Builder {
         let mut names = Names {
             map: HashMap::with_capacity(file.decls.len()),
             by_kind: BTreeMap::new(),
+            suggestions: std::sync::atomic::AtomicUsize::new(crate::diagnostic::MAX_SHOWN),
         };
         let mut counters = [0usize; 7];
         for d in &file.decls {

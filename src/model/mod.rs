@@ -367,7 +367,12 @@ pub(crate) fn did_you_mean<'a>(
     candidates: impl IntoIterator<Item = &'a str>,
 ) -> Option<String> {
     let mut best: Option<(f64, &str)> = None;
+    let slack = (name.len() / 3).max(2);
     for c in candidates {
+        // Names much longer or shorter are neither typos nor close.
+        if c.len().abs_diff(name.len()) > slack {
+            continue;
+        }
         let score = strsim::jaro_winkler(name, c);
         // An edit or two is a typo only in a name long enough to carry it.
         let close = name.len() >= 3
