@@ -27,7 +27,7 @@ use source::Source;
 
 /// The largest calc file tandem reads: 128 MiB, room for a generated
 /// assembly of a million parts (about 86 MiB) with memory to spare (such a
-/// file takes about 1.6 GiB to check; see docs/performance.md).
+/// file takes about 1.3 GiB to check; see docs/performance.md).
 pub const MAX_FILE_BYTES: u64 = 128 * 1024 * 1024;
 
 /// Read a calc file, refusing files over [`MAX_FILE_BYTES`] and non-UTF-8 text.
