@@ -903,7 +903,7 @@ impl Builder {
                         Coord::Plane(xy, _) => (coord(&xy[0], &mut self), coord(&xy[1], &mut self)),
                     };
                     nodes.push(Node {
-                        name: n.name.name.to_string(),
+                        name: n.name.name.clone(),
                         x: x.unwrap_or_default(),
                         y: y.unwrap_or_default(),
                         fixed: [false; 2],
@@ -1696,15 +1696,15 @@ impl Builder {
             if !allowed {
                 self.errors.push(ModelError::ZeroLength {
                     part: pname.to_string(),
-                    a: a.name.clone(),
-                    b: b.name.clone(),
+                    a: a.name.to_string(),
+                    b: b.name.to_string(),
                     span: f.map.get("ends").map_or(nb.span, |e| e.span),
                 });
                 return None;
             }
         }
         let part = Part {
-            name: pname.to_string(),
+            name: pname.clone(),
             ends,
             law,
             length: Length::new::<meter>(length),
@@ -1856,7 +1856,7 @@ impl Builder {
                             if materials[m].alpha.is_none() && !reported.contains(&m) {
                                 reported.push(m);
                                 self.errors.push(ModelError::NoAlpha {
-                                    part: parts[i].name.clone(),
+                                    part: parts[i].name.to_string(),
                                     material: materials[m].name.clone(),
                                     span: *span,
                                     material_span: materials[m].span,

@@ -100,7 +100,7 @@ pub struct Material {
 /// A node and its supports.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Node {
-    pub name: String,
+    pub name: compact_str::CompactString,
     pub x: Length,
     /// Zero in axial models.
     pub y: Length,
@@ -146,7 +146,7 @@ pub enum Law {
 /// An axial part between two nodes.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Part {
-    pub name: String,
+    pub name: compact_str::CompactString,
     /// Elongation is measured from `ends[0]` to `ends[1]`.
     pub ends: [usize; 2],
     pub law: Law,

@@ -226,7 +226,7 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         }
         let smax = solution.combinations[cf].parts[i].stress.map(|s| s.value);
         rows.push(vec![
-            p.name.clone(),
+            p.name.to_string(),
             f.force(fmax),
             smax.map_or("—".into(), |s| f.stress(s)),
             format!("`{}`", solution.combinations[cf].name),
@@ -439,7 +439,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 (Kind::Plane, [false, true]) => "fixed in y (roller)",
                 _ => "free",
             };
-            vec![n.name.clone(), at, sup.to_string()]
+            vec![n.name.to_string(), at, sup.to_string()]
         })
         .collect();
     doc.table(&["Node", "Position", "Support"], &rows, &[1]);
@@ -507,7 +507,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 notes.push(format!("misfit {}", f.small(p.misfit.value)));
             }
             vec![
-                p.name.clone(),
+                p.name.to_string(),
                 ends,
                 mat,
                 area,
@@ -1263,7 +1263,7 @@ fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                     .enumerate()
                     .map(|(i, p)| {
                         vec![
-                            p.name.clone(),
+                            p.name.to_string(),
                             f.force(c.limit_forces[i]),
                             f.force(c.residual.get(i).copied().unwrap_or(0.0)),
                         ]
@@ -1330,7 +1330,7 @@ fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                 let s0 = short.parts[i].stress.map(|s| s.value);
                 let s1 = r.parts[i].stress.map(|s| s.value);
                 vec![
-                    p.name.clone(),
+                    p.name.to_string(),
                     f.force(short.parts[i].force.value),
                     f.force(r.parts[i].force.value),
                     s0.map_or("—".into(), |s| f.stress(s)),

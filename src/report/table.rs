@@ -105,7 +105,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         ]];
         for (p, pr) in model.parts.iter().zip(&r.parts) {
             rows.push(vec![
-                p.name.clone(),
+                p.name.to_string(),
                 number(d.force.value(pr.force.value), d.digits),
                 pr.stress
                     .map_or("—".into(), |s| number(d.stress.value(s.value), d.digits)),
@@ -138,7 +138,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
                 }
             };
             let mut row = vec![
-                n.name.clone(),
+                n.name.to_string(),
                 number(d.small.value(nr.displacement[0].value), d.digits),
             ];
             if model.kind == Kind::Plane {
@@ -226,7 +226,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
                         continue;
                     };
                     rows.push(vec![
-                        p.name.clone(),
+                        p.name.to_string(),
                         number(d.stress.value(s0.value), d.digits),
                         number(d.stress.value(s1.value), d.digits),
                         if s0.value == 0.0 {
