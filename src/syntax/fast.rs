@@ -19,7 +19,7 @@ use super::ast::{
     Expr, ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
     UnitFactor, Units, Value,
 };
-use super::lower::{factor_expr, word_expr};
+use super::lower::{quantity_with_unit, word_expr};
 use crate::source::Span;
 use crate::units::lookup;
 
@@ -191,39 +191,11 @@ impl P<'_> {
                 Decl::Node(Box::new(Node { name, at, span }))
             }
             "fix" => {
-                let mut supports = vec![self.support()?];
-                loop {
-                    let m = self.mark();
-                    if !self.eat(b',') {
-                        self.reset(m);
-                        break;
-                    }
-                    match self.support() {
-                        Some(s) => supports.push(s),
-                        None => {
-                            self.reset(m);
-                            break;
-                        }
-                    }
-                }
+                let supports = self.list(Self::support)?;
                 Decl::Fix(supports)
             }
             "tie" => {
-                let mut nodes = vec![self.ident()?];
-                loop {
-                    let m = self.mark();
-                    if !self.eat(b',') {
-                        self.reset(m);
-                        break;
-                    }
-                    match self.ident() {
-                        Some(n) => nodes.push(n),
-                        None => {
-                            self.reset(m);
-                            break;
-                        }
-                    }
-                }
+                let nodes = self.list(Self::ident)?;
                 if nodes.len() < 2 {
                     return None;
                 }
@@ -299,21 +271,7 @@ impl P<'_> {
                     }
                 }
                 self.reset(m);
-                let mut list = vec![self.unit_expr()?];
-                loop {
-                    let m = self.mark();
-                    if !self.eat(b',') {
-                        self.reset(m);
-                        break;
-                    }
-                    match self.unit_expr() {
-                        Some(u) => list.push(u),
-                        None => {
-                            self.reset(m);
-                            break;
-                        }
-                    }
-                }
+                let list = self.list(Self::unit_expr)?;
                 if list
                     .iter()
                     .flat_map(|u| &u.factors)
@@ -329,6 +287,27 @@ impl P<'_> {
             }
         };
         Some(d)
+    }
+
+    /// `item (, item)*`: at least one; a comma not followed by an item is
+    /// left for the caller, as the grammar's repetition backtracks.
+    fn list<T>(&mut self, mut item: impl FnMut(&mut Self) -> Option<T>) -> Option<Vec<T>> {
+        let mut items = vec![item(self)?];
+        loop {
+            let m = self.mark();
+            if !self.eat(b',') {
+                self.reset(m);
+                break;
+            }
+            match item(self) {
+                Some(x) => items.push(x),
+                None => {
+                    self.reset(m);
+                    break;
+                }
+            }
+        }
+        Some(items)
     }
 
     fn support(&mut self) -> Option<Support> {
@@ -391,21 +370,7 @@ impl P<'_> {
         let value = if self.peek() == Some(b'"') {
             Value::Str(self.string()?)
         } else {
-            let mut list = vec![self.expr()?];
-            loop {
-                let m = self.mark();
-                if !self.eat(b',') {
-                    self.reset(m);
-                    break;
-                }
-                match self.expr() {
-                    Some(e) => list.push(e),
-                    None => {
-                        self.reset(m);
-                        break;
-                    }
-                }
-            }
+            let mut list = self.list(Self::expr)?;
             list.shrink_to_fit();
             Value::Exprs(list)
         };
@@ -805,47 +770,17 @@ impl P<'_> {
                 span: num_span,
             });
         };
-        // As the lowering does: the unit is the leading run of unit names.
-        let lead = u
-            .factors
-            .iter()
-            .take_while(|f| lookup(&f.name).is_some())
-            .count();
-        if lead == 0 {
-            self.bad = true;
-            return Some(Expr {
-                kind: ExprKind::Quantity { value, unit: None },
-                span: num_span,
-            });
+        match quantity_with_unit(value, num_span.start(), u) {
+            Ok(e) => Some(e),
+            Err(_) => {
+                // not a unit: pest's lowering words the error
+                self.bad = true;
+                Some(Expr {
+                    kind: ExprKind::Quantity { value, unit: None },
+                    span: num_span,
+                })
+            }
         }
-        let mut factors = u.factors;
-        let rest: Vec<UnitFactor> = factors.split_off(lead);
-        let unit_span = factors[0].span.to(factors[factors.len() - 1].span);
-        let q = Expr {
-            kind: ExprKind::Quantity {
-                value,
-                unit: Some(UnitExpr {
-                    factors,
-                    span: unit_span,
-                }),
-            },
-            span: Span::new(num_span.start(), unit_span.end()),
-        };
-        if rest.is_empty() {
-            return Some(q);
-        }
-        let mut ops = Vec::with_capacity(rest.len());
-        let mut end = q.span.end();
-        for f in rest {
-            end = f.span.end();
-            let op = if f.divide { MulOp::Div } else { MulOp::Mul };
-            ops.push((op, factor_expr(f)));
-        }
-        let span = Span::new(q.span.start(), end);
-        Some(Expr {
-            kind: ExprKind::Product(Box::new(q), ops),
-            span,
-        })
     }
 
     /// `unit_power (unit_op unit_power)*`, names not yet looked up.

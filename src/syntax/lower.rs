@@ -924,45 +924,7 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                 });
             };
             let u = unit_expr(u)?;
-            // The unit is the leading run of unit names; what follows a
-            // word that is not a unit multiplies or divides the quantity.
-            let lead = u
-                .factors
-                .iter()
-                .take_while(|f| lookup(&f.name).is_some())
-                .count();
-            if lead == 0 {
-                let f = &u.factors[0];
-                return Err(not_a_unit(f));
-            }
-            let mut factors = u.factors;
-            let rest: Vec<UnitFactor> = factors.split_off(lead);
-            let unit_span = factors[0].span.to(factors[factors.len() - 1].span);
-            let q = Expr {
-                kind: ExprKind::Quantity {
-                    value,
-                    unit: Some(UnitExpr {
-                        factors,
-                        span: unit_span,
-                    }),
-                },
-                span: Span::new(sp.start(), unit_span.end()),
-            };
-            if rest.is_empty() {
-                return Ok(q);
-            }
-            let mut ops = Vec::with_capacity(rest.len());
-            let mut end = q.span.end();
-            for f in rest {
-                end = f.span.end();
-                let op = if f.divide { MulOp::Div } else { MulOp::Mul };
-                ops.push((op, factor_expr(f)));
-            }
-            let span = Span::new(q.span.start(), end);
-            Ok(Expr {
-                kind: ExprKind::Product(Box::new(q), ops),
-                span,
-            })
+            quantity_with_unit(value, sp.start(), u).map_err(|f| not_a_unit(&f))
         }
         Rule::word => {
             let mut it = parts(p);
@@ -1029,6 +991,52 @@ fn flat<O>(
     }
 }
 
+/// A number starting at `start` followed by the words `u` of a unit. The
+/// unit is the leading run of unit names; what follows a word that is not a
+/// unit multiplies or divides the quantity (`10 ft * b`). The first word
+/// when it is not a unit. Shared by both parsers.
+pub(super) fn quantity_with_unit(
+    value: f64,
+    start: usize,
+    u: UnitExpr,
+) -> std::result::Result<Expr, UnitFactor> {
+    let lead = u
+        .factors
+        .iter()
+        .take_while(|f| lookup(&f.name).is_some())
+        .count();
+    let mut factors = u.factors;
+    if lead == 0 {
+        return Err(factors.swap_remove(0));
+    }
+    let rest: Vec<UnitFactor> = factors.split_off(lead);
+    let unit_span = factors[0].span.to(factors[factors.len() - 1].span);
+    let q = Expr {
+        kind: ExprKind::Quantity {
+            value,
+            unit: Some(UnitExpr {
+                factors,
+                span: unit_span,
+            }),
+        },
+        span: Span::new(start, unit_span.end()),
+    };
+    if rest.is_empty() {
+        return Ok(q);
+    }
+    let mut ops = Vec::with_capacity(rest.len());
+    let mut end = q.span.end();
+    for f in rest {
+        end = f.span.end();
+        let op = if f.divide { MulOp::Div } else { MulOp::Mul };
+        ops.push((op, factor_expr(f)));
+    }
+    Ok(Expr {
+        kind: ExprKind::Product(Box::new(q), ops),
+        span: Span::new(start, end),
+    })
+}
+
 /// A word standing alone: a unit when the table has it, else a name.
 pub(super) fn word_expr(name: compact_str::CompactString, span: Span) -> Expr {
     let kind = if lookup(&name).is_some() {
@@ -1048,7 +1056,7 @@ pub(super) fn word_expr(name: compact_str::CompactString, span: Span) -> Expr {
 }
 
 /// A word standing after a unit: a unit factor, or a name to multiply by.
-pub(super) fn factor_expr(f: UnitFactor) -> Expr {
+fn factor_expr(f: UnitFactor) -> Expr {
     let span = f.span;
     let base = word_expr(f.name, span);
     if f.power == 1 {
