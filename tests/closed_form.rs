@@ -323,7 +323,7 @@ load bot = 5 kip
 ";
     let err = solve_err(text);
     assert!(
-        err.contains("once `rod` go slack") || err.contains("rod"),
+        err.contains("once `rod` goes slack") || err.contains("rod"),
         "{err}"
     );
 }

@@ -512,3 +512,18 @@ fn length_unit_follows_the_size_of_the_assembly() {
     assert!(table(&long).contains("| b | 4.000 m | free |"));
     assert!(table(&listed).contains("| b | 0.4000 m | free |"));
 }
+
+/// A part with a buckling length that is never in compression has no
+/// compression to compare with its Euler load; the table says so rather
+/// than printing a zero force.
+#[test]
+fn buckling_row_of_a_part_in_tension_says_none() {
+    let text = "material s { E = 200 GPa }\nnode a at 0 m\nnode b at 4 m\nfix a\n\
+                part hanger { material = s; section = ring(d = 89 mm, t = 5 mm); ends = a, b; buckling_length = 4 m }\n\
+                load b = 10 kN\n";
+    let src = tandem::source::Source::new("hanger.tandem", text.to_string());
+    let a = tandem::analyse(&src).expect("solves");
+    let d = tandem::report::Display::for_model(&a.model, 4);
+    let md = tandem::report::markdown::report(&src, &a, &d);
+    assert!(md.contains("| none (never in compression) |"), "{md}");
+}

@@ -1415,11 +1415,15 @@ fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                 b.r.map_or("—".into(), |r| f.small(r)),
                 b.slenderness().map_or("—".into(), |s| f.n(s)),
                 f.force(b.euler),
-                format!(
-                    "{} (`{}`)",
-                    f.force(b.compression),
-                    solution.combinations[b.combination].name
-                ),
+                if b.compression > 0.0 {
+                    format!(
+                        "{} (`{}`)",
+                        f.force(b.compression),
+                        solution.combinations[b.combination].name
+                    )
+                } else {
+                    "none (never in compression)".into()
+                },
                 f.n(b.compression / b.euler),
             ]
         })
@@ -1443,35 +1447,23 @@ fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             .iter()
             .map(|&i| model.parts[i].name.as_str())
             .collect();
-        let ei_text = if b.parts.len() == 1 {
-            let p = &model.parts[b.parts[0]];
-            let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
-            format!(
-                "{} · {}",
-                f.stress(e),
-                f.d.quantity(crate::units::Quantity::new(
-                    p.inertia().unwrap_or(0.0),
-                    Dimension::SECOND_MOMENT
-                ))
-            )
-        } else {
-            b.parts
-                .iter()
-                .map(|&i| {
-                    let p = &model.parts[i];
-                    let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
-                    format!(
-                        "{} · {}",
-                        f.stress(e),
-                        f.d.quantity(crate::units::Quantity::new(
-                            p.inertia().unwrap_or(0.0),
-                            Dimension::SECOND_MOMENT
-                        ))
-                    )
-                })
-                .collect::<Vec<_>>()
-                .join(" + ")
-        };
+        let ei_text = b
+            .parts
+            .iter()
+            .map(|&i| {
+                let p = &model.parts[i];
+                let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
+                format!(
+                    "{} · {}",
+                    f.stress(e),
+                    f.d.quantity(crate::units::Quantity::new(
+                        p.inertia().unwrap_or(0.0),
+                        Dimension::SECOND_MOMENT
+                    ))
+                )
+            })
+            .collect::<Vec<_>>()
+            .join(" + ");
         let kl = f.with(b.kl, &f.d.small);
         doc.eq(&format!(
             "P_e({}) = π² · Σ E·I / (K·L)² = π² · ({ei_text}) / ({kl} · {kl}) = {}",

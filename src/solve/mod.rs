@@ -233,7 +233,8 @@ fn mechanism(model: &Model, map: &DofMap, index: usize, slack: &[usize]) -> Solv
             .map(|&i| format!("`{}`", model.parts[i].name))
             .collect();
         let more = if slack.len() > 4 { ", ..." } else { "" };
-        format!(" once {}{more} go slack", names.join(", "))
+        let verb = if slack.len() == 1 { "goes" } else { "go" };
+        format!(" once {}{more} {verb} slack", names.join(", "))
     };
     SolveError::Mechanism {
         what,
