@@ -2,7 +2,9 @@
 //! parse + check and for solve, with the peak memory of the process.
 //!
 //! `cargo bench --bench scale` runs every size; `cargo bench --bench scale --
-//! 100000` stops at that many parts, and `-- 1000000 chain` runs one kind. Figures go in docs/performance.md.
+//! 100000` stops at that many parts, `-- 1000000 chain` runs one kind, and
+//! `-- 1000000 chain one` that kind at that size only. Figures go in
+//! docs/performance.md.
 
 use std::fmt::Write as _;
 use std::time::Instant;
@@ -125,19 +127,30 @@ fn main() {
         if !only.is_empty() && !only.iter().any(|o| name.contains(o.as_str())) {
             continue;
         }
-        let mut n = 100;
+        // `one` among the arguments runs the largest size only (for profiling).
+        let mut n = if std::env::args().any(|a| a == "one") {
+            limit
+        } else {
+            100
+        };
         while n <= limit {
             let text = make(n);
             let mib = text.len() as f64 / (1024.0 * 1024.0);
             let src = Source::new("bench.tandem", text);
             let t0 = Instant::now();
-            let Ok(file) = tandem::syntax::parse(&src.text) else {
+            // As `tandem::check` reads a file: in outline, each node and part
+            // parsed as it is built.
+            let Ok(file) = tandem::syntax::parse_outline(&src.text) else {
                 eprintln!("generated file does not parse");
                 return;
             };
             let tp = Instant::now();
             let rss_parsed = peak_rss_mib();
-            let model = match tandem::model::build(&file, tandem::model::Limits::default()) {
+            let model = match tandem::model::build_outline(
+                &file,
+                &src.text,
+                tandem::model::Limits::default(),
+            ) {
                 Ok(m) => m,
                 Err(e) => {
                     let e: Vec<tandem::Error> = e.into_iter().map(Into::into).collect();

@@ -57,7 +57,7 @@ impl Checks {
             let key = (o.label.as_str(), OriginKey::of(&o.origin));
             match slot.get(&key) {
                 Some(&k) => {
-                    if rank(o) > rank(&self.outcomes[order[k]]) {
+                    if outranks(o, &self.outcomes[order[k]]) {
                         order[k] = i;
                     }
                 }
@@ -104,6 +104,23 @@ impl OriginKey {
 
 fn rank(o: &Outcome) -> (bool, f64) {
     (!o.pass, o.utilization.unwrap_or(f64::INFINITY))
+}
+
+/// Whether `o` governs over `than`: it fails where `than` passes, or it has
+/// the higher utilization by more than round-off (so that combinations tied
+/// in exact arithmetic keep the first, whatever the order of the solve).
+fn outranks(o: &Outcome, than: &Outcome) -> bool {
+    let ((fa, ua), (fb, ub)) = (rank(o), rank(than));
+    if fa != fb {
+        return fa;
+    }
+    exceeds(ua, ub)
+}
+
+/// `a > b` by more than round-off: a relative 1e-9 of `b` (common practice).
+#[must_use]
+pub fn exceeds(a: f64, b: f64) -> bool {
+    a > b && a - b > 1e-9 * b.abs()
 }
 
 /// Looks up results of one combination while evaluating a check.

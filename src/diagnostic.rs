@@ -16,10 +16,21 @@ pub enum Error {
     Syntax(#[from] SyntaxError),
     #[error(transparent)]
     #[diagnostic(transparent)]
-    Model(#[from] ModelError),
+    Model(ModelError),
     #[error(transparent)]
     #[diagnostic(transparent)]
     Solve(#[from] crate::solve::SolveError),
+}
+
+impl From<ModelError> for Error {
+    /// A syntax error found while building (in a deferred statement) is a
+    /// syntax error like any other.
+    fn from(e: ModelError) -> Self {
+        match e {
+            ModelError::Syntax(s) => Error::Syntax(*s),
+            e => Error::Model(e),
+        }
+    }
 }
 
 /// At most this many diagnostics are drawn; the count of the rest follows.

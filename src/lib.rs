@@ -70,19 +70,36 @@ pub fn read_source_limited(path: &Path, max_bytes: u64) -> Result<Source, String
 
 /// Parse and check a calc file: the typed model, or every error found.
 ///
+/// The file is read in outline ([`syntax::parse_outline`]): each `node` and
+/// `part` is parsed as its turn comes to be built, so that a large file's
+/// whole syntax tree never exists at once. The model and the errors are
+/// those of [`syntax::parse`] followed by [`model::build`].
+///
 /// # Errors
 /// Syntax errors, or all model errors in the file.
 pub fn check(source: &Source) -> Result<Model, Vec<Error>> {
-    let file = syntax::parse(&source.text)
-        .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
-    let model = model::build(&file, model::Limits::default())
-        .map_err(|es| es.into_iter().map(Error::from).collect());
-    release(file);
-    model
+    let text = &source.text;
+    let limits = model::Limits::default();
+    let model = match syntax::parse_outline(text) {
+        Ok(file) => {
+            let m = model::build_outline(&file, text, limits);
+            release(file);
+            m
+        }
+        // A full parse finds the syntax errors in the deferred statements too.
+        Err(_) => {
+            let file = syntax::parse(text)
+                .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
+            let m = model::build(&file, limits);
+            release(file);
+            m
+        }
+    };
+    model.map_err(|es| es.into_iter().map(Error::from).collect())
 }
 
-/// Free a syntax tree; a large one on a thread of its own, beside the next
-/// stage (a million parts take a quarter of a second to free).
+/// Drop a syntax tree; a large one on a thread of its own, as freeing
+/// millions of small allocations takes a while.
 pub fn release(file: syntax::ast::File) {
     if file.decls.len() > 100_000 {
         std::thread::spawn(move || drop(file));

@@ -24,8 +24,10 @@ use super::{
     UnitChoice,
 };
 use crate::source::Span;
-use crate::syntax::ast::{self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, Value};
-use crate::units::{lookup, Dimension, Quantity};
+use crate::syntax::ast::{
+    self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, StubKind, Value,
+};
+use crate::units::{Dimension, Quantity};
 
 /// Size limits, so that hostile input gets a diagnostic, not exhaustion.
 #[derive(Clone, Copy, Debug)]
@@ -69,10 +71,17 @@ impl NameKind {
     }
 }
 
+/// The declared names of a file. The table holds only the position of each
+/// first declaration in the file's list, so that it stays small (a few
+/// bytes a name) and a lookup among millions of names touches little
+/// memory; the name itself is compared in the declaration, which for names
+/// looked up in file order is close to the last one.
 struct Names<'a> {
-    map: HashMap<&'a str, (NameKind, usize, Span)>,
-    /// Per kind, the names in file order (for suggestions).
-    by_kind: BTreeMap<u8, Vec<&'a str>>,
+    table: hashbrown::HashTable<u32>,
+    hasher: foldhash::fast::FixedState,
+    /// For each declaration, its number among the declarations of its kind.
+    number: Vec<u32>,
+    file: &'a ast::File,
     /// Suggestions left to make: each scans every name of a kind, so a file
     /// with thousands of wrong names gets suggestions for the first ones
     /// only (the rest are not shown anyway).
@@ -80,16 +89,38 @@ struct Names<'a> {
 }
 
 impl<'a> Names<'a> {
-    fn get(&self, name: &str) -> Option<(NameKind, usize, Span)> {
-        self.map.get(name).copied()
+    /// The name declared by declaration `i`.
+    fn declared(&self, i: u32) -> Option<(&'a Ident, NameKind)> {
+        declared_name(&self.file.decls[i as usize])
     }
 
-    fn of_kind(&self, kind: NameKind) -> impl Iterator<Item = &'a str> + '_ {
-        self.by_kind
-            .get(&(kind as u8))
-            .into_iter()
-            .flatten()
+    fn position(&self, name: &str) -> Option<u32> {
+        let hash = std::hash::BuildHasher::hash_one(&self.hasher, name);
+        self.table
+            .find(hash, |&i| {
+                self.declared(i).is_some_and(|(id, _)| id.name == name)
+            })
             .copied()
+    }
+
+    fn get(&self, name: &str) -> Option<(NameKind, usize, Span)> {
+        let i = self.position(name)?;
+        let (id, kind) = self.declared(i)?;
+        Some((kind, self.number[i as usize] as usize, id.span))
+    }
+
+    /// The registered names of `kind`, in file order (a duplicate is left
+    /// out: only its first declaration is registered).
+    fn of_kind(&self, kind: NameKind) -> impl Iterator<Item = &'a str> + '_ {
+        self.file
+            .decls
+            .iter()
+            .enumerate()
+            .filter_map(move |(i, d)| {
+                let (id, k) = declared_name(d)?;
+                let first = self.position(&id.name) == u32::try_from(i).ok();
+                (k == kind && first).then_some(id.name.as_str())
+            })
     }
 
     /// The closest name of `kind`, while the budget of suggestions lasts.
@@ -297,7 +328,99 @@ impl Scope for CheckScope<'_, '_> {
 /// # Errors
 /// Every problem found, in file order.
 pub fn build(file: &ast::File, limits: Limits) -> Result<Model, Vec<ModelError>> {
-    Builder::new(limits).run(file)
+    Builder::new(limits, "").run(file).map_err(syntax_first)
+}
+
+/// Build the model of a file read by [`crate::syntax::parse_outline`]
+/// from `text`: each deferred `node` and `part` is parsed when it is built
+/// and its syntax tree dropped at once. The result is [`build`]'s on the
+/// fully parsed file; when a deferred statement has a syntax error, the
+/// syntax errors alone are returned (as [`crate::syntax::parse`] would).
+///
+/// # Errors
+/// Every problem found, in file order.
+pub fn build_outline(
+    file: &ast::File,
+    text: &str,
+    limits: Limits,
+) -> Result<Model, Vec<ModelError>> {
+    Builder::new(limits, text).run(file).map_err(syntax_first)
+}
+
+/// When a deferred statement had a syntax error, only the syntax errors (in
+/// file order, at most as many as a parse reports): the rest of the model
+/// was built from an incomplete file.
+fn syntax_first(errors: Vec<ModelError>) -> Vec<ModelError> {
+    if !errors.iter().any(|e| matches!(e, ModelError::Syntax(_))) {
+        return errors;
+    }
+    let mut syntax: Vec<ModelError> = errors
+        .into_iter()
+        .filter(|e| matches!(e, ModelError::Syntax(_)))
+        .collect();
+    syntax.sort_by_key(|e| match e {
+        ModelError::Syntax(s) => s.span().start(),
+        _ => 0,
+    });
+    syntax.truncate(crate::syntax::MAX_SYNTAX_ERRORS);
+    syntax
+}
+
+/// The name a declaration declares, and what it stands for.
+fn declared_name(d: &Decl) -> Option<(&Ident, NameKind)> {
+    Some(match d {
+        Decl::Let(l) => (&l.name, NameKind::Let),
+        Decl::Material(nb) => (&nb.name, NameKind::Material),
+        Decl::Part(nb) => (&nb.name, NameKind::Part),
+        Decl::Rigid(nb) => (&nb.name, NameKind::Rigid),
+        Decl::Node(n) => (&n.name, NameKind::Node),
+        Decl::Deferred(s) => (
+            &s.name,
+            match s.kind {
+                StubKind::Node => NameKind::Node,
+                StubKind::Part => NameKind::Part,
+            },
+        ),
+        Decl::Case(c) => (&c.name, NameKind::Case),
+        Decl::Combine(c) => (&c.name, NameKind::Combination),
+        _ => return None,
+    })
+}
+
+/// What a name already means (a unit, a function or a constant), if it
+/// cannot be declared: one lookup in a table of every such word.
+fn reserved(name: &str) -> Option<&'static str> {
+    static WORDS: std::sync::OnceLock<HashMap<&'static str, &'static str>> =
+        std::sync::OnceLock::new();
+    let words = WORDS.get_or_init(|| {
+        let mut m = HashMap::new();
+        // units first: a word that is both is reported as a unit
+        for u in crate::units::units() {
+            m.entry(u.name).or_insert("a unit");
+        }
+        for f in FUNCTIONS {
+            m.entry(*f).or_insert("a function");
+        }
+        for c in CONSTANTS {
+            m.entry(*c).or_insert("a constant");
+        }
+        m
+    });
+    words.get(name).copied()
+}
+
+/// A node to build: parsed, or deferred (parsed when it is built).
+#[derive(Clone, Copy)]
+enum NodeSrc<'a> {
+    Parsed(&'a ast::Node),
+    Deferred(&'a ast::Stub),
+}
+
+/// A part to build: parsed, or deferred (parsed when it is built).
+#[derive(Clone, Copy)]
+enum PartSrc<'a> {
+    Parsed(&'a ast::NamedBlock),
+    Deferred(&'a ast::Stub),
 }
 
 /// Build with some `let`s given fixed values instead of their expressions
@@ -311,14 +434,18 @@ pub fn build_with(
     limits: Limits,
     overrides: &[(String, Quantity)],
 ) -> Result<Model, Vec<ModelError>> {
-    let mut b = Builder::new(limits);
+    let mut b = Builder::new(limits, "");
     b.overrides = overrides.to_vec();
     b.run(file)
 }
 
-struct Builder {
+struct Builder<'t> {
     errors: Vec<ModelError>,
     limits: Limits,
+    /// The text deferred statements are parsed from (empty when none).
+    text: &'t str,
+    /// How often each unit name is written in the deferred statements.
+    units_used: BTreeMap<String, usize>,
     overrides: Vec<(String, Quantity)>,
     /// Published sources behind each `let`, by name.
     let_sources: HashMap<String, Vec<&'static str>>,
@@ -598,15 +725,18 @@ fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
             out.push(&c.lhs);
             out.push(&c.rhs);
         }
-        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) => {}
+        // counted when they are built (see `Builder::expand`)
+        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) | Decl::Deferred(_) => {}
     }
 }
 
-impl Builder {
-    fn new(limits: Limits) -> Self {
+impl<'t> Builder<'t> {
+    fn new(limits: Limits, text: &'t str) -> Self {
         Self {
             errors: Vec::new(),
             limits,
+            text,
+            units_used: BTreeMap::new(),
             overrides: Vec::new(),
             let_sources: HashMap::new(),
         }
@@ -622,23 +752,21 @@ impl Builder {
 
     fn register<'a>(&mut self, file: &'a ast::File) -> Names<'a> {
         let mut names = Names {
-            map: HashMap::with_capacity(file.decls.len()),
-            by_kind: BTreeMap::new(),
+            table: hashbrown::HashTable::with_capacity(file.decls.len()),
+            hasher: foldhash::fast::FixedState::default(),
+            number: vec![0; file.decls.len()],
+            file,
             suggestions: std::sync::atomic::AtomicUsize::new(crate::diagnostic::MAX_SHOWN),
         };
-        let mut counters = [0usize; 7];
-        for d in &file.decls {
-            let (id, kind) = match d {
-                Decl::Let(l) => (&l.name, NameKind::Let),
-                Decl::Material(nb) => (&nb.name, NameKind::Material),
-                Decl::Part(nb) => (&nb.name, NameKind::Part),
-                Decl::Rigid(nb) => (&nb.name, NameKind::Rigid),
-                Decl::Node(n) => (&n.name, NameKind::Node),
-                Decl::Case(c) => (&c.name, NameKind::Case),
-                Decl::Combine(c) => (&c.name, NameKind::Combination),
-                _ => continue,
+        let mut counters = [0u32; 7];
+        let name_at = |j: u32| declared_name(&file.decls[j as usize]).map(|(id, _)| &id.name);
+        for (i, d) in file.decls.iter().enumerate() {
+            let Some((id, kind)) = declared_name(d) else {
+                continue;
             };
-            let index = counters[kind as usize];
+            // at most `max_declarations` (checked before), far below 2^32
+            let i = u32::try_from(i).unwrap_or(u32::MAX);
+            names.number[i as usize] = counters[kind as usize];
             counters[kind as usize] += 1;
             if id.name.len() > self.limits.max_name_len {
                 self.errors.push(ModelError::TooMany {
@@ -649,36 +777,33 @@ impl Builder {
                     help: Some("use a shorter name; the title block and comments can carry a longer description".into()),
                 });
             }
-            let reserved = if lookup(&id.name).is_some() {
-                Some("a unit")
-            } else if FUNCTIONS.contains(&id.name.as_str()) {
-                Some("a function")
-            } else if CONSTANTS.contains(&id.name.as_str()) {
-                Some("a constant")
-            } else {
-                None
-            };
-            if let Some(what) = reserved {
+            if let Some(what) = reserved(&id.name) {
                 self.errors.push(ModelError::Reserved {
                     name: id.name.to_string(),
                     what,
                     span: id.span,
                 });
             }
-            match names.map.entry(id.name.as_str()) {
-                std::collections::hash_map::Entry::Occupied(o) => {
+            let hasher = &names.hasher;
+            let hash = std::hash::BuildHasher::hash_one(hasher, id.name.as_str());
+            match names.table.entry(
+                hash,
+                |&j| name_at(j) == Some(&id.name),
+                |&j| name_at(j).map_or(0, |n| std::hash::BuildHasher::hash_one(hasher, n.as_str())),
+            ) {
+                hashbrown::hash_table::Entry::Occupied(o) => {
+                    let first = declared_name(&file.decls[*o.get() as usize])
+                        .map_or(id.span, |(d, _)| d.span);
                     self.errors.push(ModelError::Duplicate {
                         name: id.name.to_string(),
                         span: id.span,
-                        first: o.get().2,
+                        first,
                     });
-                    continue;
                 }
-                std::collections::hash_map::Entry::Vacant(v) => {
-                    v.insert((kind, index, id.span));
+                hashbrown::hash_table::Entry::Vacant(v) => {
+                    v.insert(i);
                 }
             }
-            names.by_kind.entry(kind as u8).or_default().push(&id.name);
         }
         names
     }
@@ -830,7 +955,6 @@ impl Builder {
 
         let mut title = Title::default();
         let mut materials = Vec::new();
-        let mut nodes: Vec<Node> = Vec::new();
         let mut kind: Option<(Kind, Span)> = None;
         let mut units = UnitChoice::Auto;
 
@@ -866,53 +990,28 @@ impl Builder {
                         materials.push(m);
                     }
                 }
-                Decl::Node(n) => {
-                    let this = match n.at {
-                        Coord::Axial(_) => Kind::Axial,
-                        Coord::Plane(..) => Kind::Plane,
-                    };
-                    match kind {
-                        None => kind = Some((this, n.span)),
-                        Some((k, first)) if k != this => {
-                            self.errors.push(ModelError::MixedModel {
-                                this: this.name(),
-                                first: k.name(),
-                                span: n.at.span(),
-                                first_span: first,
-                            });
-                        }
-                        _ => {}
-                    }
-                    let coord = |e: &Expr, b: &mut Self| {
-                        let q = b.ok(eval(e, &scope))?;
-                        if q.dim == Dimension::LENGTH {
-                            Some(si_length(q))
-                        } else {
-                            b.errors.push(ModelError::WrongDimension {
-                                what: format!("the position of node `{}`", n.name.name),
-                                expected: "a length".into(),
-                                found: q.dim.describe(),
-                                span: e.span,
-                                help: example_for(Dimension::LENGTH),
-                            });
-                            None
-                        }
-                    };
-                    let (x, y) = match &n.at {
-                        Coord::Axial(e) => (coord(e, &mut self), Some(Length::new::<meter>(0.0))),
-                        Coord::Plane(xy, _) => (coord(&xy[0], &mut self), coord(&xy[1], &mut self)),
-                    };
-                    nodes.push(Node {
-                        name: n.name.name.clone(),
-                        x: x.unwrap_or_default(),
-                        y: y.unwrap_or_default(),
-                        fixed: [false; 2],
-                        span: n.span,
-                    });
-                }
                 Decl::Units(u) => units = self.units(u),
                 _ => {}
             }
+        }
+        // Nodes: the first fixes the kind of model, which the rest must share.
+        let node_decls: Vec<NodeSrc<'_>> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Node(n) => Some(NodeSrc::Parsed(n)),
+                Decl::Deferred(s) if s.kind == StubKind::Node => Some(NodeSrc::Deferred(s)),
+                _ => None,
+            })
+            .collect();
+        let mut nodes: Vec<Node> = Vec::with_capacity(node_decls.len());
+        if let Some(&first) = node_decls.first() {
+            nodes.push(self.node_src(first, &scope, &mut kind));
+            let known = kind;
+            nodes.extend(self.in_runs(&node_decls[1..], |b, &src| {
+                let mut k = known;
+                Some(b.node_src(src, &scope, &mut k))
+            }));
         }
         let Some((kind, _)) = kind else {
             if !self.errors.is_empty() {
@@ -949,11 +1048,12 @@ impl Builder {
         }
 
         // Parts.
-        let part_decls: Vec<&ast::NamedBlock> = file
+        let part_decls: Vec<PartSrc<'_>> = file
             .decls
             .iter()
             .filter_map(|d| match d {
-                Decl::Part(nb) => Some(nb),
+                Decl::Part(nb) => Some(PartSrc::Parsed(nb)),
+                Decl::Deferred(s) if s.kind == StubKind::Part => Some(PartSrc::Deferred(s)),
                 _ => None,
             })
             .collect();
@@ -1184,6 +1284,9 @@ impl Builder {
         for e in exprs {
             walk_units(e, &mut counts);
         }
+        for (name, n) in std::mem::take(&mut self.units_used) {
+            *counts.entry(name).or_default() += n;
+        }
 
         if !self.errors.is_empty() {
             return Err(self.errors);
@@ -1203,6 +1306,95 @@ impl Builder {
             units,
             unit_usage: counts.into_iter().collect(),
         })
+    }
+
+    /// One node: its position evaluated, and the kind of model (axial or
+    /// plane) held to the first node's.
+    fn node(&mut self, n: &ast::Node, scope: &dyn Scope, kind: &mut Option<(Kind, Span)>) -> Node {
+        let this = match n.at {
+            Coord::Axial(_) => Kind::Axial,
+            Coord::Plane(..) => Kind::Plane,
+        };
+        match *kind {
+            None => *kind = Some((this, n.span)),
+            Some((k, first)) if k != this => {
+                self.errors.push(ModelError::MixedModel {
+                    this: this.name(),
+                    first: k.name(),
+                    span: n.at.span(),
+                    first_span: first,
+                });
+            }
+            _ => {}
+        }
+        let coord = |e: &Expr, b: &mut Self| {
+            let q = b.ok(eval(e, scope))?;
+            if q.dim == Dimension::LENGTH {
+                Some(si_length(q))
+            } else {
+                b.errors.push(ModelError::WrongDimension {
+                    what: format!("the position of node `{}`", n.name.name),
+                    expected: "a length".into(),
+                    found: q.dim.describe(),
+                    span: e.span,
+                    help: example_for(Dimension::LENGTH),
+                });
+                None
+            }
+        };
+        let (x, y) = match &n.at {
+            Coord::Axial(e) => (coord(e, self), Some(Length::new::<meter>(0.0))),
+            Coord::Plane(xy, _) => (coord(&xy[0], self), coord(&xy[1], self)),
+        };
+        Node {
+            name: n.name.name.clone(),
+            x: x.unwrap_or_default(),
+            y: y.unwrap_or_default(),
+            fixed: [false; 2],
+            span: n.span,
+        }
+    }
+
+    /// A parsed node, or a deferred one parsed here.
+    fn node_src(
+        &mut self,
+        src: NodeSrc<'_>,
+        scope: &dyn Scope,
+        kind: &mut Option<(Kind, Span)>,
+    ) -> Node {
+        match src {
+            NodeSrc::Parsed(n) => self.node(n, scope, kind),
+            NodeSrc::Deferred(stub) => match self.expand(stub) {
+                Some(Decl::Node(n)) => self.node(&n, scope, kind),
+                // keeps the numbering of nodes; the syntax error is the result
+                _ => Node {
+                    name: stub.name.name.clone(),
+                    x: Length::default(),
+                    y: Length::default(),
+                    fixed: [false; 2],
+                    span: stub.span,
+                },
+            },
+        }
+    }
+
+    /// A deferred statement parsed in full, its units counted; `None`
+    /// (and a syntax error) when it does not parse.
+    fn expand(&mut self, stub: &ast::Stub) -> Option<Decl> {
+        match crate::syntax::expand(self.text, stub) {
+            Ok(d) => {
+                let mut exprs = Vec::new();
+                decl_exprs(&d, &mut exprs);
+                for e in exprs {
+                    walk_units(e, &mut self.units_used);
+                }
+                Some(d)
+            }
+            Err(e) => {
+                self.errors.push(ModelError::Syntax(Box::new(e)));
+                None
+            }
+        }
     }
 
     fn units(&mut self, u: &ast::Units) -> UnitChoice {
@@ -1339,42 +1531,47 @@ impl Builder {
         })
     }
 
-    /// Every part, on every core for large files: a part needs only the
-    /// names, materials and nodes, so contiguous runs of parts are built
-    /// apart and joined in file order (errors too).
+    /// Every part: a part needs only the names, materials and nodes.
     fn parts(
         &mut self,
-        decls: &[&ast::NamedBlock],
+        decls: &[PartSrc<'_>],
         scope: &LetScope<'_, '_>,
         names: &Names<'_>,
         materials: &[Material],
         nodes: &[Node],
         kind: Kind,
     ) -> Vec<Part> {
-        let workers = if decls.len() < 20_000 {
+        self.in_runs(decls, |b, &src| {
+            b.part_src(src, scope, names, materials, nodes, kind)
+        })
+    }
+
+    /// `work` on each item, in file order. From 20,000 items on, on every
+    /// core: contiguous runs, each with a builder of its own, joined in file
+    /// order with their errors and unit counts.
+    fn in_runs<I: Sync, T: Send>(
+        &mut self,
+        items: &[I],
+        work: impl Fn(&mut Builder<'t>, &I) -> Option<T> + Sync,
+    ) -> Vec<T> {
+        let workers = if items.len() < 20_000 {
             1
         } else {
             std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
         };
         if workers == 1 {
-            return decls
-                .iter()
-                .filter_map(|nb| self.part(nb, scope, names, materials, nodes, kind))
-                .collect();
+            return items.iter().filter_map(|i| work(self, i)).collect();
         }
-        let per = decls.len().div_ceil(workers);
-        let limits = self.limits;
-        let runs: Vec<(Vec<Part>, Vec<ModelError>)> = std::thread::scope(|s| {
-            let handles: Vec<_> = decls
+        let per = items.len().div_ceil(workers);
+        let (limits, text, work) = (self.limits, self.text, &work);
+        let runs: Vec<(Vec<T>, Builder<'t>)> = std::thread::scope(|s| {
+            let handles: Vec<_> = items
                 .chunks(per)
                 .map(|run| {
                     s.spawn(move || {
-                        let mut b = Builder::new(limits);
-                        let parts: Vec<Part> = run
-                            .iter()
-                            .filter_map(|nb| b.part(nb, scope, names, materials, nodes, kind))
-                            .collect();
-                        (parts, b.errors)
+                        let mut b = Builder::new(limits, text);
+                        let out: Vec<T> = run.iter().filter_map(|i| work(&mut b, i)).collect();
+                        (out, b)
                     })
                 })
                 .collect();
@@ -1383,12 +1580,40 @@ impl Builder {
                 .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
                 .collect()
         });
-        let mut parts = Vec::with_capacity(decls.len());
-        for (p, e) in runs {
-            parts.extend(p);
-            self.errors.extend(e);
+        // The first run's list grows in place; the others are moved onto it.
+        let mut out: Vec<T> = Vec::new();
+        for (o, b) in runs {
+            if out.is_empty() {
+                out = o;
+                out.reserve(items.len() - out.len());
+            } else {
+                out.extend(o);
+            }
+            self.errors.extend(b.errors);
+            for (name, n) in b.units_used {
+                *self.units_used.entry(name).or_default() += n;
+            }
         }
-        parts
+        out
+    }
+
+    /// A parsed part, or a deferred one parsed here (its tree dropped after).
+    fn part_src(
+        &mut self,
+        src: PartSrc<'_>,
+        scope: &dyn Scope,
+        names: &Names<'_>,
+        materials: &[Material],
+        nodes: &[Node],
+        kind: Kind,
+    ) -> Option<Part> {
+        match src {
+            PartSrc::Parsed(nb) => self.part(nb, scope, names, materials, nodes, kind),
+            PartSrc::Deferred(stub) => match self.expand(stub)? {
+                Decl::Part(nb) => self.part(&nb, scope, names, materials, nodes, kind),
+                _ => None,
+            },
+        }
     }
 
     #[allow(clippy::too_many_lines)]
@@ -2015,6 +2240,10 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
     file.decls.iter().any(|d| {
         if matches!(d, Decl::Let(_) | Decl::Check(_) | Decl::Calc(_)) {
             return false;
+        }
+        if matches!(d, Decl::Deferred(_)) {
+            // its expressions are unknown until it is parsed: assume so
+            return true;
         }
         let mut exprs = Vec::new();
         decl_exprs(d, &mut exprs);

@@ -6,7 +6,7 @@ mod build;
 mod error;
 pub mod eval;
 
-pub use build::{build, build_with, solver_depends_on, Limits};
+pub use build::{build, build_outline, build_with, solver_depends_on, Limits};
 pub use error::ModelError;
 
 use uom::si::f64::{

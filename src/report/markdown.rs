@@ -219,7 +219,8 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         let (mut fmax, mut cf) = (0.0f64, 0usize);
         for (k, c) in solution.combinations.iter().enumerate() {
             let v = c.parts[i].force.value;
-            if v.abs() > fmax.abs() {
+            // a tie within round-off keeps the first combination
+            if crate::checks::exceeds(v.abs(), fmax.abs()) {
                 fmax = v;
                 cf = k;
             }

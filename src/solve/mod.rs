@@ -288,15 +288,16 @@ impl<'m> System<'m> {
     pub fn new(model: &'m Model) -> Result<Self, SolveError> {
         let map = dofs::number(model)?;
         let mut elems = elements(model, &map);
-        let mut keys = Vec::new();
-        for e in &elems {
-            for (a, &(i, _)) in e.g.iter().enumerate() {
-                for &(j, _) in &e.g[a..] {
-                    keys.push(Pattern::key(i, j));
+        let pattern = Pattern::new(map.n, |pair| {
+            for e in &elems {
+                for (a, &(i, _)) in e.g.iter().enumerate() {
+                    for &(j, _) in &e.g[a..] {
+                        pair(i, j);
+                    }
                 }
             }
-        }
-        let pattern = Pattern::new(map.n, keys).map_err(|r| numeric(model, r))?;
+        })
+        .map_err(|r| numeric(model, r))?;
         for e in &mut elems {
             let mut pos = Vec::with_capacity(e.g.len() * (e.g.len() + 1) / 2);
             for (a, &(i, gi)) in e.g.iter().enumerate() {

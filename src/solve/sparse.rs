@@ -22,6 +22,11 @@ const PIVOT_FLOOR: f64 = 1e-13;
 /// The value a regularised pivot is given: far below any sound pivot.
 const REGULARISED: f64 = 1e-15;
 
+/// The natural order is kept when its factor has at most this many times
+/// the entries of the matrix's upper triangle (common practice: a little
+/// fill is cheaper than an ordering pass).
+const NATURAL_FILL: usize = 2;
+
 /// The upper-triangle pattern of the stiffness matrix.
 pub(crate) struct Pattern {
     pub n: usize,
@@ -41,37 +46,75 @@ pub(crate) enum Failure {
 }
 
 impl Pattern {
-    /// Build the pattern from the (row, col) pairs each element touches.
-    /// `pairs` yields unknown-index pairs; the diagonal is always present.
-    pub fn new(n: usize, mut keys: Vec<u64>) -> Result<Self, String> {
-        for i in 0..n as u64 {
-            keys.push((i << 32) | i);
+    /// Build the pattern from the (row, col) pairs each element touches:
+    /// `pairs` calls its argument with every pair (in either order, repeats
+    /// allowed); it is called twice, to count and to fill. The diagonal is
+    /// always present. Linear in the pairs: columns are filled by counting
+    /// and each column's few rows sorted alone.
+    pub fn new(n: usize, pairs: impl Fn(&mut dyn FnMut(usize, usize))) -> Result<Self, String> {
+        let mut start = vec![0usize; n + 1];
+        for s in &mut start[1..] {
+            *s = 1; // the diagonal
         }
-        keys.sort_unstable();
-        keys.dedup();
-        let mut col_ptr = vec![0usize; n + 1];
-        let mut row_idx = Vec::with_capacity(keys.len());
-        for k in &keys {
-            let col = (k >> 32) as usize;
-            col_ptr[col + 1] += 1;
-            row_idx.push((k & 0xFFFF_FFFF) as usize);
-        }
+        pairs(&mut |a, b| start[a.max(b) + 1] += 1);
         for j in 0..n {
-            col_ptr[j + 1] += col_ptr[j];
+            start[j + 1] += start[j];
         }
+        let mut rows = vec![0usize; start[n]];
+        let mut next: Vec<usize> = start[..n].to_vec();
+        for (j, at) in next.iter_mut().enumerate() {
+            rows[*at] = j;
+            *at += 1;
+        }
+        pairs(&mut |a, b| {
+            let c = a.max(b);
+            rows[next[c]] = a.min(b);
+            next[c] += 1;
+        });
+        drop(next);
+        // Sort and deduplicate each column, compacting in place.
+        let mut col_ptr = vec![0usize; n + 1];
+        let mut len = 0;
+        for j in 0..n {
+            let (a, b) = (start[j], start[j + 1]);
+            rows[a..b].sort_unstable();
+            let mut last = usize::MAX;
+            for p in a..b {
+                let r = rows[p];
+                if r != last {
+                    rows[len] = r;
+                    len += 1;
+                    last = r;
+                }
+            }
+            col_ptr[j + 1] = len;
+        }
+        rows.truncate(len);
+        let row_idx = rows;
         let mut diag = vec![0usize; n];
         for (j, d) in diag.iter_mut().enumerate() {
             // rows within a column are sorted; the diagonal is the last of the upper part
             *d = col_ptr[j + 1] - 1;
         }
         let sym = SymbolicSparseColMatRef::new_checked(n, n, &col_ptr, None, &row_idx);
-        let symbolic = factorize_symbolic_cholesky(
-            sym,
-            Side::Upper,
-            SymmetricOrdering::Amd,
-            CholeskySymbolicParams::default(),
-        )
-        .map_err(|e| format!("{e:?}"))?;
+        let symbolic = |ordering| {
+            factorize_symbolic_cholesky(
+                sym,
+                Side::Upper,
+                ordering,
+                CholeskySymbolicParams::default(),
+            )
+            .map_err(|e| format!("{e:?}"))
+        };
+        // The file's own numbering when it already fills little (chains and
+        // strips numbered along their length); else the approximate minimum
+        // degree ordering, which costs more than the factorisation there.
+        let natural = symbolic(SymmetricOrdering::Identity)?;
+        let symbolic = if natural.len_val() <= NATURAL_FILL * row_idx.len() {
+            natural
+        } else {
+            symbolic(SymmetricOrdering::Amd)?
+        };
         Ok(Self {
             n,
             col_ptr,
@@ -79,12 +122,6 @@ impl Pattern {
             diag,
             symbolic,
         })
-    }
-
-    /// Key for an upper-triangle entry (row ≤ col).
-    pub fn key(a: usize, b: usize) -> u64 {
-        let (r, c) = if a <= b { (a, b) } else { (b, a) };
-        ((c as u64) << 32) | r as u64
     }
 
     /// Position of entry (a, b) in the value array.

@@ -100,3 +100,21 @@ pub enum SyntaxError {
         span: Span,
     },
 }
+
+impl SyntaxError {
+    /// Where the error is.
+    #[must_use]
+    pub fn span(&self) -> Span {
+        match self {
+            SyntaxError::Expected { span, .. }
+            | SyntaxError::UnclosedBlock { span, .. }
+            | SyntaxError::StrayBrace { span, .. }
+            | SyntaxError::UnclosedString { span, .. }
+            | SyntaxError::TooDeep { span, .. }
+            | SyntaxError::TooManyPowers { span, .. }
+            | SyntaxError::BadNumber { span, .. }
+            | SyntaxError::NotAUnit { span, .. }
+            | SyntaxError::BadUnitPower { span, .. } => *span,
+        }
+    }
+}

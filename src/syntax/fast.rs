@@ -16,8 +16,8 @@
 
 use super::ast::{
     AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
-    Expr, ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
-    UnitFactor, Units, Value,
+    Expr, ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Stub, StubKind, Support, Tie,
+    UnitExpr, UnitFactor, Units, Value,
 };
 use super::lower::{quantity_with_unit, word_expr};
 use crate::source::Span;
@@ -25,13 +25,17 @@ use crate::units::lookup;
 
 /// The declaration of one statement (text between separators), or `None`
 /// when pest should parse it.
-pub(super) fn statement(chunk: &str, base: usize) -> Option<Decl> {
+///
+/// `trim` keeps every list at its length: for a tree that is kept (a million
+/// blocks make the growth slack count), not for one dropped at once.
+pub(super) fn statement(chunk: &str, base: usize, trim: bool) -> Option<Decl> {
     let mut p = P {
         s: chunk.as_bytes(),
         text: chunk,
         pos: 0,
         base,
         bad: false,
+        trim,
     };
     let d = p.decl()?;
     p.skip();
@@ -39,6 +43,40 @@ pub(super) fn statement(chunk: &str, base: usize) -> Option<Decl> {
         return None;
     }
     Some(d)
+}
+
+/// The head of a `node` or `part` statement (its keyword, its name, and
+/// `at` or the opening brace after it) as a stub for the outline parse;
+/// `None` for any other statement. The rest is read when it is built.
+pub(super) fn head(chunk: &str, base: usize) -> Option<Stub> {
+    let mut p = P {
+        s: chunk.as_bytes(),
+        text: chunk,
+        pos: 0,
+        base,
+        bad: false,
+        trim: false,
+    };
+    let kind = if p.keyword("node") {
+        StubKind::Node
+    } else if p.keyword("part") {
+        StubKind::Part
+    } else {
+        return None;
+    };
+    let name = p.ident()?;
+    let follows = match kind {
+        StubKind::Node => p.keyword("at"),
+        StubKind::Part => {
+            p.skip();
+            p.peek() == Some(b'{')
+        }
+    };
+    follows.then(|| Stub {
+        kind,
+        name,
+        span: Span::new(base, base + chunk.len()),
+    })
 }
 
 struct P<'a> {
@@ -49,6 +87,8 @@ struct P<'a> {
     /// Set when the grammar matched but the lowering would refuse the
     /// text (a bad number, a word that is not a unit, ...).
     bad: bool,
+    /// Trim lists to their length (see [`statement`]).
+    trim: bool,
 }
 
 /// A point to return to when an alternative fails.
@@ -176,9 +216,9 @@ impl P<'_> {
                 let span = self.span(start, block.span.end() - self.base);
                 let nb = NamedBlock { name, block, span };
                 match kw {
-                    "material" => Decl::Material(nb),
-                    "part" => Decl::Part(nb),
-                    _ => Decl::Rigid(nb),
+                    "material" => Decl::Material(Box::new(nb)),
+                    "part" => Decl::Part(Box::new(nb)),
+                    _ => Decl::Rigid(Box::new(nb)),
                 }
             }
             "node" => {
@@ -222,12 +262,12 @@ impl P<'_> {
                     }
                 }
                 let (stmts, end) = self.body(Self::case_stmt)?;
-                Decl::Case(Case {
+                Decl::Case(Box::new(Case {
                     name,
                     flags,
                     stmts,
                     span: self.span(start, end),
-                })
+                }))
             }
             "combine" => self.combine(start)?,
             "check" => {
@@ -339,9 +379,10 @@ impl P<'_> {
             }
             if self.peek() == Some(b'}') {
                 self.pos += 1;
-                // Lists are kept at their length (growth leaves room for
-                // four); a million blocks make the slack count.
-                items.shrink_to_fit();
+                // Growth leaves room for four.
+                if self.trim {
+                    items.shrink_to_fit();
+                }
                 return Some((items, self.pos));
             }
             if !items.is_empty() && seps == 0 {
@@ -371,7 +412,9 @@ impl P<'_> {
             Value::Str(self.string()?)
         } else {
             let mut list = self.list(Self::expr)?;
-            list.shrink_to_fit();
+            if self.trim {
+                list.shrink_to_fit();
+            }
             Value::Exprs(list)
         };
         let end = match &value {
@@ -494,11 +537,11 @@ impl P<'_> {
             }
         }
         let end = terms[terms.len() - 1].span.end() - self.base;
-        Some(Decl::Combine(Combine {
+        Some(Decl::Combine(Box::new(Combine {
             name,
             terms,
             span: self.span(start, end),
-        }))
+        })))
     }
 
     /// `+` (false) or `-` (true); `optional` leaves the position when none.
@@ -712,6 +755,13 @@ impl P<'_> {
 
     fn power(&mut self) -> Option<Expr> {
         let first = self.atom()?;
+        // most atoms have no power: no list for them
+        let m = self.mark();
+        if !self.eat(b'^') {
+            self.reset(m);
+            return Some(first);
+        }
+        self.reset(m);
         let mut operands = vec![first];
         loop {
             let m = self.mark();

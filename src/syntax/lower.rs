@@ -5,8 +5,8 @@ use pest::Parser;
 
 use super::ast::{
     AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
-    Expr, ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Support, Tie, UnitExpr,
-    UnitFactor, Units, Value,
+    Expr, ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Stub, Support, Tie,
+    UnitExpr, UnitFactor, Units, Value,
 };
 use super::parser::{CalcParser, Rule};
 use super::{SyntaxError, MAX_NESTING};
@@ -22,6 +22,43 @@ type Result<T> = std::result::Result<T, SyntaxError>;
 /// too-deep nesting from a pre-scan, else each statement's first error,
 /// worded for an engineer.
 pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
+    parse_with(text, false)
+}
+
+/// [`parse`], except that each `node` and `part` statement is only read up
+/// to its name and kept as a [`Decl::Deferred`] stub: the model builder
+/// parses its body when it builds it, and drops that tree at once. This is
+/// how `tandem` reads a file to build its model, so that the syntax tree of
+/// a million parts never exists at once. The errors are [`parse`]'s, except
+/// those inside deferred statements, which come from
+/// [`crate::model::build_outline`] (in file order with these).
+///
+/// # Errors
+/// As [`parse`], for every statement that is not deferred.
+pub fn parse_outline(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
+    parse_with(text, true)
+}
+
+/// The declaration of a deferred statement, parsed in full.
+///
+/// # Errors
+/// The statement's syntax error, as [`parse`] would report it.
+pub fn expand(text: &str, stub: &Stub) -> Result<Decl> {
+    let (start, end) = (stub.span.start(), stub.span.end());
+    if text.get(start..end).is_none() {
+        // not the text the stub was read from
+        return Err(eof_error(text));
+    }
+    // the caller builds from the tree and drops it: no trimming
+    match statement(text, start, end, false) {
+        Ok(Some(d)) => Ok(d),
+        // a stub is made only from a statement that has a head
+        Ok(None) => Err(eof_error(&text[..end])),
+        Err(e) => Err(e),
+    }
+}
+
+fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<SyntaxError>> {
     let (pre, chunks) = prescan(text);
     if !pre.is_empty() {
         return Err(pre);
@@ -34,12 +71,12 @@ pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
     };
     let per = chunks.len().div_ceil(workers).max(1);
     let parts: Vec<(Vec<Decl>, Vec<SyntaxError>)> = if workers == 1 {
-        vec![parse_chunks(text, &chunks)]
+        vec![parse_chunks(text, &chunks, outline)]
     } else {
         std::thread::scope(|scope| {
             let handles: Vec<_> = chunks
                 .chunks(per)
-                .map(|group| scope.spawn(move || parse_chunks(text, group)))
+                .map(|group| scope.spawn(move || parse_chunks(text, group, outline)))
                 .collect();
             handles
                 .into_iter()
@@ -71,33 +108,28 @@ pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
 }
 
 /// At most this many syntax errors are reported from one file.
-const MAX_SYNTAX_ERRORS: usize = 50;
+pub const MAX_SYNTAX_ERRORS: usize = 50;
 
 thread_local! {
     /// Offset of the statement being lowered within the file.
     static BASE: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
 }
 
-fn parse_chunks(text: &str, chunks: &[(usize, usize)]) -> (Vec<Decl>, Vec<SyntaxError>) {
+fn parse_chunks(
+    text: &str,
+    chunks: &[(usize, usize)],
+    outline: bool,
+) -> (Vec<Decl>, Vec<SyntaxError>) {
     let mut decls = Vec::with_capacity(chunks.len());
     let mut errors = Vec::new();
     for &(start, end) in chunks {
-        let fast = super::fast::statement(&text[start..end], start);
-        if cfg!(debug_assertions) {
-            // Debug builds (the tests) hold the hand-written parser to the
-            // grammar on every statement they parse.
-            let pest = pest_statement(text, start, end);
-            debug_assert!(
-                agree(fast.as_ref(), &pest),
-                "parsers disagree on {:?}:\n{fast:#?}\n{pest:#?}",
-                &text[start..end]
-            );
+        if outline {
+            if let Some(stub) = super::fast::head(&text[start..end], start) {
+                decls.push(Decl::Deferred(stub));
+                continue;
+            }
         }
-        if let Some(d) = fast {
-            decls.push(d);
-            continue;
-        }
-        match pest_statement(text, start, end) {
+        match statement(text, start, end, true) {
             Ok(Some(d)) => decls.push(d),
             Ok(None) => {}
             Err(e) => errors.push(e),
@@ -107,6 +139,27 @@ fn parse_chunks(text: &str, chunks: &[(usize, usize)]) -> (Vec<Decl>, Vec<Syntax
         }
     }
     (decls, errors)
+}
+
+/// One statement (`text[start..end]`): the hand-written parser, else pest,
+/// which words the error. `Ok(None)` for a statement that declares nothing.
+/// `trim` as for [`super::fast::statement`]: whether the tree is kept.
+fn statement(text: &str, start: usize, end: usize, trim: bool) -> Result<Option<Decl>> {
+    let fast = super::fast::statement(&text[start..end], start, trim);
+    if cfg!(debug_assertions) {
+        // Debug builds (the tests) hold the hand-written parser to the
+        // grammar on every statement they parse.
+        let pest = pest_statement(text, start, end);
+        debug_assert!(
+            agree(fast.as_ref(), &pest),
+            "parsers disagree on {:?}:\n{fast:#?}\n{pest:#?}",
+            &text[start..end]
+        );
+    }
+    match fast {
+        Some(d) => Ok(Some(d)),
+        None => pest_statement(text, start, end),
+    }
 }
 
 /// One statement through pest and the lowering.
@@ -147,7 +200,7 @@ pub fn compare_parsers(text: &str) -> std::result::Result<usize, String> {
         return Ok(0);
     }
     for &(start, end) in &chunks {
-        let fast = super::fast::statement(&text[start..end], start);
+        let fast = super::fast::statement(&text[start..end], start, true);
         let pest = pest_statement(text, start, end);
         if !agree(fast.as_ref(), &pest) {
             return Err(format!(
@@ -538,9 +591,9 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                 span: sp,
             };
             match rule {
-                Rule::material_decl => Decl::Material(nb),
-                Rule::part_decl => Decl::Part(nb),
-                _ => Decl::Rigid(nb),
+                Rule::material_decl => Decl::Material(Box::new(nb)),
+                Rule::part_decl => Decl::Part(Box::new(nb)),
+                _ => Decl::Rigid(Box::new(nb)),
             }
         }
         Rule::node_decl => {
@@ -585,12 +638,12 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                     _ => {}
                 }
             }
-            Decl::Case(Case {
+            Decl::Case(Box::new(Case {
                 name,
                 flags,
                 stmts,
                 span: sp,
-            })
+            }))
         }
         Rule::combine_decl => {
             let name = ident(&need(next(), sp)?);
@@ -622,11 +675,11 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                     _ => {}
                 }
             }
-            Decl::Combine(Combine {
+            Decl::Combine(Box::new(Combine {
                 name,
                 terms,
                 span: sp,
-            })
+            }))
         }
         Rule::check_decl => {
             let label = string(&need(next(), sp)?);

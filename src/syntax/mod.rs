@@ -8,7 +8,7 @@ mod lower;
 mod parser;
 
 pub use error::SyntaxError;
-pub use lower::{compare_parsers, parse};
+pub use lower::{compare_parsers, expand, parse, parse_outline, MAX_SYNTAX_ERRORS};
 
 /// Deepest nesting of parentheses an expression may have.
 pub const MAX_NESTING: usize = 64;
