@@ -14,26 +14,9 @@ fn agree(text: &str) -> usize {
     }
 }
 
-fn tandem_files(dir: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
-    let Ok(entries) = std::fs::read_dir(dir) else {
-        return;
-    };
-    for e in entries.filter_map(Result::ok) {
-        let p = e.path();
-        if p.is_dir() {
-            tandem_files(&p, out);
-        } else if p.extension().is_some_and(|x| x == "tandem") {
-            out.push(p);
-        }
-    }
-}
-
 #[test]
 fn every_shipped_and_test_calc_parses_the_same_both_ways() {
-    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
-    let mut files = Vec::new();
-    tandem_files(&root.join("examples"), &mut files);
-    tandem_files(&root.join("tests"), &mut files);
+    let files = common::calc_files();
     assert!(files.len() > 40, "only {} calc files found", files.len());
     let mut statements = 0;
     for f in &files {

@@ -113,3 +113,26 @@ impl Rng {
         xs[self.below(xs.len())]
     }
 }
+
+/// Every calc file shipped (examples/) or used by the tests (tests/).
+pub fn calc_files() -> Vec<std::path::PathBuf> {
+    fn walk(dir: &std::path::Path, out: &mut Vec<std::path::PathBuf>) {
+        let Ok(entries) = std::fs::read_dir(dir) else {
+            return;
+        };
+        for e in entries.filter_map(Result::ok) {
+            let p = e.path();
+            if p.is_dir() {
+                walk(&p, out);
+            } else if p.extension().is_some_and(|x| x == "tandem") {
+                out.push(p);
+            }
+        }
+    }
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let mut files = Vec::new();
+    walk(&root.join("examples"), &mut files);
+    walk(&root.join("tests"), &mut files);
+    files.sort();
+    files
+}
