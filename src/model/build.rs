@@ -75,9 +75,10 @@ impl NameKind {
 /// first declaration in the file's list, so that it stays small (a few
 /// bytes a name) and a lookup among millions of names touches little
 /// memory; the name itself is compared in the declaration, which for names
-/// looked up in file order is close to the last one.
+/// looked up in file order is close to the last one. Large files split the
+/// table into shards by hash, one filled on each core.
 struct Names<'a> {
-    table: hashbrown::HashTable<u32>,
+    shards: Vec<hashbrown::HashTable<u32>>,
     hasher: foldhash::fast::FixedState,
     /// For each declaration, its number among the declarations of its kind.
     number: Vec<u32>,
@@ -96,7 +97,7 @@ impl<'a> Names<'a> {
 
     fn position(&self, name: &str) -> Option<u32> {
         let hash = std::hash::BuildHasher::hash_one(&self.hasher, name);
-        self.table
+        self.shards[shard(hash, self.shards.len())]
             .find(hash, |&i| {
                 self.declared(i).is_some_and(|(id, _)| id.name == name)
             })
@@ -364,6 +365,82 @@ fn syntax_first(errors: Vec<ModelError>) -> Vec<ModelError> {
     });
     syntax.truncate(crate::syntax::MAX_SYNTAX_ERRORS);
     syntax
+}
+
+/// The shard of the name table a hash belongs to: bits that neither the
+/// table's bucket index (low bits) nor its tag (top seven) use.
+fn shard(hash: u64, shards: usize) -> usize {
+    ((hash >> 32) & 0xFF_FFFF) as usize % shards
+}
+
+/// One shard of the name table, and the errors found filling it, each with
+/// its declaration's position.
+type Shard = (hashbrown::HashTable<u32>, Vec<(usize, ModelError)>);
+
+/// Register the names whose hash falls in shard `which` of `shards`, in
+/// file order: the table of first declarations, and the errors (names too
+/// long, reserved words, duplicates), each with its declaration's position.
+fn fill_shard(
+    file: &ast::File,
+    hasher: &foldhash::fast::FixedState,
+    which: usize,
+    shards: usize,
+    limits: Limits,
+) -> Shard {
+    use std::hash::BuildHasher;
+    let mut table = hashbrown::HashTable::with_capacity(file.decls.len() / shards + 16);
+    let mut errors = Vec::new();
+    let name_at = |j: u32| declared_name(&file.decls[j as usize]).map(|(id, _)| id);
+    for (i, d) in file.decls.iter().enumerate() {
+        let Some((id, _)) = declared_name(d) else {
+            continue;
+        };
+        let hash = hasher.hash_one(id.name.as_str());
+        if shard(hash, shards) != which {
+            continue;
+        }
+        if id.name.len() > limits.max_name_len {
+            errors.push((i, ModelError::TooMany {
+                what: "characters in a name",
+                count: id.name.len(),
+                limit: limits.max_name_len,
+                span: id.span,
+                help: Some("use a shorter name; the title block and comments can carry a longer description".into()),
+            }));
+        }
+        if let Some(what) = reserved(&id.name) {
+            errors.push((
+                i,
+                ModelError::Reserved {
+                    name: id.name.to_string(),
+                    what,
+                    span: id.span,
+                },
+            ));
+        }
+        match table.entry(
+            hash,
+            |&j| name_at(j).is_some_and(|n| n.name == id.name),
+            |&j| name_at(j).map_or(0, |n| hasher.hash_one(n.name.as_str())),
+        ) {
+            hashbrown::hash_table::Entry::Occupied(o) => {
+                let first = name_at(*o.get()).map_or(id.span, |n| n.span);
+                errors.push((
+                    i,
+                    ModelError::Duplicate {
+                        name: id.name.to_string(),
+                        span: id.span,
+                        first,
+                    },
+                ));
+            }
+            hashbrown::hash_table::Entry::Vacant(v) => {
+                // at most `max_declarations` (checked before), far below 2^32
+                v.insert(u32::try_from(i).unwrap_or(u32::MAX));
+            }
+        }
+    }
+    (table, errors)
 }
 
 /// The name a declaration declares, and what it stands for.
@@ -751,61 +828,52 @@ impl<'t> Builder<'t> {
     }
 
     fn register<'a>(&mut self, file: &'a ast::File) -> Names<'a> {
-        let mut names = Names {
-            table: hashbrown::HashTable::with_capacity(file.decls.len()),
-            hasher: foldhash::fast::FixedState::default(),
-            number: vec![0; file.decls.len()],
-            file,
-            suggestions: std::sync::atomic::AtomicUsize::new(crate::diagnostic::MAX_SHOWN),
-        };
+        // Numbers among each kind, in file order.
+        let mut number = vec![0u32; file.decls.len()];
         let mut counters = [0u32; 7];
-        let name_at = |j: u32| declared_name(&file.decls[j as usize]).map(|(id, _)| &id.name);
-        for (i, d) in file.decls.iter().enumerate() {
-            let Some((id, kind)) = declared_name(d) else {
-                continue;
-            };
-            // at most `max_declarations` (checked before), far below 2^32
-            let i = u32::try_from(i).unwrap_or(u32::MAX);
-            names.number[i as usize] = counters[kind as usize];
-            counters[kind as usize] += 1;
-            if id.name.len() > self.limits.max_name_len {
-                self.errors.push(ModelError::TooMany {
-                    what: "characters in a name",
-                    count: id.name.len(),
-                    limit: self.limits.max_name_len,
-                    span: id.span,
-                    help: Some("use a shorter name; the title block and comments can carry a longer description".into()),
-                });
-            }
-            if let Some(what) = reserved(&id.name) {
-                self.errors.push(ModelError::Reserved {
-                    name: id.name.to_string(),
-                    what,
-                    span: id.span,
-                });
-            }
-            let hasher = &names.hasher;
-            let hash = std::hash::BuildHasher::hash_one(hasher, id.name.as_str());
-            match names.table.entry(
-                hash,
-                |&j| name_at(j) == Some(&id.name),
-                |&j| name_at(j).map_or(0, |n| std::hash::BuildHasher::hash_one(hasher, n.as_str())),
-            ) {
-                hashbrown::hash_table::Entry::Occupied(o) => {
-                    let first = declared_name(&file.decls[*o.get() as usize])
-                        .map_or(id.span, |(d, _)| d.span);
-                    self.errors.push(ModelError::Duplicate {
-                        name: id.name.to_string(),
-                        span: id.span,
-                        first,
-                    });
-                }
-                hashbrown::hash_table::Entry::Vacant(v) => {
-                    v.insert(i);
-                }
+        for (n, d) in number.iter_mut().zip(&file.decls) {
+            if let Some((_, kind)) = declared_name(d) {
+                *n = counters[kind as usize];
+                counters[kind as usize] += 1;
             }
         }
-        names
+        let workers = if file.decls.len() < 20_000 {
+            1
+        } else {
+            std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
+        };
+        let hasher = foldhash::fast::FixedState::default();
+        let limits = self.limits;
+        let fill = |which: usize| fill_shard(file, &hasher, which, workers, limits);
+        let filled: Vec<Shard> = if workers == 1 {
+            vec![fill(0)]
+        } else {
+            std::thread::scope(|s| {
+                let fill = &fill;
+                let handles: Vec<_> = (0..workers).map(|w| s.spawn(move || fill(w))).collect();
+                handles
+                    .into_iter()
+                    .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
+                    .collect()
+            })
+        };
+        let mut shards = Vec::with_capacity(workers);
+        let mut errors = Vec::new();
+        for (table, e) in filled {
+            shards.push(table);
+            errors.extend(e);
+        }
+        // in file order; one declaration's errors all come from one shard,
+        // in the order it found them
+        errors.sort_by_key(|(i, _)| *i);
+        self.errors.extend(errors.into_iter().map(|(_, e)| e));
+        Names {
+            shards,
+            hasher,
+            number,
+            file,
+            suggestions: std::sync::atomic::AtomicUsize::new(crate::diagnostic::MAX_SHOWN),
+        }
     }
 
     /// Evaluate `let`s in dependency order (their order in the file does not matter).
