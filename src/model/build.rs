@@ -1632,13 +1632,18 @@ impl<'t> Builder<'t> {
         }
         let per = items.len().div_ceil(workers);
         let (limits, text, work) = (self.limits, self.text, &work);
+        let total = items.len();
         let runs: Vec<(Vec<T>, Builder<'t>)> = std::thread::scope(|s| {
             let handles: Vec<_> = items
                 .chunks(per)
-                .map(|run| {
+                .enumerate()
+                .map(|(k, run)| {
                     s.spawn(move || {
                         let mut b = Builder::new(limits, text);
-                        let out: Vec<T> = run.iter().filter_map(|i| work(&mut b, i)).collect();
+                        // the first run's list has room for all: the others
+                        // are moved onto it without growing it
+                        let mut out = Vec::with_capacity(if k == 0 { total } else { run.len() });
+                        out.extend(run.iter().filter_map(|i| work(&mut b, i)));
                         (out, b)
                     })
                 })
@@ -1648,12 +1653,10 @@ impl<'t> Builder<'t> {
                 .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
                 .collect()
         });
-        // The first run's list grows in place; the others are moved onto it.
         let mut out: Vec<T> = Vec::new();
-        for (o, b) in runs {
-            if out.is_empty() {
+        for (k, (o, b)) in runs.into_iter().enumerate() {
+            if k == 0 {
                 out = o;
-                out.reserve(items.len() - out.len());
             } else {
                 out.extend(o);
             }

@@ -97,14 +97,30 @@ pub struct Solution {
     pub warnings: Vec<String>,
 }
 
-/// A part's contribution: elongation = `Σ g·q + c·(u0[b] − u0[a])`.
-struct Element {
-    g: Vec<(usize, f64)>,
+/// Each part's contribution: elongation = `Σ g·q + c·(u0[b] − u0[a])`.
+/// Flat lists, one run per part, so that a million parts are a few large
+/// arrays rather than millions of small ones.
+struct Elements {
     /// Direction cosines per component.
-    dir: [f64; 2],
-    k: f64,
-    /// Positions in the value array of each (i ≤ j) pair of `g`, with gi·gj.
+    dir: Vec<[f64; 2]>,
+    k: Vec<f64>,
+    /// Part `i`'s coefficients `g` are `g[g_at[i]..g_at[i + 1]]`.
+    g_at: Vec<usize>,
+    g: Vec<(usize, f64)>,
+    /// Positions in the value array of each (i ≤ j) pair of a part's `g`,
+    /// with gi·gj; part `i`'s are `pos[pos_at[i]..pos_at[i + 1]]`.
+    pos_at: Vec<usize>,
     pos: Vec<(usize, f64)>,
+}
+
+impl Elements {
+    fn g(&self, i: usize) -> &[(usize, f64)] {
+        &self.g[self.g_at[i]..self.g_at[i + 1]]
+    }
+
+    fn pos(&self, i: usize) -> &[(usize, f64)] {
+        &self.pos[self.pos_at[i]..self.pos_at[i + 1]]
+    }
 }
 
 /// How a nonlinear part is currently treated.
@@ -119,40 +135,55 @@ enum Mode {
     Slack,
 }
 
-fn elements(model: &Model, map: &DofMap) -> Vec<Element> {
+fn elements(model: &Model, map: &DofMap) -> Elements {
     let nd = map.ndof;
-    model
-        .parts
-        .iter()
-        .enumerate()
-        .map(|(pi, p)| {
-            let dir = model.direction(pi);
-            let mut g: Vec<(usize, f64)> = Vec::with_capacity(4);
-            for (d, c) in dir.iter().enumerate().take(nd) {
-                for (i, v) in map.terms[p.ends[1] * nd + d].iter() {
-                    g.push((i, c * v));
-                }
-                for (i, v) in map.terms[p.ends[0] * nd + d].iter() {
-                    g.push((i, -c * v));
-                }
+    let n = model.parts.len();
+    let mut e = Elements {
+        dir: Vec::with_capacity(n),
+        k: Vec::with_capacity(n),
+        g_at: Vec::with_capacity(n + 1),
+        g: Vec::with_capacity(2 * nd * n),
+        pos_at: Vec::new(),
+        pos: Vec::new(),
+    };
+    e.g_at.push(0);
+    for (pi, p) in model.parts.iter().enumerate() {
+        let dir = model.direction(pi);
+        let start = e.g.len();
+        for (d, c) in dir.iter().enumerate().take(nd) {
+            for (i, v) in map.terms[p.ends[1] * nd + d].iter() {
+                e.g.push((i, c * v));
             }
-            g.sort_by_key(|x| x.0);
-            let mut merged: Vec<(usize, f64)> = Vec::with_capacity(g.len());
-            for (i, v) in g {
-                match merged.last_mut() {
-                    Some(last) if last.0 == i => last.1 += v,
-                    _ => merged.push((i, v)),
-                }
+            for (i, v) in map.terms[p.ends[0] * nd + d].iter() {
+                e.g.push((i, -c * v));
             }
-            merged.retain(|x| x.1 != 0.0);
-            Element {
-                g: merged,
-                dir,
-                k: p.stiffness(&model.materials).value,
-                pos: Vec::new(),
+        }
+        // merge repeated unknowns, drop zero coefficients
+        e.g[start..].sort_by_key(|x| x.0);
+        let mut len = start;
+        for r in start..e.g.len() {
+            let (i, v) = e.g[r];
+            if len > start && e.g[len - 1].0 == i {
+                e.g[len - 1].1 += v;
+            } else {
+                e.g[len] = (i, v);
+                len += 1;
             }
-        })
-        .collect()
+        }
+        e.g.truncate(len);
+        let mut keep = start;
+        for r in start..len {
+            if e.g[r].1 != 0.0 {
+                e.g[keep] = e.g[r];
+                keep += 1;
+            }
+        }
+        e.g.truncate(keep);
+        e.g_at.push(keep);
+        e.dir.push(dir);
+        e.k.push(p.stiffness(&model.materials).value);
+    }
+    e
 }
 
 fn state_hash(modes: &[Mode]) -> u64 {
@@ -280,7 +311,7 @@ impl Take {
 pub(crate) struct System<'m> {
     pub model: &'m Model,
     pub map: DofMap,
-    elems: Vec<Element>,
+    elems: Elements,
     pattern: Pattern,
 }
 
@@ -288,25 +319,32 @@ impl<'m> System<'m> {
     pub fn new(model: &'m Model) -> Result<Self, SolveError> {
         let map = dofs::number(model)?;
         let mut elems = elements(model, &map);
+        let n = model.parts.len();
         let pattern = Pattern::new(map.n, |pair| {
-            for e in &elems {
-                for (a, &(i, _)) in e.g.iter().enumerate() {
-                    for &(j, _) in &e.g[a..] {
+            for p in 0..n {
+                let g = elems.g(p);
+                for (a, &(i, _)) in g.iter().enumerate() {
+                    for &(j, _) in &g[a..] {
                         pair(i, j);
                     }
                 }
             }
         })
         .map_err(|r| numeric(model, r))?;
-        for e in &mut elems {
-            let mut pos = Vec::with_capacity(e.g.len() * (e.g.len() + 1) / 2);
-            for (a, &(i, gi)) in e.g.iter().enumerate() {
-                for &(j, gj) in &e.g[a..] {
+        let mut pos = Vec::with_capacity(elems.g.len() * 3 / 2);
+        let mut pos_at = Vec::with_capacity(n + 1);
+        pos_at.push(0);
+        for p in 0..n {
+            let g = elems.g(p);
+            for (a, &(i, gi)) in g.iter().enumerate() {
+                for &(j, gj) in &g[a..] {
                     pos.push((pattern.position(i, j), gi * gj));
                 }
             }
-            e.pos = pos;
+            pos_at.push(pos.len());
         }
+        elems.pos = pos;
+        elems.pos_at = pos_at;
         Ok(Self {
             model,
             map,
@@ -317,7 +355,7 @@ impl<'m> System<'m> {
 
     /// Each part's elastic stiffness k = E A / L.
     pub fn stiffness(&self) -> Vec<f64> {
-        self.elems.iter().map(|e| e.k).collect()
+        self.elems.k.clone()
     }
 
     /// The actions of factored cases.
@@ -410,10 +448,10 @@ impl<'m> System<'m> {
         let e0: Vec<f64> = model
             .parts
             .iter()
-            .zip(&self.elems)
-            .map(|(p, e)| {
+            .zip(&self.elems.dir)
+            .map(|(p, dir)| {
                 (0..nd)
-                    .map(|d| e.dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
+                    .map(|d| dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
                     .sum()
             })
             .collect();
@@ -437,9 +475,9 @@ impl<'m> System<'m> {
     /// Factorise with per-part stiffnesses (0 removes a part).
     pub fn factor(&self, k: &[f64], slack: &[usize]) -> Result<sparse::Factor<'_>, SolveError> {
         let mut values = vec![0.0; self.pattern.nnz()];
-        for (e, &kk) in self.elems.iter().zip(k) {
+        for (i, &kk) in k.iter().enumerate() {
             if kk != 0.0 {
-                for &(p, c) in &e.pos {
+                for &(p, c) in self.elems.pos(i) {
                     values[p] += kk * c;
                 }
             }
@@ -458,9 +496,9 @@ impl<'m> System<'m> {
     /// Σ c_i·g_i over the parts: per-part coefficients into the unknowns.
     fn gather(&self, c: &[f64]) -> Vec<f64> {
         let mut out = vec![0.0; self.map.n];
-        for (e, &ci) in self.elems.iter().zip(c) {
+        for (i, &ci) in c.iter().enumerate() {
             if ci != 0.0 {
-                for &(j, g) in &e.g {
+                for &(j, g) in self.elems.g(i) {
                     out[j] += ci * g;
                 }
             }
@@ -470,9 +508,8 @@ impl<'m> System<'m> {
 
     /// g_i·v for every part.
     fn project(&self, v: &[f64]) -> Vec<f64> {
-        self.elems
-            .iter()
-            .map(|e| e.g.iter().map(|&(j, g)| g * v[j]).sum())
+        (0..self.elems.k.len())
+            .map(|i| self.elems.g(i).iter().map(|&(j, g)| g * v[j]).sum())
             .collect()
     }
 
@@ -489,22 +526,21 @@ impl<'m> System<'m> {
         a: &Actions,
     ) -> (Vec<f64>, Vec<f64>) {
         let mut rhs = a.f_loads.clone();
-        for (i, e) in self.elems.iter().enumerate() {
+        for i in 0..self.elems.k.len() {
             let t = k[i] * (target[i] - a.e0[i]) - forces[i];
             if t != 0.0 {
-                for &(j, g) in &e.g {
+                for &(j, g) in self.elems.g(i) {
                     rhs[j] += t * g;
                 }
             }
         }
         factor.solve(&mut rhs);
         let q = rhs;
-        let elong = self
-            .elems
-            .iter()
-            .zip(&a.e0)
-            .map(|(e, base)| base + e.g.iter().map(|&(j, g)| g * q[j]).sum::<f64>())
-            .collect();
+        let elong =
+            a.e0.iter()
+                .enumerate()
+                .map(|(i, base)| base + self.elems.g(i).iter().map(|&(j, g)| g * q[j]).sum::<f64>())
+                .collect();
         (q, elong)
     }
 
@@ -911,7 +947,7 @@ struct ResultInputs<'a> {
 fn results(
     model: &Model,
     map: &DofMap,
-    elems: &[Element],
+    elems: &Elements,
     name: String,
     r: &ResultInputs<'_>,
 ) -> CombinationResult {
@@ -928,12 +964,12 @@ fn results(
     let mut net = r.loads.to_vec();
     let mut scale = r.loads.iter().fold(0.0f64, |m, v| m.max(v.abs()));
     for (i, p) in model.parts.iter().enumerate() {
-        let e = &elems[i];
+        let dir = elems.dir[i];
         let (force, state) = (r.forces[i], r.states[i]);
         scale = scale.max(force.abs());
         for d in 0..nd {
-            net[p.ends[0] * nd + d] += force * e.dir[d];
-            net[p.ends[1] * nd + d] -= force * e.dir[d];
+            net[p.ends[0] * nd + d] += force * dir[d];
+            net[p.ends[1] * nd + d] -= force * dir[d];
         }
         let len = p.length.value;
         parts.push(PartResult {
