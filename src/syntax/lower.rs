@@ -71,12 +71,19 @@ fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<Syntax
     };
     let per = chunks.len().div_ceil(workers).max(1);
     let parts: Vec<(Vec<Decl>, Vec<SyntaxError>)> = if workers == 1 {
-        vec![parse_chunks(text, &chunks, outline)]
+        vec![parse_chunks(text, &chunks, outline, chunks.len())]
     } else {
         std::thread::scope(|scope| {
+            let total = chunks.len();
             let handles: Vec<_> = chunks
                 .chunks(per)
-                .map(|group| scope.spawn(move || parse_chunks(text, group, outline)))
+                .enumerate()
+                .map(|(k, group)| {
+                    // the first list has room for all: the others are moved
+                    // onto it without growing it
+                    let room = if k == 0 { total } else { group.len() };
+                    scope.spawn(move || parse_chunks(text, group, outline, room))
+                })
                 .collect();
             handles
                 .into_iter()
@@ -87,13 +94,11 @@ fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<Syntax
                 .collect()
         })
     };
-    // The first worker's list grows in place; the others are moved onto it.
     let mut decls = Vec::new();
     let mut errors = Vec::new();
-    for (d, e) in parts {
-        if decls.is_empty() {
+    for (k, (d, e)) in parts.into_iter().enumerate() {
+        if k == 0 {
             decls = d;
-            decls.reserve(chunks.len().saturating_sub(decls.len()));
         } else {
             decls.extend(d);
         }
@@ -119,8 +124,9 @@ fn parse_chunks(
     text: &str,
     chunks: &[(usize, usize)],
     outline: bool,
+    room: usize,
 ) -> (Vec<Decl>, Vec<SyntaxError>) {
-    let mut decls = Vec::with_capacity(chunks.len());
+    let mut decls = Vec::with_capacity(room);
     let mut errors = Vec::new();
     for &(start, end) in chunks {
         if outline {
