@@ -94,7 +94,7 @@ type Generator = fn(usize) -> String;
 // The command-line tool's allocator, so that the figures are its figures.
 #[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
-static ALLOC: tandem::alloc::Allocator = tandem::alloc::Allocator;
+static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
 fn peak_rss_mib() -> f64 {
     std::fs::read_to_string("/proc/self/status")

@@ -9,7 +9,7 @@ use tandem::source::Source;
 // The command-line tool's allocator, so that the figures are its figures.
 #[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
-static ALLOC: tandem::alloc::Allocator = tandem::alloc::Allocator;
+static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
 fn main() {
     let mut text = String::from("let t = 0.5 in\nmaterial s { E = 29000 ksi }\nmaterial c { E = 4000 ksi }\nnode n0 at 0 in\nfix n0\n");

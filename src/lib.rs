@@ -8,11 +8,6 @@
 //! every stage are `miette` diagnostics that point at the offending span
 //! ([`diagnostic`]).
 
-// The one module with unsafe code: a global allocator cannot be written
-// without it.
-#[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
-#[allow(unsafe_code)]
-pub mod alloc;
 pub mod checks;
 pub mod diagnostic;
 pub mod model;

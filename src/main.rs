@@ -51,7 +51,7 @@ fn bad() -> ExitCode {
 
 #[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
-static ALLOC: tandem::alloc::Allocator = tandem::alloc::Allocator;
+static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
 fn main() -> ExitCode {
     let cli = Cli::parse();
