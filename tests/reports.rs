@@ -527,3 +527,17 @@ fn buckling_row_of_a_part_in_tension_says_none() {
     let md = tandem::report::markdown::report(&src, &a, &d);
     assert!(md.contains("| none (never in compression) |"), "{md}");
 }
+
+/// Combinations that tie in exact arithmetic differ by round-off in the
+/// solve; the first in the file governs, whatever the order of the
+/// factorisation. A relative 1e-9 is the tie band (common practice).
+#[test]
+fn a_tie_within_round_off_keeps_the_first_combination() {
+    use tandem::checks::exceeds;
+    assert!(!exceeds(0.704 * (1.0 + 1e-13), 0.704));
+    assert!(!exceeds(0.704, 0.704));
+    assert!(exceeds(0.704 * (1.0 + 1e-6), 0.704));
+    assert!(exceeds(f64::INFINITY, 1.0));
+    assert!(!exceeds(1.0, f64::INFINITY));
+    assert!(exceeds(1e-20, 0.0));
+}
