@@ -422,3 +422,72 @@ settle c y = -0.12 in
     let err = solve_err(text);
     assert!(err.contains("do not fit together"), "{err}");
 }
+
+/// The order of a part's `ends` against the axis must not change its
+/// force: a hanger below its support carries the weight hung on it in
+/// tension (statics of a free body, F = P), whether it is written from the
+/// support down or from the load up, and with the axis pointing up or down.
+/// Two unequal hangers side by side share it by E A / L (parallel springs).
+#[test]
+fn a_hanger_is_in_tension_whatever_the_order_of_its_ends() {
+    let forms = [
+        // axis up, ends from the support down
+        (
+            "node roof at 0 in\nnode grid at -40 in",
+            "roof, grid",
+            "roof, grid",
+            -6.0,
+        ),
+        // axis up, ends from the load up
+        (
+            "node roof at 0 in\nnode grid at -40 in",
+            "grid, roof",
+            "roof, grid",
+            -6.0,
+        ),
+        // axis down (positions grow downward), one hanger each way
+        (
+            "node roof at 0 in\nnode grid at 40 in",
+            "roof, grid",
+            "grid, roof",
+            6.0,
+        ),
+    ];
+    for (nodes, rod, strap, load) in forms {
+        let text = format!(
+            "material steel {{ E = 29000 ksi; alpha = 6.5e-6 / degF }}
+material alu {{ E = 10000 ksi; alpha = 12.8e-6 / degF }}
+{nodes}
+fix roof
+part rod {{ material = steel; area = 0.5 in^2; ends = {rod}; carries = tension }}
+part strap {{ material = alu; area = 0.75 in^2; ends = {strap}; carries = tension }}
+case dead {{ load grid = {load} kip }}
+case cold {{ temperature = -60 degF }}
+combine hung = dead
+combine chilled = dead + cold
+"
+        );
+        let (m, s) = solve(&text);
+        let (ka, kb) = (29000.0 * 0.5, 10000.0 * 0.75);
+        let p = 6.0 * KIP;
+        let rod = force(&m, &s, "hung", "rod");
+        let strap = force(&m, &s, "hung", "strap");
+        assert!(
+            rel(rod, p * ka / (ka + kb)) < 1e-9,
+            "{nodes} / {rod}: {rod}"
+        );
+        assert!(rel(strap, p * kb / (ka + kb)) < 1e-9, "{nodes}: {strap}");
+        // Cooling shortens the aluminium more: it takes more of the load,
+        // by (α_s − α_a) ΔT L / (1/k_s + 1/k_a) (two-material closed form).
+        let l = 40.0 * IN;
+        let (k1, k2) = (ka * KSI * IN * IN / l, kb * KSI * IN * IN / l);
+        let dt = -60.0 * 5.0 / 9.0;
+        let (a1, a2) = (6.5e-6 * 9.0 / 5.0, 12.8e-6 * 9.0 / 5.0);
+        let locked = (a2 - a1) * dt * l / (1.0 / k1 + 1.0 / k2);
+        let strap_cold = force(&m, &s, "chilled", "strap");
+        assert!(
+            rel(strap_cold, p * kb / (ka + kb) - locked) < 1e-9,
+            "{nodes}: {strap_cold}"
+        );
+    }
+}

@@ -57,6 +57,35 @@ impl Assembly {
         t
     }
 
+    /// The unit vector from a part's first end to its second (on the axis,
+    /// ±1 by their order).
+    fn cosines(&self, dx: f64, dy: f64) -> Vec<f64> {
+        let l = dx.hypot(dy);
+        if self.plane {
+            vec![dx / l, dy / l]
+        } else {
+            vec![dx.signum()]
+        }
+    }
+
+    /// Each part's force from the reference displacements: E·A/L times its
+    /// elongation along its own axis (two-force member, direct stiffness
+    /// method).
+    fn forces(&self, u: &[f64]) -> Vec<f64> {
+        let nd = if self.plane { 2 } else { 1 };
+        self.parts
+            .iter()
+            .map(|&(a, b, ea)| {
+                let (dx, dy) = (self.pos[b].0 - self.pos[a].0, self.pos[b].1 - self.pos[a].1);
+                let c = self.cosines(dx, dy);
+                let elong: f64 = (0..nd)
+                    .map(|d| c[d] * (u[b * nd + d] - u[a * nd + d]))
+                    .sum();
+                ea / dx.hypot(dy) * elong
+            })
+            .collect()
+    }
+
     /// Dense reference: node displacements by LU on the reduced matrix.
     fn dense(&self) -> Vec<f64> {
         let nd = if self.plane { 2 } else { 1 };
@@ -66,11 +95,7 @@ impl Assembly {
         for &(a, b, ea) in &self.parts {
             let (dx, dy) = (self.pos[b].0 - self.pos[a].0, self.pos[b].1 - self.pos[a].1);
             let l = dx.hypot(dy);
-            let c = if self.plane {
-                vec![dx / l, dy / l]
-            } else {
-                vec![1.0]
-            };
+            let c = self.cosines(dx, dy);
             let kk = ea / l;
             for i in 0..nd {
                 for j in 0..nd {
@@ -112,6 +137,12 @@ fn random_axial(rng: &mut Rng) -> Assembly {
         let b = rng.below(n);
         if a != b {
             parts.push((a.min(b), a.max(b), rng.range(1e7, 5e8)));
+        }
+    }
+    // ends in either order along the axis: forces must not depend on it
+    for p in &mut parts {
+        if rng.next() < 0.5 {
+            *p = (p.1, p.0, p.2);
         }
     }
     let mut fixed = vec![[false; 2]; n];
@@ -187,6 +218,15 @@ fn compare(a: &Assembly) {
                 a.text("")
             );
         }
+    }
+    let fscale = r.force_scale.value;
+    for (k, want) in a.forces(&reference).iter().enumerate() {
+        let got = r.parts[k].force.value;
+        assert!(
+            (got - want).abs() <= 1e-8 * fscale,
+            "part p{k}: {got} N vs {want} N\n{}",
+            a.text("")
+        );
     }
     assert!(
         r.equilibrium_residual.value <= 1e-9 * r.force_scale.value,

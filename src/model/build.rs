@@ -222,6 +222,7 @@ impl Scope for LetScope<'_, '_> {
                             .of_kind(NameKind::Let)
                             .chain(CONSTANTS.iter().copied()),
                     )
+                    .or_else(|| crate::units::temperature_hint(&id.name).map(str::to_string))
                     .or_else(|| Some(format!("declare it with `let {} = ...`", id.name))),
             }),
         }
@@ -523,6 +524,8 @@ struct Builder<'t> {
     text: &'t str,
     /// How often each unit name is written in the deferred statements.
     units_used: BTreeMap<String, usize>,
+    /// Materials whose `alpha` is written but did not evaluate.
+    alpha_failed: Vec<String>,
     overrides: Vec<(String, Quantity)>,
     /// Published sources behind each `let`, by name.
     let_sources: HashMap<String, Vec<&'static str>>,
@@ -814,6 +817,7 @@ impl<'t> Builder<'t> {
             limits,
             text,
             units_used: BTreeMap::new(),
+            alpha_failed: Vec::new(),
             overrides: Vec::new(),
             let_sources: HashMap::new(),
         }
@@ -1523,6 +1527,10 @@ impl<'t> Builder<'t> {
         let alpha = self
             .opt(f.quantity("alpha", Dimension::PER_TEMPERATURE, scope))
             .map(|q| TemperatureCoefficient::new::<per_kelvin>(q.value));
+        if alpha.is_none() && f.has("alpha") {
+            // its error is reported; a temperature change does not repeat it
+            self.alpha_failed.push(nb.name.name.to_string());
+        }
         let stress = |key: &str, b: &mut Self, strict: bool| {
             let q = b.opt(f.quantity(key, Dimension::PRESSURE, scope))?;
             if q.value < 0.0 || (strict && q.value == 0.0) {
@@ -2149,7 +2157,10 @@ impl<'t> Builder<'t> {
                     let mut reported: Vec<usize> = Vec::new();
                     for i in affected {
                         if let Some(m) = parts[i].material() {
-                            if materials[m].alpha.is_none() && !reported.contains(&m) {
+                            if materials[m].alpha.is_none()
+                                && !reported.contains(&m)
+                                && !self.alpha_failed.contains(&materials[m].name)
+                            {
                                 reported.push(m);
                                 self.errors.push(ModelError::NoAlpha {
                                     part: parts[i].name.to_string(),

@@ -147,7 +147,9 @@ pub enum Law {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Part {
     pub name: compact_str::CompactString,
-    /// Elongation is measured from `ends[0]` to `ends[1]`.
+    /// Elongation is measured from `ends[0]` to `ends[1]` (along the unit
+    /// vector from the first to the second; in an axial model ±1 by their
+    /// order on the axis).
     pub ends: [usize; 2],
     pub law: Law,
     pub length: Length,
@@ -332,7 +334,9 @@ impl Model {
         let p = &self.parts[part];
         let (a, b) = (&self.nodes[p.ends[0]], &self.nodes[p.ends[1]]);
         match self.kind {
-            Kind::Axial => [1.0, 0.0],
+            // along the axis from A to B; a spring between coincident nodes
+            // measures u(B) − u(A)
+            Kind::Axial => [if b.x < a.x { -1.0 } else { 1.0 }, 0.0],
             Kind::Plane => {
                 let (dx, dy) = ((b.x - a.x).value, (b.y - a.y).value);
                 let l = dx.hypot(dy);

@@ -809,7 +809,10 @@ fn combination(
             }
         }
     }
-    doc.p("Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:");
+    doc.p(match model.kind {
+        Kind::Axial => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ, with ĉ = +1 when B lies further along the axis than A and −1 when it lies back:",
+        Kind::Plane => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:",
+    });
     for p in model.parts.iter().enumerate() {
         let (i, p) = p;
         let (a, b) = (p.ends[0], p.ends[1]);
@@ -817,11 +820,19 @@ fn combination(
         let ua = &r.nodes[a].displacement;
         let ub = &r.nodes[b].displacement;
         match model.kind {
-            Kind::Axial => doc.eq(&format!(
+            // ĉ is +1 or −1 on the axis: the end further along comes first
+            Kind::Axial if model.direction(i)[0] > 0.0 => doc.eq(&format!(
                 "δ({}) = u({nb}) - u({na}) = {} - {} = {}",
                 p.name,
                 f.small_t(ub[0].value),
                 f.small_t(ua[0].value),
+                f.small(r.parts[i].elongation.value)
+            )),
+            Kind::Axial => doc.eq(&format!(
+                "δ({}) = u({na}) - u({nb}) = {} - {} = {}",
+                p.name,
+                f.small_t(ua[0].value),
+                f.small_t(ub[0].value),
                 f.small(r.parts[i].elongation.value)
             )),
             Kind::Plane => {
@@ -1085,11 +1096,14 @@ fn combination(
             f.stiffness(sum)
         };
         for (j, &i) in g.iter().enumerate() {
-            let sign = if model.parts[i].ends[1] == free_node {
+            // a load along the axis pulls a part whose far end lies further
+            // along it, and pushes one whose far end lies back toward it
+            let toward = if model.parts[i].ends[1] == free_node {
                 1.0
             } else {
                 -1.0
             };
+            let sign = toward * model.direction(i)[0];
             let share = sign * p_load * ks[j] / sum;
             doc.eq(&format!(
                 "F({}) = P·k({}) / Σk = {}{} · {} / ({ksum}) = {}",

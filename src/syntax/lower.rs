@@ -1136,9 +1136,13 @@ fn factor_expr(f: UnitFactor) -> Expr {
 
 fn not_a_unit(f: &UnitFactor) -> SyntaxError {
     let names = crate::units::units().iter().map(|u| u.name);
-    let help = match crate::model::did_you_mean(&f.name, names) {
-        Some(s) => format!("{s} To multiply by a value, write `* {}`", f.name),
-        None => format!(
+    let help = match (
+        crate::units::temperature_hint(&f.name),
+        crate::model::did_you_mean(&f.name, names),
+    ) {
+        (Some(h), _) => h.to_string(),
+        (None, Some(s)) => format!("{s} To multiply by a value, write `* {}`", f.name),
+        (None, None) => format!(
             "`tandem units` lists the units; to multiply by a value, write `* {}`",
             f.name
         ),

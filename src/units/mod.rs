@@ -8,6 +8,23 @@ mod table;
 
 pub use table::{lookup, units, Unit};
 
+/// The help for a word an engineer may write for a temperature change that
+/// is not one of tandem's units (`K`, `C`, `F`, ...): temperature changes
+/// are written in `degC` or `degF`. `K` is left free as a name because it
+/// is the usual one for an effective-length factor.
+#[must_use]
+pub fn temperature_hint(word: &str) -> Option<&'static str> {
+    match word {
+        "K" | "kelvin" | "degK" => Some(
+            "temperature changes are written in `degC` (a change of 1 K is 1 degC) or `degF`; a coefficient of expansion per kelvin is `/ degC`",
+        ),
+        "C" | "celsius" | "Celsius" | "F" | "fahrenheit" | "Fahrenheit" | "degc" | "degf" => {
+            Some("temperature changes are written in `degC` or `degF`")
+        }
+        _ => None,
+    }
+}
+
 use std::fmt;
 
 /// Exponents of length, mass, time and temperature, stored in halves so that
