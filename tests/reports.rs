@@ -541,3 +541,68 @@ fn a_tie_within_round_off_keeps_the_first_combination() {
     assert!(!exceeds(1.0, f64::INFINITY));
     assert!(exceeds(1e-20, 0.0));
 }
+
+/// Numbers in reports are printed from their digits; the reference is the
+/// standard library's exact decimal formatting of the rounded value (the
+/// way they were printed before), over values of every everyday magnitude,
+/// both signs, carries into the next decade and every precision.
+#[test]
+#[allow(
+    clippy::cast_possible_truncation,
+    clippy::cast_possible_wrap,
+    clippy::cast_sign_loss
+)]
+fn numbers_print_as_the_standard_formatting_does() {
+    fn reference(v: f64, digits: usize) -> String {
+        let mag = v.abs().log10().floor() as i32;
+        let sig = digits as i32;
+        let scale = 10f64.powi(sig - 1 - mag);
+        let rounded = (v * scale).round() / scale;
+        let mag = if rounded.abs() >= 10f64.powi(mag + 1) {
+            mag + 1
+        } else {
+            mag
+        };
+        let decimals = (sig - 1 - mag).max(0) as usize;
+        let s = format!("{rounded:.decimals$}");
+        if s.trim_start_matches('-')
+            .chars()
+            .all(|c| c == '0' || c == '.')
+        {
+            "0".into()
+        } else {
+            s
+        }
+    }
+    // xorshift, so the values reproduce
+    let mut state = 0x2545_F491_4F6C_DD1Du64;
+    let mut next = || {
+        state ^= state << 13;
+        state ^= state >> 7;
+        state ^= state << 17;
+        (state >> 11) as f64 / (1u64 << 53) as f64
+    };
+    let mut values = vec![
+        9.9996,
+        -9.9996,
+        0.99995,
+        999_999_999.0,
+        1e-6,
+        0.000_123_45,
+        123_456.0,
+    ];
+    for _ in 0..20_000 {
+        let exp = -5.9 + 14.8 * next();
+        let sign = if next() < 0.5 { -1.0 } else { 1.0 };
+        values.push(sign * 10f64.powf(exp));
+    }
+    for v in values {
+        for digits in 1..=15 {
+            let (got, want) = (
+                tandem::report::display::number(v, digits),
+                reference(v, digits),
+            );
+            assert_eq!(got, want, "{v:e} to {digits} figures");
+        }
+    }
+}

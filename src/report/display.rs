@@ -257,26 +257,49 @@ pub fn number(v: f64, digits: usize) -> String {
         let s = format!("{:.*e}", digits - 1, v);
         return s;
     }
-    // `mag` is within -4..9 here, so the conversion is exact
+    // `mag` is within -6..9 here, so the conversion is exact
     #[allow(clippy::cast_possible_truncation)]
     let mag = mag as i32;
     let sig = i32::try_from(digits).unwrap_or(4);
-    let scale = 10f64.powi(sig - 1 - mag);
-    let rounded = (v * scale).round() / scale;
-    // rounding may carry into the next decade (9.9996 -> 10.00)
-    let mag = if rounded.abs() >= 10f64.powi(mag + 1) {
-        mag + 1
-    } else {
-        mag
-    };
-    let decimals = usize::try_from((sig - 1 - mag).max(0)).unwrap_or(0);
-    let s = format!("{rounded:.decimals$}");
-    if s.trim_start_matches('-')
-        .chars()
-        .all(|c| c == '0' || c == '.')
-    {
-        "0".into()
-    } else {
-        s
+    // v ≈ n · 10^-p with n a whole number of `sig` digits (at most 15, so
+    // exact in an i64), printed from its digits: exact-precision float
+    // formatting is slow for the millions of numbers of a large report.
+    let p = sig - 1 - mag;
+    #[allow(clippy::cast_possible_truncation)]
+    let mut n = (v * 10f64.powi(p)).round() as i64;
+    let mut p = p;
+    // rounding may carry into the next decade (9.9996 -> 10.00): one
+    // decimal fewer
+    if n.unsigned_abs() >= 10u64.pow(sig.unsigned_abs()) && p > 0 {
+        n /= 10;
+        p -= 1;
     }
+    if n == 0 {
+        return "0".into();
+    }
+    let mut s = String::with_capacity(24);
+    if n < 0 {
+        s.push('-');
+    }
+    let body = n.unsigned_abs().to_string();
+    if p <= 0 {
+        s.push_str(&body);
+        for _ in 0..(-p) {
+            s.push('0');
+        }
+    } else {
+        let p = p.unsigned_abs() as usize;
+        if body.len() > p {
+            s.push_str(&body[..body.len() - p]);
+            s.push('.');
+            s.push_str(&body[body.len() - p..]);
+        } else {
+            s.push_str("0.");
+            for _ in 0..p - body.len() {
+                s.push('0');
+            }
+            s.push_str(&body);
+        }
+    }
+    s
 }
