@@ -1,5 +1,6 @@
 //! Scaling benchmark: generated assemblies of 10^2 to 10^6 parts, timed for
-//! parse + check and for solve, with the peak memory of the process.
+//! parse, check, solve and the full report, with the peak memory of the
+//! process.
 //!
 //! `cargo bench --bench scale` runs every size; `cargo bench --bench scale --
 //! 100000` stops at that many parts, `-- 1000000 chain` runs one kind, and
@@ -119,8 +120,8 @@ fn main() {
         .skip(1)
         .filter(|a| ["chain", "bundle", "grid"].contains(&a.as_str()))
         .collect();
-    println!("| assembly | parts | unknowns | text MiB | parse s | check s | solve s | report s | peak RSS MiB |");
-    println!("|---|---|---|---|---|---|---|---|---|");
+    println!("| assembly | parts | unknowns | text MiB | parse s | check s | solve s | peak RSS MiB | report s | report MiB | peak after report MiB |");
+    println!("|---|---|---|---|---|---|---|---|---|---|---|");
     let kinds: [(&str, Generator); 3] =
         [("chain", chain), ("bundle", bundle), ("plane grid", grid)];
     for (name, make) in kinds {
@@ -176,8 +177,9 @@ fn main() {
             };
             let t2 = Instant::now();
             let unknowns = sol.unknowns;
-            // The full report (checks, every equation) up to 10^5 parts.
-            let report = if n <= 100_000 {
+            let rss_solved = peak_rss_mib();
+            // The full report: checks, every equation.
+            let (report, report_mib) = {
                 let checks = tandem::checks::evaluate(&model, &sol).unwrap_or_default();
                 let a = tandem::Analysis {
                     model,
@@ -192,13 +194,12 @@ fn main() {
                 let t = Instant::now();
                 let md = tandem::report::markdown::report(&src, &a, &d);
                 let dt = t.elapsed().as_secs_f64();
+                let size = md.len() as f64 / (1024.0 * 1024.0);
                 drop(md);
-                format!("{dt:.3}")
-            } else {
-                "—".into()
+                (dt, size)
             };
             println!(
-                "| {name} | {} | {} | {mib:.1} | {:.3} | {:.3} | {:.3} | {report} | {:.0} |",
+                "| {name} | {} | {} | {mib:.1} | {:.3} | {:.3} | {:.3} | {rss_solved:.0} | {report:.3} | {report_mib:.0} | {:.0} |",
                 n,
                 unknowns,
                 (tp - t0).as_secs_f64(),

@@ -68,3 +68,41 @@ fn errors_in_a_long_file_come_in_file_order() {
         last = at;
     }
 }
+
+/// A long chain held between two fixed ends, every part with its own
+/// temperature change: one force runs through it, N = −Σ α ΔTᵢ Lᵢ / Σ Lᵢ/(E A)
+/// (series compatibility with a zero total elongation, any mechanics of
+/// materials text). Each part's change is found once, not searched for.
+#[test]
+fn a_long_restrained_chain_with_a_temperature_per_part() {
+    let n = 25_000;
+    let mut t = String::from(
+        "material s { E = 29000 ksi; alpha = 6.5e-6 / degF }\nlet a = 2 in^2\nnode n0 at 0 in\nfix n0\n",
+    );
+    for i in 1..=n {
+        let _ = writeln!(t, "node n{i} at {i} in");
+    }
+    let _ = writeln!(t, "fix n{n}");
+    for i in 1..=n {
+        let _ = writeln!(
+            t,
+            "part p{i} {{ material = s; area = a; ends = n{}, n{i} }}",
+            i - 1
+        );
+    }
+    let mut sum_dt = 0.0;
+    for i in 1..=n {
+        let dt = (i % 7) as f64 * 10.0;
+        sum_dt += dt;
+        let _ = writeln!(t, "temperature p{i} = {dt} degF");
+    }
+    let src = tandem::source::Source::new("restrained.tandem", t);
+    let a = tandem::analyse(&src).expect("solves");
+    // in kip and inches: every part 1 in long, E A = 58000 kip
+    let expected_kip = -6.5e-6 * sum_dt / (n as f64 / 58_000.0);
+    let got_kip = a.solution.combinations[0].parts[0].force.value / 4_448.221_615_260_5;
+    assert!(
+        (got_kip - expected_kip).abs() <= 1e-6 * expected_kip.abs(),
+        "{got_kip} kip against {expected_kip} kip"
+    );
+}

@@ -269,6 +269,40 @@ pub struct Case {
     pub span: Span,
 }
 
+impl Case {
+    /// The temperature change acting on each of `parts` parts: its own (the
+    /// first written for it), else the case's change for every part. One
+    /// pass over the case's statements, so that a case with a change for
+    /// each of a million parts stays linear.
+    #[must_use]
+    pub fn temperature_by_part(&self, parts: usize) -> Vec<Option<&Temperature>> {
+        let global = self.temperatures.iter().find(|t| t.part.is_none());
+        let mut out = vec![global; parts];
+        let mut own = vec![false; parts];
+        for t in &self.temperatures {
+            if let Some(i) = t.part {
+                if !own[i] {
+                    own[i] = true;
+                    out[i] = Some(t);
+                }
+            }
+        }
+        out
+    }
+
+    /// The free strain on each of `parts` parts (the first written for it).
+    #[must_use]
+    pub fn strain_by_part(&self, parts: usize) -> Vec<Option<&FreeStrain>> {
+        let mut out = vec![None; parts];
+        for s in &self.strains {
+            if out[s.part].is_none() {
+                out[s.part] = Some(s);
+            }
+        }
+        out
+    }
+}
+
 /// A load combination: factored cases, solved directly.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Combination {

@@ -665,12 +665,15 @@ fn combination(
             }
         }
     }
-    let in_body: Vec<bool> = (0..model.nodes.len())
-        .map(|n| {
-            model.rigids.iter().any(|b| b.nodes.contains(&n))
-                || model.ties.iter().any(|t| t.nodes.contains(&n))
-        })
-        .collect();
+    let mut in_body = vec![false; model.nodes.len()];
+    for n in model
+        .rigids
+        .iter()
+        .flat_map(|b| &b.nodes)
+        .chain(model.ties.iter().flat_map(|t| &t.nodes))
+    {
+        in_body[*n] = true;
+    }
 
     doc.h(3, "Equilibrium");
     let mut first_equation = true;
@@ -905,6 +908,27 @@ fn combination(
     }
 
     doc.h(3, "Part forces and stresses");
+    // each term's temperature change and free strain on every part, found
+    // once (not searched for each part)
+    let np = model.parts.len();
+    let on_part: Vec<_> = combo
+        .terms
+        .iter()
+        .map(|&(case, _)| {
+            let c = &model.cases[case];
+            let t = if c.temperatures.is_empty() {
+                Vec::new()
+            } else {
+                c.temperature_by_part(np)
+            };
+            let s = if c.strains.is_empty() {
+                Vec::new()
+            } else {
+                c.strain_by_part(np)
+            };
+            (t, s)
+        })
+        .collect();
     for (i, p) in model.parts.iter().enumerate() {
         let pr = &r.parts[i];
         let k = p.stiffness(&model.materials).value;
@@ -919,13 +943,8 @@ fn combination(
         }
         if let Some(m) = p.material() {
             let mat = &model.materials[m];
-            for &(case, factor) in &combo.terms {
-                let c = &model.cases[case];
-                let t = c
-                    .temperatures
-                    .iter()
-                    .find(|t| t.part == Some(i))
-                    .or_else(|| c.temperatures.iter().find(|t| t.part.is_none()));
+            for (&(_, factor), (temps, strains)) in combo.terms.iter().zip(&on_part) {
+                let t = temps.get(i).copied().flatten();
                 if let (Some(t), Some(alpha)) = (t, mat.alpha) {
                     sources.push(if (factor - 1.0).abs() > 0.0 {
                         format!("{factor}·α·ΔT·L")
@@ -944,7 +963,7 @@ fn combination(
                         f.with(p.length.value, &f.d.small)
                     ));
                 }
-                if let Some(s) = c.strains.iter().find(|s| s.part == i) {
+                if let Some(s) = strains.get(i).copied().flatten() {
                     let fac = if (factor - 1.0).abs() > 0.0 {
                         format!("{factor} · ")
                     } else {

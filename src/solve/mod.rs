@@ -396,11 +396,14 @@ impl<'m> System<'m> {
             if !take.strains {
                 continue;
             }
-            let global = case.temperatures.iter().find(|t| t.part.is_none());
-            for (i, p) in model.parts.iter().enumerate() {
+            let on_part = if case.temperatures.is_empty() {
+                Vec::new()
+            } else {
+                case.temperature_by_part(model.parts.len())
+            };
+            for ((i, p), t) in model.parts.iter().enumerate().zip(on_part) {
                 let Some(m) = p.material() else { continue };
-                let own = case.temperatures.iter().find(|t| t.part == Some(i));
-                if let Some(t) = own.or(global) {
+                if let Some(t) = t {
                     if let Some(alpha) = model.materials[m].alpha {
                         free[i] += factor * alpha.value * t.change.value * p.length.value;
                     }
