@@ -92,14 +92,14 @@ fn a_long_restrained_chain_with_a_temperature_per_part() {
     }
     let mut sum_dt = 0.0;
     for i in 1..=n {
-        let dt = (i % 7) as f64 * 10.0;
+        let dt = f64::from(i % 7) * 10.0;
         sum_dt += dt;
         let _ = writeln!(t, "temperature p{i} = {dt} degF");
     }
     let src = tandem::source::Source::new("restrained.tandem", t);
     let a = tandem::analyse(&src).expect("solves");
     // in kip and inches: every part 1 in long, E A = 58000 kip
-    let expected_kip = -6.5e-6 * sum_dt / (n as f64 / 58_000.0);
+    let expected_kip = -6.5e-6 * sum_dt / (f64::from(n) / 58_000.0);
     let got_kip = a.solution.combinations[0].parts[0].force.value / 4_448.221_615_260_5;
     assert!(
         (got_kip - expected_kip).abs() <= 1e-6 * expected_kip.abs(),
