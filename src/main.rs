@@ -164,9 +164,17 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         }
     };
     if json {
-        let v = tandem::report::json::solution_json(&source.name, &a);
-        match serde_json::to_string_pretty(&v) {
-            Ok(s) => outln!("{s}"),
+        // written as it is serialized: a million parts never sit in memory
+        // as one tree or one string
+        use std::io::Write as _;
+        let doc = tandem::report::json::document(&source.name, &a);
+        let mut w = std::io::BufWriter::new(std::io::stdout().lock());
+        match serde_json::to_writer_pretty(&mut w, &doc) {
+            // like every other output, a closed pipe is not an error
+            Ok(()) => {
+                let _ = writeln!(w).and_then(|()| w.flush());
+            }
+            Err(e) if e.is_io() => {}
             Err(e) => {
                 errln!("error: {e}");
                 return bad();

@@ -1,180 +1,383 @@
 //! Machine output of `tandem solve --json`: SI base units, keys carry the unit.
+//!
+//! The document is a tree of plain structs serialized as they are written
+//! (not a `serde_json::Value` built first): a million parts are a million
+//! small records, not a million maps of owned keys.
 
-use serde_json::{json, Map, Value};
+// the keys carry their units: `force_N`, `stress_Pa`
+#![allow(non_snake_case)]
+
+use serde::Serialize;
+use serde_json::Value;
 
 use crate::checks::Origin;
-use crate::model::Kind;
+use crate::model::{Kind, Model};
+use crate::solve::CombinationResult;
 
-/// The JSON document for a solved file.
-pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
-    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
-    let plane = model.kind == Kind::Plane;
-    let combos: Vec<Value> = solution
-        .combinations
-        .iter()
-        .map(|r| {
-            let parts: Vec<Value> = model
+/// The JSON document for a solved file, serialized as it is written.
+#[derive(Serialize)]
+pub struct Document<'a> {
+    file: &'a str,
+    model: ModelSummary,
+    combinations: Vec<Combination<'a>>,
+    checks: Vec<CheckOutcome<'a>>,
+    yielded: Vec<Yielded<'a>>,
+    capacity: Vec<Capacity<'a>>,
+    long_term: Vec<LongTerm<'a>>,
+    long_term_checks: Option<Vec<LongTermCheck<'a>>>,
+    buckling: Vec<Buckling<'a>>,
+    warnings: &'a [String],
+}
+
+#[derive(Serialize)]
+struct ModelSummary {
+    kind: &'static str,
+    nodes: usize,
+    parts: usize,
+    unknowns: usize,
+}
+
+#[derive(Serialize)]
+struct Combination<'a> {
+    name: &'a str,
+    parts: Parts<'a>,
+    nodes: Nodes<'a>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    rigid_bodies: Option<Vec<Rotation<'a>>>,
+    #[serde(rename = "equilibrium_residual_N")]
+    equilibrium_residual: f64,
+}
+
+/// Every part's results in one combination, written one record at a time.
+struct Parts<'a>(&'a Model, &'a CombinationResult);
+
+#[derive(Serialize)]
+struct PartRecord<'a> {
+    name: &'a str,
+    force_N: f64,
+    stress_Pa: Option<f64>,
+    strain: f64,
+    elongation_m: f64,
+    state: &'static str,
+}
+
+impl Serialize for Parts<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.collect_seq(
+            self.0
                 .parts
                 .iter()
-                .zip(&r.parts)
-                .map(|(p, pr)| {
-                    json!({
-                        "name": p.name,
-                        "force_N": pr.force.value,
-                        "stress_Pa": pr.stress.map(|s| s.value),
-                        "strain": pr.strain,
-                        "elongation_m": pr.elongation.value,
-                        "state": pr.state.name(),
-                    })
-                })
-                .collect();
-            let nodes: Vec<Value> = model
-                .nodes
-                .iter()
-                .zip(&r.nodes)
-                .map(|(n, nr)| {
-                    if plane {
-                        json!({
-                            "name": n.name,
-                            "displacement_m": [nr.displacement[0].value, nr.displacement[1].value],
-                            "reaction_N": [nr.reaction[0].value, nr.reaction[1].value],
-                        })
-                    } else {
-                        json!({
-                            "name": n.name,
-                            "displacement_m": nr.displacement[0].value,
-                            "reaction_N": nr.reaction[0].value,
-                        })
-                    }
-                })
-                .collect();
-            let mut m = Map::new();
-            m.insert("name".into(), json!(r.name));
-            m.insert("parts".into(), Value::Array(parts));
-            m.insert("nodes".into(), Value::Array(nodes));
-            if plane && !model.rigids.is_empty() {
-                let rot: Vec<Value> = model
+                .zip(&self.1.parts)
+                .map(|(p, pr)| PartRecord {
+                    name: &p.name,
+                    force_N: pr.force.value,
+                    stress_Pa: pr.stress.map(|s| s.value),
+                    strain: pr.strain,
+                    elongation_m: pr.elongation.value,
+                    state: pr.state.name(),
+                }),
+        )
+    }
+}
+
+/// Every node's results in one combination, written one record at a time.
+struct Nodes<'a>(&'a Model, &'a CombinationResult);
+
+#[derive(Serialize)]
+struct AxialNode<'a> {
+    name: &'a str,
+    displacement_m: f64,
+    reaction_N: f64,
+}
+
+#[derive(Serialize)]
+struct PlaneNode<'a> {
+    name: &'a str,
+    displacement_m: [f64; 2],
+    reaction_N: [f64; 2],
+}
+
+impl Serialize for Nodes<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use serde::ser::SerializeSeq;
+        let (model, r) = (self.0, self.1);
+        let mut seq = s.serialize_seq(Some(model.nodes.len()))?;
+        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+            if model.kind == Kind::Plane {
+                seq.serialize_element(&PlaneNode {
+                    name: &n.name,
+                    displacement_m: [nr.displacement[0].value, nr.displacement[1].value],
+                    reaction_N: [nr.reaction[0].value, nr.reaction[1].value],
+                })?;
+            } else {
+                seq.serialize_element(&AxialNode {
+                    name: &n.name,
+                    displacement_m: nr.displacement[0].value,
+                    reaction_N: nr.reaction[0].value,
+                })?;
+            }
+        }
+        seq.end()
+    }
+}
+
+#[derive(Serialize)]
+struct Rotation<'a> {
+    name: &'a str,
+    rotation_rad: f64,
+}
+
+#[derive(Serialize)]
+struct CheckOutcome<'a> {
+    label: &'a str,
+    kind: &'static str,
+    combination: &'a str,
+    demand: f64,
+    capacity: f64,
+    utilization: Option<f64>,
+    pass: bool,
+    governing: bool,
+}
+
+#[derive(Serialize)]
+struct Yielded<'a> {
+    combination: &'a str,
+    part: &'a str,
+    stress_over_yield: f64,
+}
+
+#[derive(Serialize)]
+struct Capacity<'a> {
+    combination: &'a str,
+    first_yield_factor: Option<f64>,
+    plastic_limit_factor: Option<f64>,
+    ratio: Option<f64>,
+    sequence: Vec<YieldEvent<'a>>,
+    #[serde(rename = "limit_forces_N")]
+    limit_forces: Vec<PartForce<'a>>,
+    #[serde(rename = "residual_forces_N")]
+    residual_forces: Vec<PartForce<'a>>,
+    note: &'a Option<String>,
+}
+
+#[derive(Serialize)]
+struct YieldEvent<'a> {
+    part: &'a str,
+    load_factor: f64,
+    sense: &'static str,
+}
+
+#[derive(Serialize)]
+struct PartForce<'a> {
+    part: &'a str,
+    force_N: f64,
+}
+
+#[derive(Serialize)]
+struct LongTerm<'a> {
+    combination: &'a str,
+    note: &'a Option<String>,
+    parts: Option<Vec<LongTermPart<'a>>>,
+}
+
+#[derive(Serialize)]
+struct LongTermPart<'a> {
+    name: &'a str,
+    short_term_force_N: f64,
+    long_term_force_N: f64,
+    short_term_stress_Pa: Option<f64>,
+    long_term_stress_Pa: Option<f64>,
+}
+
+#[derive(Serialize)]
+struct LongTermCheck<'a> {
+    label: &'a str,
+    combination: &'a str,
+    demand: f64,
+    capacity: f64,
+    utilization: Option<f64>,
+    pass: bool,
+}
+
+#[derive(Serialize)]
+struct Buckling<'a> {
+    parts: Vec<&'a str>,
+    effective_length_m: f64,
+    radius_of_gyration_m: Option<f64>,
+    slenderness: Option<f64>,
+    euler_load_N: f64,
+    max_compression_N: f64,
+    combination: &'a str,
+    warnings: Vec<String>,
+}
+
+/// The JSON document for a solved file.
+#[must_use]
+pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
+    let plane = model.kind == Kind::Plane;
+    let combos = &solution.combinations;
+    let combinations = combos
+        .iter()
+        .map(|r| Combination {
+            name: &r.name,
+            parts: Parts(model, r),
+            nodes: Nodes(model, r),
+            rigid_bodies: (plane && !model.rigids.is_empty()).then(|| {
+                model
                     .rigids
                     .iter()
                     .zip(&r.rotations)
-                    .map(|(b, t)| json!({"name": b.name, "rotation_rad": t}))
-                    .collect();
-                m.insert("rigid_bodies".into(), Value::Array(rot));
-            }
-            m.insert(
-                "equilibrium_residual_N".into(),
-                json!(r.equilibrium_residual.value),
-            );
-            Value::Object(m)
+                    .map(|(b, t)| Rotation {
+                        name: &b.name,
+                        rotation_rad: *t,
+                    })
+                    .collect()
+            }),
+            equilibrium_residual: r.equilibrium_residual.value,
         })
         .collect();
-    let governing: std::collections::HashSet<usize> =
-        checks.governing_indices().into_iter().collect();
-    let check_values: Vec<Value> = checks
+    let mut governing = vec![false; checks.outcomes.len()];
+    for k in checks.governing_indices() {
+        governing[k] = true;
+    }
+    let check_values = checks
         .outcomes
         .iter()
-        .enumerate()
-        .map(|(k, o)| {
-            let is_gov = governing.contains(&k);
-            json!({
-                "label": o.label,
-                "kind": match o.origin { Origin::Line(_) => "check", Origin::Allowable(_) => "allowable" },
-                "combination": solution.combinations[o.combination].name,
-                "demand": o.demand.value,
-                "capacity": o.capacity.value,
-                "utilization": o.utilization,
-                "pass": o.pass,
-                "governing": is_gov,
-            })
+        .zip(&governing)
+        .map(|(o, &is_gov)| CheckOutcome {
+            label: &o.label,
+            kind: match o.origin {
+                Origin::Line(_) => "check",
+                Origin::Allowable(_) => "allowable",
+            },
+            combination: &combos[o.combination].name,
+            demand: o.demand.value,
+            capacity: o.capacity.value,
+            utilization: o.utilization,
+            pass: o.pass,
+            governing: is_gov,
         })
         .collect();
-    let yielded: Vec<Value> = checks
+    let yielded = checks
         .yielded
         .iter()
-        .map(|(k, p, ratio)| {
-            json!({
-                "combination": solution.combinations[*k].name,
-                "part": model.parts[*p].name,
-                "stress_over_yield": ratio,
-            })
+        .map(|(k, p, ratio)| Yielded {
+            combination: &combos[*k].name,
+            part: &model.parts[*p].name,
+            stress_over_yield: *ratio,
         })
         .collect();
-    let capacity: Vec<Value> = a
+    let forces = |list: &'a [f64]| -> Vec<PartForce<'a>> {
+        model
+            .parts
+            .iter()
+            .zip(list)
+            .map(|(p, f)| PartForce {
+                part: &p.name,
+                force_N: *f,
+            })
+            .collect()
+    };
+    let capacity = a
         .capacity
         .iter()
-        .map(|c| {
-            json!({
-                "combination": solution.combinations[c.combination].name,
-                "first_yield_factor": c.first_yield,
-                "plastic_limit_factor": c.limit,
-                "ratio": c.first_yield.zip(c.limit).map(|(y, l)| l / y),
-                "sequence": c.events.iter().map(|e| json!({
-                    "part": model.parts[e.part].name,
-                    "load_factor": e.lambda,
-                    "sense": if e.tension { "tension" } else { "compression" },
-                })).collect::<Vec<_>>(),
-                "limit_forces_N": model.parts.iter().zip(&c.limit_forces).map(|(p, f)| json!({"part": p.name, "force_N": f})).collect::<Vec<_>>(),
-                "residual_forces_N": model.parts.iter().zip(&c.residual).map(|(p, f)| json!({"part": p.name, "force_N": f})).collect::<Vec<_>>(),
-                "note": c.note,
-            })
+        .map(|c| Capacity {
+            combination: &combos[c.combination].name,
+            first_yield_factor: c.first_yield,
+            plastic_limit_factor: c.limit,
+            ratio: c.first_yield.zip(c.limit).map(|(y, l)| l / y),
+            sequence: c
+                .events
+                .iter()
+                .map(|e| YieldEvent {
+                    part: &model.parts[e.part].name,
+                    load_factor: e.lambda,
+                    sense: if e.tension { "tension" } else { "compression" },
+                })
+                .collect(),
+            limit_forces: forces(&c.limit_forces),
+            residual_forces: forces(&c.residual),
+            note: &c.note,
         })
         .collect();
-    let long_term: Vec<Value> = a
+    let long_term = a
         .long_term
         .iter()
         .map(|l| {
-            let short = &solution.combinations[l.combination];
-            json!({
-                "combination": short.name,
-                "note": l.note,
-                "parts": l.result.as_ref().map(|r| model.parts.iter().enumerate().map(|(i, p)| json!({
-                    "name": p.name,
-                    "short_term_force_N": short.parts[i].force.value,
-                    "long_term_force_N": r.parts[i].force.value,
-                    "short_term_stress_Pa": short.parts[i].stress.map(|s| s.value),
-                    "long_term_stress_Pa": r.parts[i].stress.map(|s| s.value),
-                })).collect::<Vec<_>>()),
-            })
+            let short = &combos[l.combination];
+            LongTerm {
+                combination: &short.name,
+                note: &l.note,
+                parts: l.result.as_ref().map(|r| {
+                    model
+                        .parts
+                        .iter()
+                        .enumerate()
+                        .map(|(i, p)| LongTermPart {
+                            name: &p.name,
+                            short_term_force_N: short.parts[i].force.value,
+                            long_term_force_N: r.parts[i].force.value,
+                            short_term_stress_Pa: short.parts[i].stress.map(|s| s.value),
+                            long_term_stress_Pa: r.parts[i].stress.map(|s| s.value),
+                        })
+                        .collect()
+                }),
+            }
         })
         .collect();
-    let buckling: Vec<Value> = a
+    let long_term_checks = a.long_term_checks.as_ref().map(|(lt, c)| {
+        c.outcomes
+            .iter()
+            .map(|o| LongTermCheck {
+                label: &o.label,
+                combination: &lt.combinations[o.combination].name,
+                demand: o.demand.value,
+                capacity: o.capacity.value,
+                utilization: o.utilization,
+                pass: o.pass,
+            })
+            .collect()
+    });
+    let buckling = a
         .buckling
         .iter()
-        .map(|b| {
-            json!({
-                "parts": b.parts.iter().map(|&i| model.parts[i].name.clone()).collect::<Vec<_>>(),
-                "effective_length_m": b.kl,
-                "radius_of_gyration_m": b.r,
-                "slenderness": b.slenderness(),
-                "euler_load_N": b.euler,
-                "max_compression_N": b.compression,
-                "combination": solution.combinations[b.combination].name,
-                "warnings": b.warnings(model),
-            })
+        .map(|b| Buckling {
+            parts: b
+                .parts
+                .iter()
+                .map(|&i| model.parts[i].name.as_str())
+                .collect(),
+            effective_length_m: b.kl,
+            radius_of_gyration_m: b.r,
+            slenderness: b.slenderness(),
+            euler_load_N: b.euler,
+            max_compression_N: b.compression,
+            combination: &combos[b.combination].name,
+            warnings: b.warnings(model),
         })
         .collect();
-    json!({
-        "file": file,
-        "model": {
-            "kind": model.kind.name(),
-            "nodes": model.nodes.len(),
-            "parts": model.parts.len(),
-            "unknowns": solution.unknowns,
+    Document {
+        file,
+        model: ModelSummary {
+            kind: model.kind.name(),
+            nodes: model.nodes.len(),
+            parts: model.parts.len(),
+            unknowns: solution.unknowns,
         },
-        "combinations": combos,
-        "checks": check_values,
-        "yielded": yielded,
-        "capacity": capacity,
-        "long_term": long_term,
-        "long_term_checks": a.long_term_checks.as_ref().map(|(lt, c)| c.outcomes.iter().map(|o| json!({
-            "label": o.label,
-            "combination": lt.combinations[o.combination].name,
-            "demand": o.demand.value,
-            "capacity": o.capacity.value,
-            "utilization": o.utilization,
-            "pass": o.pass,
-        })).collect::<Vec<_>>()),
-        "buckling": buckling,
-        "warnings": solution.warnings,
-    })
+        combinations,
+        checks: check_values,
+        yielded,
+        capacity,
+        long_term,
+        long_term_checks,
+        buckling,
+        warnings: &solution.warnings,
+    }
+}
+
+/// The same document as a JSON value (for comparing two documents).
+#[must_use]
+pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
+    serde_json::to_value(document(file, a)).unwrap_or(Value::Null)
 }
