@@ -77,6 +77,20 @@ fn syntax_errors_in_deferred_statements_are_the_full_parse_errors() {
         );
         same(&format!("case {i}"), &text);
     }
+    // A model error that ends the build early (no nodes at all, too many
+    // declarations) must not hide a syntax error in a deferred part.
+    for text in [
+        "material s { E = 1 ksi }\npart p { material = s; area = 1.n }\n",
+        "tie a, b\npart p { material = s; area = 2 \u{19} * a; ends = a, b }\n",
+    ] {
+        let errors = tandem::check(&Source::new("early.tandem", text.to_string()))
+            .expect_err("syntax errors");
+        assert!(
+            errors.iter().all(|e| matches!(e, tandem::Error::Syntax(_))),
+            "{errors:#?}"
+        );
+        same("early", text);
+    }
 }
 
 /// Nodes and parts beyond 20,000 are built on every core from their

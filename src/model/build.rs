@@ -346,7 +346,29 @@ pub fn build_outline(
     text: &str,
     limits: Limits,
 ) -> Result<Model, Vec<ModelError>> {
-    Builder::new(limits, text).run(file).map_err(syntax_first)
+    Builder::new(limits, text).run(file).map_err(|errors| {
+        let errors = syntax_first(errors);
+        if errors.iter().any(|e| matches!(e, ModelError::Syntax(_))) {
+            return errors;
+        }
+        // A model error can end the build before every deferred statement
+        // was read (a file without nodes, say); a syntax error among them
+        // still comes first and alone, as after a full parse.
+        let syntax: Vec<ModelError> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Deferred(stub) => crate::syntax::expand(text, stub).err(),
+                _ => None,
+            })
+            .map(|e| ModelError::Syntax(Box::new(e)))
+            .collect();
+        if syntax.is_empty() {
+            errors
+        } else {
+            syntax_first(syntax)
+        }
+    })
 }
 
 /// When a deferred statement had a syntax error, only the syntax errors (in
