@@ -509,18 +509,37 @@ fn reserved(name: &str) -> Option<&'static str> {
     words.get(name).copied()
 }
 
-/// A node to build: parsed, or deferred (parsed when it is built).
-#[derive(Clone, Copy)]
-enum NodeSrc<'a> {
-    Parsed(&'a ast::Node),
+/// A node or part to build: parsed, or deferred (parsed when it is built).
+enum Src<'a, T> {
+    Parsed(&'a T),
     Deferred(&'a ast::Stub),
 }
 
-/// A part to build: parsed, or deferred (parsed when it is built).
-#[derive(Clone, Copy)]
-enum PartSrc<'a> {
-    Parsed(&'a ast::NamedBlock),
-    Deferred(&'a ast::Stub),
+impl<T> Clone for Src<'_, T> {
+    fn clone(&self) -> Self {
+        *self
+    }
+}
+
+impl<T> Copy for Src<'_, T> {}
+
+type NodeSrc<'a> = Src<'a, ast::Node>;
+type PartSrc<'a> = Src<'a, ast::NamedBlock>;
+
+/// The declarations of one kind in file order, parsed (`parsed`) or
+/// deferred (stubs of `kind`).
+fn sources<'a, T>(
+    file: &'a ast::File,
+    kind: StubKind,
+    parsed: impl Fn(&'a Decl) -> Option<&'a T>,
+) -> Vec<Src<'a, T>> {
+    file.decls
+        .iter()
+        .filter_map(|d| match d {
+            Decl::Deferred(s) if s.kind == kind => Some(Src::Deferred(s)),
+            d => parsed(d).map(Src::Parsed),
+        })
+        .collect()
 }
 
 /// Build with some `let`s given fixed values instead of their expressions
@@ -1089,15 +1108,10 @@ impl<'t> Builder<'t> {
             }
         }
         // Nodes: the first fixes the kind of model, which the rest must share.
-        let node_decls: Vec<NodeSrc<'_>> = file
-            .decls
-            .iter()
-            .filter_map(|d| match d {
-                Decl::Node(n) => Some(NodeSrc::Parsed(n)),
-                Decl::Deferred(s) if s.kind == StubKind::Node => Some(NodeSrc::Deferred(s)),
-                _ => None,
-            })
-            .collect();
+        let node_decls = sources(file, StubKind::Node, |d| match d {
+            Decl::Node(n) => Some(&**n),
+            _ => None,
+        });
         let mut nodes: Vec<Node> = Vec::with_capacity(node_decls.len());
         if let Some(&first) = node_decls.first() {
             nodes.push(self.node_src(first, &scope, &mut kind));
@@ -1142,15 +1156,10 @@ impl<'t> Builder<'t> {
         }
 
         // Parts.
-        let part_decls: Vec<PartSrc<'_>> = file
-            .decls
-            .iter()
-            .filter_map(|d| match d {
-                Decl::Part(nb) => Some(PartSrc::Parsed(nb)),
-                Decl::Deferred(s) if s.kind == StubKind::Part => Some(PartSrc::Deferred(s)),
-                _ => None,
-            })
-            .collect();
+        let part_decls = sources(file, StubKind::Part, |d| match d {
+            Decl::Part(nb) => Some(&**nb),
+            _ => None,
+        });
         let parts = self.parts(&part_decls, &scope, &names, &materials, &nodes, kind);
 
         // Rigid bodies and ties.
@@ -1457,8 +1466,8 @@ impl<'t> Builder<'t> {
         kind: &mut Option<(Kind, Span)>,
     ) -> Node {
         match src {
-            NodeSrc::Parsed(n) => self.node(n, scope, kind),
-            NodeSrc::Deferred(stub) => match self.expand(stub) {
+            Src::Parsed(n) => self.node(n, scope, kind),
+            Src::Deferred(stub) => match self.expand(stub) {
                 Some(Decl::Node(n)) => self.node(&n, scope, kind),
                 // keeps the numbering of nodes; the syntax error is the result
                 _ => Node {
@@ -1709,8 +1718,8 @@ impl<'t> Builder<'t> {
         kind: Kind,
     ) -> Option<Part> {
         match src {
-            PartSrc::Parsed(nb) => self.part(nb, scope, names, materials, nodes, kind),
-            PartSrc::Deferred(stub) => match self.expand(stub)? {
+            Src::Parsed(nb) => self.part(nb, scope, names, materials, nodes, kind),
+            Src::Deferred(stub) => match self.expand(stub)? {
                 Decl::Part(nb) => self.part(&nb, scope, names, materials, nodes, kind),
                 _ => None,
             },

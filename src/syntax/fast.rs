@@ -29,14 +29,7 @@ use crate::units::lookup;
 /// `trim` keeps every list at its length: for a tree that is kept (a million
 /// blocks make the growth slack count), not for one dropped at once.
 pub(super) fn statement(chunk: &str, base: usize, trim: bool) -> Option<Decl> {
-    let mut p = P {
-        s: chunk.as_bytes(),
-        text: chunk,
-        pos: 0,
-        base,
-        bad: false,
-        trim,
-    };
+    let mut p = P::new(chunk, base, trim);
     let d = p.decl()?;
     p.skip();
     if p.pos != p.s.len() || p.bad {
@@ -49,14 +42,7 @@ pub(super) fn statement(chunk: &str, base: usize, trim: bool) -> Option<Decl> {
 /// `at` or the opening brace after it) as a stub for the outline parse;
 /// `None` for any other statement. The rest is read when it is built.
 pub(super) fn head(chunk: &str, base: usize) -> Option<Stub> {
-    let mut p = P {
-        s: chunk.as_bytes(),
-        text: chunk,
-        pos: 0,
-        base,
-        bad: false,
-        trim: false,
-    };
+    let mut p = P::new(chunk, base, false);
     let kind = if p.keyword("node") {
         StubKind::Node
     } else if p.keyword("part") {
@@ -99,7 +85,19 @@ fn ident_char(b: u8) -> bool {
     b.is_ascii_alphanumeric() || b == b'_'
 }
 
-impl P<'_> {
+impl<'a> P<'a> {
+    /// A parser at the start of `chunk`, which begins at `base` in the file.
+    fn new(chunk: &'a str, base: usize, trim: bool) -> Self {
+        P {
+            s: chunk.as_bytes(),
+            text: chunk,
+            pos: 0,
+            base,
+            bad: false,
+            trim,
+        }
+    }
+
     fn mark(&self) -> Mark {
         Mark(self.pos, self.bad)
     }
