@@ -347,13 +347,10 @@ pub fn build_outline(
     limits: Limits,
 ) -> Result<Model, Vec<ModelError>> {
     Builder::new(limits, text).run(file).map_err(|errors| {
-        let errors = syntax_first(errors);
-        if errors.iter().any(|e| matches!(e, ModelError::Syntax(_))) {
-            return errors;
-        }
-        // A model error can end the build before every deferred statement
-        // was read (a file without nodes, say); a syntax error among them
-        // still comes first and alone, as after a full parse.
+        // An error can end the build before every deferred statement was
+        // read (a file without nodes, a first node that does not parse);
+        // every syntax error among them still comes first and alone, as
+        // after a full parse. So, on failure, all of them are read.
         let syntax: Vec<ModelError> = file
             .decls
             .iter()
