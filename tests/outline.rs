@@ -83,7 +83,7 @@ fn syntax_errors_in_deferred_statements_are_the_full_parse_errors() {
         "material s { E = 1 ksi }\npart p { material = s; area = 1.n }\n",
         "tie a, b\npart p { material = s; area = 2 \u{19} * a; ends = a, b }\n",
         // the first node does not parse, so the kind of model is unknown
-        "node a at (0 fq, 0 ft)\nnode b at (1 ft, 0 ft)\npart p { ends = a {\n  load b = (0 kip, 1 kip)\n}\n",
+        "node a at (0 fq, 0 ft)\nnode b at (1 ft, 0 ft)\npart p { ends = a {\n  load b = (0 kip, 1 kip)\n}\n}\n",
     ] {
         let errors = tandem::check(&Source::new("early.tandem", text.to_string()))
             .expect_err("syntax errors");
