@@ -138,6 +138,21 @@ fn pct(u: Option<f64>) -> String {
 
 /// Write the whole calculation for an analysed file.
 #[allow(clippy::too_many_lines)]
+/// The status-line outcome of `n` governing checks of which `fails` fail,
+/// in plain English ("both checks pass", "1 of 3 checks fails").
+fn checks_outcome(n: usize, fails: usize) -> String {
+    match (n, fails) {
+        (1, 0) => "the one check passes".to_string(),
+        (2, 0) => "both checks pass".to_string(),
+        (n, 0) => format!("all {n} checks pass"),
+        (1, _) => "**the one check fails**".to_string(),
+        (2, 2) => "**both checks fail**".to_string(),
+        (n, f) if f == n => format!("**all {n} checks fail**"),
+        (n, 1) => format!("**1 of {n} checks fails**"),
+        (n, f) => format!("**{f} of {n} checks fail**"),
+    }
+}
+
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
     let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let f = Fmt { d: display };
@@ -165,10 +180,8 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     let fails = checks.failures();
     let status = if governing.is_empty() {
         "no checks are written in this calc".to_string()
-    } else if fails == 0 {
-        format!("all {} checks pass", governing.len())
     } else {
-        format!("**{fails} of {} checks fail**", governing.len())
+        checks_outcome(governing.len(), fails)
     };
     let highest = checks.highest().map_or(String::new(), |o| {
         format!(
@@ -179,12 +192,9 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         )
     });
     let long = match &a.long_term_checks {
-        Some((_, c)) if c.failures() > 0 => {
-            format!("; **{} checks fail in the long-term state**", c.failures())
-        }
         Some((_, c)) => format!(
-            "; all {} checks pass in the long-term state",
-            c.governing().len()
+            "; {} in the long-term state",
+            checks_outcome(c.governing().len(), c.failures())
         ),
         None => String::new(),
     };
@@ -1506,4 +1516,23 @@ fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
         ));
     }
     doc.end_list();
+}
+
+#[cfg(test)]
+mod tests {
+    use super::checks_outcome;
+
+    #[test]
+    fn the_status_line_counts_checks_in_plain_english() {
+        // Agreement of number in English (common practice): one check
+        // passes, two checks pass.
+        assert_eq!(checks_outcome(1, 0), "the one check passes");
+        assert_eq!(checks_outcome(2, 0), "both checks pass");
+        assert_eq!(checks_outcome(5, 0), "all 5 checks pass");
+        assert_eq!(checks_outcome(1, 1), "**the one check fails**");
+        assert_eq!(checks_outcome(2, 1), "**1 of 2 checks fails**");
+        assert_eq!(checks_outcome(2, 2), "**both checks fail**");
+        assert_eq!(checks_outcome(4, 4), "**all 4 checks fail**");
+        assert_eq!(checks_outcome(4, 3), "**3 of 4 checks fail**");
+    }
 }
