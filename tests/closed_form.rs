@@ -491,3 +491,62 @@ combine chilled = dead + cold
         );
     }
 }
+
+/// A rigid beam hung from three vertical rods at x₁, x₂, x₃, the middle one
+/// with a gap g, free to move vertically and rotate. Rigid-body kinematics
+/// and equilibrium (mechanics of materials, rigid bar on elastic supports):
+/// rod i stretches u + t·xᵢ, so with the gap closed
+/// [Σk, Σkx; Σkx, Σkx²]·[u; t] = [W + k₂g; M + k₂x₂g], solved by Cramer's
+/// rule. With a light load the middle rod stays slack and the outer two
+/// carry the load by statics alone (lever rule).
+#[test]
+fn rigid_beam_on_three_rods_one_with_a_gap() {
+    let text = "
+material steel { E = 29000 ksi }
+material stainless { E = 28000 ksi }
+node top_a at (0 in, 100 in)
+node top_b at (50 in, 80 in)
+node top_c at (120 in, 100 in)
+node a at (0 in, 0 in)
+node b at (50 in, 0 in)
+node c at (120 in, 0 in)
+fix top_a, top_b, top_c
+fix a x
+rigid beam { nodes = a, b, c }
+part ra { material = steel; area = 0.3 in^2; ends = top_a, a; carries = tension }
+part rb { material = stainless; area = 0.3 in^2; ends = top_b, b; carries = tension; slack = 0.04 in }
+part rc { material = steel; area = 0.3 in^2; ends = top_c, c; carries = tension }
+case heavy { load b = (0 kip, -4 kip); load c = (0 kip, -6 kip) }
+case light { load b = (0 kip, -1 kip) }
+";
+    let (m, s) = solve(text);
+    let k = |e: f64, l: f64| e * KSI * 0.3 * IN * IN / (l * IN);
+    let (ka, kb, kc) = (k(29000.0, 100.0), k(28000.0, 80.0), k(29000.0, 100.0));
+    let (xa, xb, xc) = (0.0, 50.0 * IN, 120.0 * IN);
+    let g = 0.04 * IN;
+
+    // heavy: every rod engaged
+    let w = 10.0 * KIP;
+    let mo = 4.0 * KIP * xb + 6.0 * KIP * xc;
+    let s0 = ka + kb + kc;
+    let s1 = ka * xa + kb * xb + kc * xc;
+    let s2 = ka * xa * xa + kb * xb * xb + kc * xc * xc;
+    let (r0, r1) = (w + kb * g, mo + kb * xb * g);
+    let det = s0 * s2 - s1 * s1;
+    let u = (r0 * s2 - s1 * r1) / det;
+    let t = (s0 * r1 - s1 * r0) / det;
+    assert!(u + t * xb > g, "the gap closes in this scenario");
+    assert!(rel(force(&m, &s, "heavy", "ra"), ka * (u + t * xa)) < 1e-9);
+    assert!(rel(force(&m, &s, "heavy", "rb"), kb * (u + t * xb - g)) < 1e-9);
+    assert!(rel(force(&m, &s, "heavy", "rc"), kc * (u + t * xc)) < 1e-9);
+
+    // light: 1 kip at b, lever rule between a and c
+    let p = KIP;
+    assert!(rel(force(&m, &s, "light", "rc"), p * xb / xc) < 1e-9);
+    assert!(rel(force(&m, &s, "light", "ra"), p * (xc - xb) / xc) < 1e-9);
+    assert_eq!(force(&m, &s, "light", "rb"), 0.0);
+    // and the middle rod's end has not moved down as far as its gap
+    let ua = p * (xc - xb) / xc / ka;
+    let uc = p * xb / xc / kc;
+    assert!(ua + (uc - ua) * xb / xc < g);
+}

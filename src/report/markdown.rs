@@ -745,7 +745,9 @@ fn combination(
             ));
         }
     }
-    doc.end_list();
+    if !first_equation {
+        doc.end_list();
+    }
     for b in &model.rigids {
         if model.kind != Kind::Plane {
             continue;
@@ -788,7 +790,16 @@ fn combination(
             model.nodes[b.nodes[0]].name
         ));
         for d in 0..2 {
-            if !fsum[d].is_empty() {
+            if fsum[d].is_empty() {
+                // Said rather than left out, so that the reader sees both
+                // directions were looked at.
+                doc.eq(&format!(
+                    "ΣF{} = {}: no net force in {} on any of its nodes",
+                    axis[d],
+                    f.force(0.0),
+                    axis[d]
+                ));
+            } else {
                 doc.eq(&format!(
                     "ΣF{} = {} = {}",
                     axis[d],
