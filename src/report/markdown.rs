@@ -1520,8 +1520,10 @@ fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             .collect::<Vec<_>>()
             .join(" + ");
         let kl = f.with(b.kl, &f.d.small);
+        // Σ only where a group of parts buckles together.
+        let ei = if b.parts.len() > 1 { "Σ E·I" } else { "E·I" };
         doc.eq(&format!(
-            "P_e({}) = π² · Σ E·I / (K·L)² = π² · ({ei_text}) / ({kl} · {kl}) = {}",
+            "P_e({}) = π² · {ei} / (K·L)² = π² · ({ei_text}) / ({kl} · {kl}) = {}",
             names.join(" + "),
             f.force(b.euler)
         ));
