@@ -166,6 +166,9 @@ fn main() {
                 (t1 - tp).as_secs_f64(),
                 peak_rss_mib()
             );
+            if std::env::var_os("STOP_AFTER_CHECK").is_some() {
+                std::process::exit(0);
+            }
             // As `tandem::check` does, the syntax tree goes once the model is built.
             tandem::release(file);
             let sol = match tandem::solve::solve(&model) {

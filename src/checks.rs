@@ -5,8 +5,9 @@
 use crate::model::eval::{constant, eval, Scope};
 use crate::model::{Kind, Model, ModelError};
 use crate::solve::{CombinationResult, Solution};
-use crate::syntax::ast::{Compare, Ident};
+use crate::syntax::ast::{Compare, ExprKind, Ident};
 use crate::units::{Dimension, Quantity};
+use std::collections::{HashMap, HashSet};
 
 /// Where a check comes from.
 #[derive(Clone, Debug, PartialEq)]
@@ -123,10 +124,77 @@ pub fn exceeds(a: f64, b: f64) -> bool {
     a > b && a - b > 1e-9 * b.abs()
 }
 
+/// A part or a node, by its index in the model.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Object {
+    Part(usize),
+    Node(usize),
+}
+
+/// Where each name the checks refer to lives in the model, found in one
+/// pass over its lets, parts and nodes: evaluating a check then costs no
+/// search through the model per reference (many checks on a large model
+/// would otherwise cost checks × parts).
+#[derive(Debug, Default)]
+pub struct Refs<'a> {
+    lets: HashMap<&'a str, usize>,
+    objects: HashMap<&'a str, Object>,
+}
+
+impl<'a> Refs<'a> {
+    /// The names the model's checks refer to, and `extra` objects (the
+    /// results a sweep tabulates).
+    #[must_use]
+    pub fn new(model: &'a Model, extra: &[&str]) -> Self {
+        let mut wanted: HashSet<&str> = extra.iter().copied().collect();
+        for c in &model.checks {
+            for e in [&c.lhs, &c.rhs] {
+                e.visit(&mut |x| match &x.kind {
+                    ExprKind::Name(id) => {
+                        wanted.insert(id.name.as_str());
+                    }
+                    ExprKind::Field(f) => {
+                        wanted.insert(f[0].name.as_str());
+                    }
+                    _ => {}
+                });
+            }
+        }
+        let mut refs = Refs::default();
+        if wanted.is_empty() {
+            return refs;
+        }
+        // the first of a name wins, and a part before a node, as a search
+        // through the model in that order would find
+        for (i, l) in model.lets.iter().enumerate() {
+            if wanted.contains(l.name.as_str()) {
+                refs.lets.entry(l.name.as_str()).or_insert(i);
+            }
+        }
+        for (i, p) in model.parts.iter().enumerate() {
+            if wanted.contains(p.name.as_str()) {
+                refs.objects
+                    .entry(p.name.as_str())
+                    .or_insert(Object::Part(i));
+            }
+        }
+        for (i, n) in model.nodes.iter().enumerate() {
+            if wanted.contains(n.name.as_str()) {
+                refs.objects
+                    .entry(n.name.as_str())
+                    .or_insert(Object::Node(i));
+            }
+        }
+        refs
+    }
+}
+
 /// Looks up results of one combination while evaluating a check.
 pub struct ResultScope<'a> {
     pub model: &'a Model,
     pub result: &'a CombinationResult,
+    /// Built once for the model (`Refs::new`) and shared by every scope.
+    pub refs: &'a Refs<'a>,
 }
 
 impl Scope for ResultScope<'_> {
@@ -134,14 +202,17 @@ impl Scope for ResultScope<'_> {
         if let Some(v) = constant(&id.name) {
             return Ok(Quantity::number(v));
         }
-        self.model
-            .let_value(&id.name)
+        self.refs
+            .lets
+            .get(id.name.as_str())
+            .map(|&i| self.model.lets[i].value)
             .ok_or_else(ModelError::poisoned)
     }
 
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
         let m = self.model;
-        if let Some(i) = m.part_index(&object.name) {
+        let found = self.refs.objects.get(object.name.as_str()).copied();
+        if let Some(Object::Part(i)) = found {
             let p = &self.result.parts[i];
             return Ok(match field.name.as_str() {
                 "force" => Quantity::new(p.force.value, Dimension::FORCE),
@@ -150,7 +221,7 @@ impl Scope for ResultScope<'_> {
                 _ => Quantity::new(p.elongation.value, Dimension::LENGTH),
             });
         }
-        if let Some(i) = m.node_index(&object.name) {
+        if let Some(Object::Node(i)) = found {
             let n = &self.result.nodes[i];
             return Ok(match (m.kind, field.name.as_str()) {
                 (Kind::Axial, "displacement") | (Kind::Plane, "dx") => {
@@ -173,12 +244,18 @@ fn outcome(
     op: Compare,
     rhs: Quantity,
 ) -> Outcome {
-    let pass = match op {
-        Compare::Le => lhs.value <= rhs.value,
-        Compare::Lt => lhs.value < rhs.value,
-        Compare::Ge => lhs.value >= rhs.value,
-        Compare::Gt => lhs.value > rhs.value,
-    };
+    // Sides equal within round-off (`exceeds`) count as equal: a stress of
+    // 1 kN over 10 mm² against 100 MPa passes `<=` and fails `<`, although
+    // the floating-point quotient is a last digit above 100 MPa.
+    let (l, r) = (lhs.value, rhs.value);
+    let pass = !l.is_nan()
+        && !r.is_nan()
+        && match op {
+            Compare::Le => !exceeds(l, r),
+            Compare::Lt => exceeds(r, l),
+            Compare::Ge => !exceeds(r, l),
+            Compare::Gt => exceeds(l, r),
+        };
     // For `a <= b` the demand is a and the capacity b; for `a >= b` the
     // requirement reads "a must reach b", so b is the demand.
     let (demand, capacity) = match op {
@@ -210,9 +287,14 @@ fn outcome(
 /// A check that cannot be evaluated (e.g. a division by a zero result).
 pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
+    let refs = Refs::new(model, &[]);
     for (ci, check) in model.checks.iter().enumerate() {
         for (k, result) in solution.combinations.iter().enumerate() {
-            let scope = ResultScope { model, result };
+            let scope = ResultScope {
+                model,
+                result,
+                refs: &refs,
+            };
             let l = eval(&check.lhs, &scope)?;
             let r = eval(&check.rhs, &scope)?;
             out.outcomes.push(outcome(

@@ -506,6 +506,21 @@ fn reserved(name: &str) -> Option<&'static str> {
     words.get(name).copied()
 }
 
+/// What a case refers to: the built materials, parts and nodes, and for
+/// each part declaration its place among the parts (empty when all built).
+#[derive(Clone, Copy)]
+struct Built<'m> {
+    materials: &'m [Material],
+    parts: &'m [Part],
+    part_at: &'m [Option<usize>],
+    nodes: &'m [Node],
+    kind: Kind,
+}
+
+/// The materials that built, and for each material declaration its place
+/// among them (`None` if it did not build).
+type Materials<'m> = (&'m [Material], &'m [Option<usize>]);
+
 /// A node or part to build: parsed, or deferred (parsed when it is built).
 enum Src<'a, T> {
     Parsed(&'a T),
@@ -1079,6 +1094,8 @@ impl<'t> Builder<'t> {
 
         let mut title = Title::default();
         let mut materials = Vec::new();
+        // for each material declaration, its place in `materials` if it built
+        let mut material_at: Vec<Option<usize>> = Vec::new();
         let mut kind: Option<(Kind, Span)> = None;
         let mut units = UnitChoice::Auto;
 
@@ -1110,9 +1127,9 @@ impl<'t> Builder<'t> {
                     }
                 }
                 Decl::Material(nb) => {
-                    if let Some(m) = self.material(nb, &scope) {
-                        materials.push(m);
-                    }
+                    let built = self.material(nb, &scope);
+                    material_at.push(built.as_ref().map(|_| materials.len()));
+                    materials.extend(built);
                 }
                 Decl::Units(u) => units = self.units(u),
                 _ => {}
@@ -1171,7 +1188,25 @@ impl<'t> Builder<'t> {
             Decl::Part(nb) => Some(&**nb),
             _ => None,
         });
-        let parts = self.parts(&part_decls, &scope, &names, &materials, &nodes, kind);
+        let parts = self.parts(
+            &part_decls,
+            &scope,
+            &names,
+            (&materials, &material_at),
+            &nodes,
+            kind,
+        );
+        // For each part declaration, its place in `parts`; needed only when
+        // a part failed to build (otherwise the i-th declared is parts[i]).
+        let mut part_at: Vec<Option<usize>> = Vec::new();
+        if parts.len() != part_decls.len() {
+            part_at.resize(part_decls.len(), None);
+            for (k, p) in parts.iter().enumerate() {
+                if let Some((NameKind::Part, i, _)) = names.get(&p.name) {
+                    part_at[i].get_or_insert(k);
+                }
+            }
+        }
 
         // Rigid bodies and ties.
         let mut rigids = Vec::new();
@@ -1283,7 +1318,13 @@ impl<'t> Builder<'t> {
                         c.span,
                         &scope,
                         &names,
-                        (&materials, &parts, &nodes, kind),
+                        Built {
+                            materials: &materials,
+                            parts: &parts,
+                            part_at: &part_at,
+                            nodes: &nodes,
+                            kind,
+                        },
                     );
                     cases.push(case);
                 }
@@ -1305,7 +1346,13 @@ impl<'t> Builder<'t> {
                 Span::new(0, 0),
                 &scope,
                 &names,
-                (&materials, &parts, &nodes, kind),
+                Built {
+                    materials: &materials,
+                    parts: &parts,
+                    part_at: &part_at,
+                    nodes: &nodes,
+                    kind,
+                },
             );
             cases.push(case);
         }
@@ -1655,7 +1702,7 @@ impl<'t> Builder<'t> {
         decls: &[PartSrc<'_>],
         scope: &LetScope<'_, '_>,
         names: &Names<'_>,
-        materials: &[Material],
+        materials: Materials<'_>,
         nodes: &[Node],
         kind: Kind,
     ) -> Vec<Part> {
@@ -1724,7 +1771,7 @@ impl<'t> Builder<'t> {
         src: PartSrc<'_>,
         scope: &dyn Scope,
         names: &Names<'_>,
-        materials: &[Material],
+        materials: Materials<'_>,
         nodes: &[Node],
         kind: Kind,
     ) -> Option<Part> {
@@ -1743,7 +1790,7 @@ impl<'t> Builder<'t> {
         nb: &ast::NamedBlock,
         scope: &dyn Scope,
         names: &Names<'_>,
-        materials: &[Material],
+        materials: Materials<'_>,
         nodes: &[Node],
         kind: Kind,
     ) -> Option<Part> {
@@ -1761,6 +1808,7 @@ impl<'t> Builder<'t> {
             "slenderness_limit",
             "euler_fraction",
         ];
+        let (materials, material_at) = materials;
         let pname = &nb.name.name;
         let what = What::named("part", pname);
         let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
@@ -1846,7 +1894,7 @@ impl<'t> Builder<'t> {
                     Some(list) if list.len() == 1 => {
                         let i = self.ok(names.resolve(list[0], NameKind::Material));
                         // only materials that built are in `materials`
-                        i.and_then(|_| materials.iter().position(|m| m.name == list[0].name))
+                        i.and_then(|i| material_at.get(i).copied().flatten())
                     }
                     Some(list) => {
                         self.errors.push(ModelError::Expected {
@@ -2083,8 +2131,15 @@ impl<'t> Builder<'t> {
         span: Span,
         scope: &dyn Scope,
         names: &Names<'_>,
-        (materials, parts, nodes, kind): (&[Material], &[Part], &[Node], Kind),
+        built: Built<'_>,
     ) -> Case {
+        let Built {
+            materials,
+            parts,
+            part_at,
+            nodes,
+            kind,
+        } = built;
         let mut case = Case {
             name: name.to_string(),
             sustained,
@@ -2115,7 +2170,7 @@ impl<'t> Builder<'t> {
             if parts.get(i).is_some_and(|p| p.name == id.name) {
                 Some(i)
             } else {
-                parts.iter().position(|p| p.name == id.name)
+                part_at.get(i).copied().flatten()
             }
         };
         let mut seen_temp: HashMap<Option<usize>, Span> = HashMap::new();

@@ -162,6 +162,8 @@ impl<'a> Sweeper<'a> {
             .map(|o| o.utilization.unwrap_or(f64::INFINITY))
             .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
         let per_check = checks.governing().iter().map(|o| o.utilization).collect();
+        let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
+        let refs = crate::checks::Refs::new(&model, &objects);
         let shown = self
             .shown
             .iter()
@@ -171,6 +173,7 @@ impl<'a> Sweeper<'a> {
                     let scope = crate::checks::ResultScope {
                         model: &model,
                         result: r,
+                        refs: &refs,
                     };
                     let id = |n: &str| ast::Ident {
                         name: n.into(),
