@@ -3,7 +3,7 @@
 
 use std::collections::BTreeMap;
 
-use foldhash::{HashMap, HashMapExt};
+use foldhash::{HashMap, HashMapExt, HashSet, HashSetExt};
 
 use uom::si::area::square_meter;
 use uom::si::f64::{
@@ -578,7 +578,7 @@ struct Builder<'t> {
     /// How often each unit name is written in the deferred statements.
     units_used: BTreeMap<String, usize>,
     /// Materials whose `alpha` is written but did not evaluate.
-    alpha_failed: Vec<String>,
+    alpha_failed: HashSet<String>,
     overrides: Vec<(String, Quantity)>,
     /// Published sources behind each `let`, by name.
     let_sources: HashMap<String, Vec<&'static str>>,
@@ -884,7 +884,7 @@ impl<'t> Builder<'t> {
             limits,
             text,
             units_used: BTreeMap::new(),
-            alpha_failed: Vec::new(),
+            alpha_failed: HashSet::new(),
             overrides: Vec::new(),
             let_sources: HashMap::new(),
         }
@@ -1618,7 +1618,7 @@ impl<'t> Builder<'t> {
             .map(|q| TemperatureCoefficient::new::<per_kelvin>(q.value));
         if alpha.is_none() && f.has("alpha") {
             // its error is reported; a temperature change does not repeat it
-            self.alpha_failed.push(nb.name.name.to_string());
+            self.alpha_failed.insert(nb.name.name.to_string());
         }
         let stress = |key: &str, b: &mut Self, strict: bool| {
             let q = b.opt(f.quantity(key, Dimension::PRESSURE, scope))?;
@@ -2251,14 +2251,14 @@ impl<'t> Builder<'t> {
                         Some(i) => vec![i],
                         None => (0..parts.len()).collect(),
                     };
-                    let mut reported: Vec<usize> = Vec::new();
+                    let mut reported: HashSet<usize> = HashSet::new();
                     for i in affected {
                         if let Some(m) = parts[i].material() {
                             if materials[m].alpha.is_none()
                                 && !reported.contains(&m)
                                 && !self.alpha_failed.contains(&materials[m].name)
                             {
-                                reported.push(m);
+                                reported.insert(m);
                                 self.errors.push(ModelError::NoAlpha {
                                     part: parts[i].name.to_string(),
                                     material: materials[m].name.clone(),
