@@ -4,8 +4,9 @@
 //!
 //! `cargo bench --bench scale` runs every size; `cargo bench --bench scale --
 //! 100000` stops at that many parts, `-- 1000000 chain` runs one kind, and
-//! `-- 1000000 chain one` that kind at that size only. Figures go in
-//! docs/performance.md.
+//! `-- 1000000 chain one` that kind at that size only. For profiling one
+//! stage, `STOP_AFTER_CHECK=1` or `STOP_AFTER_SOLVE=1` in the environment
+//! ends the run after that stage. Figures go in docs/performance.md.
 
 use std::fmt::Write as _;
 use std::time::Instant;
@@ -167,7 +168,7 @@ fn main() {
                 peak_rss_mib()
             );
             if std::env::var_os("STOP_AFTER_CHECK").is_some() {
-                std::process::exit(0);
+                return;
             }
             // As `tandem::check` does, the syntax tree goes once the model is built.
             tandem::release(file);
@@ -179,6 +180,14 @@ fn main() {
                 }
             };
             let t2 = Instant::now();
+            if std::env::var_os("STOP_AFTER_SOLVE").is_some() {
+                eprintln!(
+                    "  solve {:.3} s (peak {:.0} MiB)",
+                    (t2 - t1).as_secs_f64(),
+                    peak_rss_mib()
+                );
+                return;
+            }
             let unknowns = sol.unknowns;
             let rss_solved = peak_rss_mib();
             // The full report: checks, every equation.

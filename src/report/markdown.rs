@@ -156,7 +156,17 @@ fn checks_outcome(n: usize, fails: usize) -> String {
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
     let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let f = Fmt { d: display };
+    // Room for the whole document up front: grown by doubling, a report of
+    // hundreds of MiB would be copied and its fresh pages touched again at
+    // each step. About 700 bytes a part or node in each combination is an
+    // upper bound for the benchmark assemblies (610 MiB for 10^6 parts and
+    // 10^6 nodes, one combination). Memory reserved and never written costs
+    // nothing on the usual systems; if the reservation is refused, the
+    // string grows as it is written.
     let mut doc = Doc { out: String::new() };
+    let per_combination = 700 * (model.parts.len() + model.nodes.len());
+    let estimate = 64 * 1024 + per_combination * (solution.combinations.len() + 1);
+    let _ = doc.out.try_reserve(estimate);
     let title = model
         .title
         .get("title")
