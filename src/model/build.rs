@@ -1298,6 +1298,13 @@ impl<'t> Builder<'t> {
         }
 
         // Cases.
+        let built = Built {
+            materials: &materials,
+            parts: &parts,
+            part_at: &part_at,
+            nodes: &nodes,
+            kind,
+        };
         let mut cases = Vec::new();
         let first_case = file.decls.iter().find_map(|d| match d {
             Decl::Case(c) => Some(c.name.span),
@@ -1318,13 +1325,7 @@ impl<'t> Builder<'t> {
                         c.span,
                         &scope,
                         &names,
-                        Built {
-                            materials: &materials,
-                            parts: &parts,
-                            part_at: &part_at,
-                            nodes: &nodes,
-                            kind,
-                        },
+                        built,
                     );
                     cases.push(case);
                 }
@@ -1346,13 +1347,7 @@ impl<'t> Builder<'t> {
                 Span::new(0, 0),
                 &scope,
                 &names,
-                Built {
-                    materials: &materials,
-                    parts: &parts,
-                    part_at: &part_at,
-                    nodes: &nodes,
-                    kind,
-                },
+                built,
             );
             cases.push(case);
         }
