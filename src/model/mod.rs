@@ -356,7 +356,8 @@ pub struct Model {
 }
 
 impl Model {
-    /// The value of a `let`, for evaluating checks.
+    /// The value of a `let`, by a scan of the lets: for a single lookup
+    /// (checks use `checks::Refs`, built once).
     #[must_use]
     pub fn let_value(&self, name: &str) -> Option<Quantity> {
         self.lets.iter().find(|l| l.name == name).map(|l| l.value)
@@ -388,11 +389,13 @@ impl Model {
             .any(|p| p.carries != Carries::Both || p.slack.value > 0.0)
     }
 
+    /// A node by name, by a scan: for a single lookup, not in a loop.
     #[must_use]
     pub fn node_index(&self, name: &str) -> Option<usize> {
         self.nodes.iter().position(|n| n.name == name)
     }
 
+    /// A part by name, by a scan: for a single lookup, not in a loop.
     #[must_use]
     pub fn part_index(&self, name: &str) -> Option<usize> {
         self.parts.iter().position(|p| p.name == name)
