@@ -286,14 +286,26 @@ fn outcome(
 /// # Errors
 /// A check that cannot be evaluated (e.g. a division by a zero result).
 pub fn evaluate(model: &Model, solution: &Solution) -> Result<Checks, ModelError> {
+    evaluate_with(model, solution, &Refs::new(model, &[]))
+}
+
+/// [`evaluate`] with the model's names already looked up (`refs` must
+/// come from `Refs::new` on this model).
+///
+/// # Errors
+/// As [`evaluate`].
+pub fn evaluate_with(
+    model: &Model,
+    solution: &Solution,
+    refs: &Refs<'_>,
+) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
-    let refs = Refs::new(model, &[]);
     for (ci, check) in model.checks.iter().enumerate() {
         for (k, result) in solution.combinations.iter().enumerate() {
             let scope = ResultScope {
                 model,
                 result,
-                refs: &refs,
+                refs,
             };
             let l = eval(&check.lhs, &scope)?;
             let r = eval(&check.rhs, &scope)?;

@@ -506,6 +506,38 @@ fn reserved(name: &str) -> Option<&'static str> {
     words.get(name).copied()
 }
 
+/// For each declaration of `kind`, its place among the `built` items of
+/// that kind (`None` if it did not build); empty when every one built, the
+/// i-th declared then being the i-th built. Read with [`place`].
+fn places<'n>(
+    names: &Names<'_>,
+    kind: NameKind,
+    declared: usize,
+    built: impl ExactSizeIterator<Item = &'n str>,
+) -> Vec<Option<usize>> {
+    if built.len() == declared {
+        return Vec::new();
+    }
+    let mut at = vec![None; declared];
+    for (k, name) in built.enumerate() {
+        if let Some((found, i, _)) = names.get(name) {
+            if found == kind {
+                at[i].get_or_insert(k);
+            }
+        }
+    }
+    at
+}
+
+/// The place among the built items of declaration number `i` (see [`places`]).
+fn place(at: &[Option<usize>], i: usize) -> Option<usize> {
+    if at.is_empty() {
+        Some(i)
+    } else {
+        at.get(i).copied().flatten()
+    }
+}
+
 /// What a case refers to: the built materials, parts and nodes, and for
 /// each part declaration its place among the parts (empty when all built).
 #[derive(Clone, Copy)]
@@ -517,8 +549,7 @@ struct Built<'m> {
     kind: Kind,
 }
 
-/// The materials that built, and for each material declaration its place
-/// among them (`None` if it did not build).
+/// The materials that built, and their places (see [`places`]).
 type Materials<'m> = (&'m [Material], &'m [Option<usize>]);
 
 /// A node or part to build: parsed, or deferred (parsed when it is built).
@@ -1094,8 +1125,7 @@ impl<'t> Builder<'t> {
 
         let mut title = Title::default();
         let mut materials = Vec::new();
-        // for each material declaration, its place in `materials` if it built
-        let mut material_at: Vec<Option<usize>> = Vec::new();
+        let mut material_decls = 0;
         let mut kind: Option<(Kind, Span)> = None;
         let mut units = UnitChoice::Auto;
 
@@ -1127,14 +1157,19 @@ impl<'t> Builder<'t> {
                     }
                 }
                 Decl::Material(nb) => {
-                    let built = self.material(nb, &scope);
-                    material_at.push(built.as_ref().map(|_| materials.len()));
-                    materials.extend(built);
+                    material_decls += 1;
+                    materials.extend(self.material(nb, &scope));
                 }
                 Decl::Units(u) => units = self.units(u),
                 _ => {}
             }
         }
+        let material_at = places(
+            &names,
+            NameKind::Material,
+            material_decls,
+            materials.iter().map(|m| m.name.as_str()),
+        );
         // Nodes: the first fixes the kind of model, which the rest must share.
         let node_decls = sources(file, StubKind::Node, |d| match d {
             Decl::Node(n) => Some(&**n),
@@ -1196,17 +1231,12 @@ impl<'t> Builder<'t> {
             &nodes,
             kind,
         );
-        // For each part declaration, its place in `parts`; needed only when
-        // a part failed to build (otherwise the i-th declared is parts[i]).
-        let mut part_at: Vec<Option<usize>> = Vec::new();
-        if parts.len() != part_decls.len() {
-            part_at.resize(part_decls.len(), None);
-            for (k, p) in parts.iter().enumerate() {
-                if let Some((NameKind::Part, i, _)) = names.get(&p.name) {
-                    part_at[i].get_or_insert(k);
-                }
-            }
-        }
+        let part_at = places(
+            &names,
+            NameKind::Part,
+            part_decls.len(),
+            parts.iter().map(|p| p.name.as_str()),
+        );
 
         // Rigid bodies and ties.
         let mut rigids = Vec::new();
@@ -1889,7 +1919,7 @@ impl<'t> Builder<'t> {
                     Some(list) if list.len() == 1 => {
                         let i = self.ok(names.resolve(list[0], NameKind::Material));
                         // only materials that built are in `materials`
-                        i.and_then(|i| material_at.get(i).copied().flatten())
+                        i.and_then(|i| place(material_at, i))
                     }
                     Some(list) => {
                         self.errors.push(ModelError::Expected {
@@ -2161,12 +2191,7 @@ impl<'t> Builder<'t> {
         };
         let part_of = |id: &Ident, b: &mut Self| -> Option<usize> {
             let i = b.ok(names.resolve(id, NameKind::Part))?;
-            // The i-th declared part is parts[i] unless an earlier one failed.
-            if parts.get(i).is_some_and(|p| p.name == id.name) {
-                Some(i)
-            } else {
-                part_at.get(i).copied().flatten()
-            }
+            place(part_at, i)
         };
         let mut seen_temp: HashMap<Option<usize>, Span> = HashMap::new();
         let mut seen_strain: HashMap<usize, Span> = HashMap::new();

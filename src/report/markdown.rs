@@ -136,8 +136,6 @@ fn pct(u: Option<f64>) -> String {
     u.map_or("—".into(), |u| number(u, 3))
 }
 
-/// Write the whole calculation for an analysed file.
-#[allow(clippy::too_many_lines)]
 /// The status-line outcome of `n` governing checks of which `fails` fail,
 /// in plain English ("both checks pass", "1 of 3 checks fails").
 fn checks_outcome(n: usize, fails: usize) -> String {
@@ -153,6 +151,8 @@ fn checks_outcome(n: usize, fails: usize) -> String {
     }
 }
 
+/// Write the whole calculation for an analysed file.
+#[allow(clippy::too_many_lines)]
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
     let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let f = Fmt { d: display };

@@ -9,7 +9,7 @@
 
 use serde_json::{json, Value};
 
-use crate::checks::{evaluate, Checks};
+use crate::checks::{evaluate_with, Checks, Refs};
 use crate::model::{build_with, Limits, Model};
 use crate::solve::solve;
 use crate::source::Source;
@@ -155,15 +155,16 @@ impl<'a> Sweeper<'a> {
                 &solved
             }
         };
-        let checks = evaluate(&model, solution).map_err(|e| vec![Error::from(e)])?;
+        // one lookup of the names for the checks and the results shown
+        let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
+        let refs = Refs::new(&model, &objects);
+        let checks = evaluate_with(&model, solution, &refs).map_err(|e| vec![Error::from(e)])?;
         let governing = checks
             .outcomes
             .iter()
             .map(|o| o.utilization.unwrap_or(f64::INFINITY))
             .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
         let per_check = checks.governing().iter().map(|o| o.utilization).collect();
-        let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
-        let refs = crate::checks::Refs::new(&model, &objects);
         let shown = self
             .shown
             .iter()
