@@ -133,8 +133,17 @@ load b = -70 kN
     let b = &a.buckling[0];
     assert!((b.euler / 1e3 - 62.01).abs() < 0.005, "{}", b.euler);
     assert!(rel(b.slenderness().expect("r"), 2.0 / 0.01) < 1e-12); // r = d/4
-                                                                   // 70 kN is past the Euler load: warned
-    assert!(b.warnings(&a.model).iter().any(|w| w.contains("Euler")));
+
+    // 70 kN is past the Euler load: a failing check, utilization 70 / P_e
+    let o = a
+        .checks
+        .outcomes
+        .iter()
+        .find(|o| matches!(o.origin, tandem::checks::Origin::Buckling(_)))
+        .expect("an Euler-load check");
+    assert!(!o.pass);
+    assert!(rel(o.utilization.expect("u"), 70e3 / b.euler) < 1e-12);
+    assert_eq!(a.failures(), 1);
 }
 
 /// A filled pipe gets the warning for the group: Σ E I of both parts.

@@ -24,7 +24,9 @@ struct Assembly {
 
 impl Assembly {
     fn text(&self, extra_cases: &str) -> String {
-        let mut t = String::from("material unit_e { E = 1 Pa }\n");
+        // E·A is split as 1 MPa times an area of 10 to 500 m², within the
+        // sane ranges of both
+        let mut t = String::from("material unit_e { E = 1 MPa }\n");
         for (i, (x, y)) in self.pos.iter().enumerate() {
             if self.plane {
                 t.push_str(&format!("node n{i} at ({x:e} m, {y:e} m)\n"));
@@ -40,7 +42,8 @@ impl Assembly {
         }
         for (k, (a, b, ea)) in self.parts.iter().enumerate() {
             t.push_str(&format!(
-                "part p{k} {{ material = unit_e; area = {ea:e} m^2; ends = n{a}, n{b} }}\n"
+                "part p{k} {{ material = unit_e; area = {:e} m^2; ends = n{a}, n{b} }}\n",
+                ea / 1e6
             ));
         }
         if extra_cases.is_empty() {

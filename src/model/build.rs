@@ -19,7 +19,7 @@ use uom::si::temperature_interval::kelvin;
 
 use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS, FUNCTIONS};
 use super::{
-    did_you_mean, Carries, Case, Check, Combination, FreeStrain, Kind, Law, LetValue, Load,
+    did_you_mean, range, Carries, Case, Check, Combination, FreeStrain, Kind, Law, LetValue, Load,
     Material, Model, ModelError, Node, Part, Rigid, Settlement, Stiffness, Temperature, Tie, Title,
     UnitChoice,
 };
@@ -678,6 +678,27 @@ struct Fields<'a> {
     map: Keys<'a>,
 }
 
+/// An input value: evaluated, of dimension `dim`, and within the sane range
+/// of its kind ([`super::range`]). `what` names it for messages.
+fn typed(
+    e: &Expr,
+    dim: Dimension,
+    what: impl Fn() -> String,
+    scope: &dyn Scope,
+) -> Result<Quantity, ModelError> {
+    let q = eval(e, scope)?;
+    if q.dim != dim {
+        return Err(ModelError::WrongDimension {
+            what: what(),
+            expected: dim.describe(),
+            found: q.dim.describe(),
+            span: e.span,
+            help: example_for(dim),
+        });
+    }
+    ModelError::guard(q, what, e.span)
+}
+
 fn example_for(dim: Dimension) -> Option<String> {
     dim.example()
         .map(|e| format!("expected {} such as {e}", dim.describe()))
@@ -774,19 +795,12 @@ impl<'a> Fields<'a> {
             Ok(e) => e,
             Err(err) => return Some(Err(err)),
         };
-        Some(eval(e, scope).and_then(|q| {
-            if q.dim == dim {
-                Ok(q)
-            } else {
-                Err(ModelError::WrongDimension {
-                    what: format!("`{key}` of {}", self.block),
-                    expected: dim.describe(),
-                    found: q.dim.describe(),
-                    span: e.span,
-                    help: example_for(dim),
-                })
-            }
-        }))
+        Some(typed(
+            e,
+            dim,
+            || format!("`{key}` of {}", self.block),
+            scope,
+        ))
     }
 
     /// A key whose value is a list of bare names.
@@ -1395,10 +1409,23 @@ impl<'t> Builder<'t> {
                                 combination: c.name.name.to_string(),
                                 span: t.span,
                             });
-                        } else {
+                        } else if self
+                            .ok(ModelError::guard(
+                                Quantity::number(t.factor),
+                                || format!("the factor of `{}`", t.case.name),
+                                t.span,
+                            ))
+                            .is_some()
+                        {
                             terms.push((i, t.factor));
                         }
                     }
+                }
+                if !terms.is_empty() && terms.iter().all(|(_, f)| *f == 0.0) {
+                    self.errors.push(ModelError::ZeroCombination {
+                        combination: c.name.name.to_string(),
+                        span: c.span,
+                    });
                 }
                 combinations.push(Combination {
                     name: c.name.name.to_string(),
@@ -1514,28 +1541,21 @@ impl<'t> Builder<'t> {
             _ => {}
         }
         let coord = |e: &Expr, b: &mut Self| {
-            let q = b.ok(eval(e, scope))?;
-            if q.dim == Dimension::LENGTH {
-                Some(si_length(q))
-            } else {
-                b.errors.push(ModelError::WrongDimension {
-                    what: format!("the position of node `{}`", n.name.name),
-                    expected: "a length".into(),
-                    found: q.dim.describe(),
-                    span: e.span,
-                    help: example_for(Dimension::LENGTH),
-                });
-                None
-            }
+            let what = || format!("the position of node `{}`", n.name.name);
+            b.ok(typed(e, Dimension::LENGTH, what, scope))
+                .map(si_length)
         };
         let (x, y) = match &n.at {
             Coord::Axial(e) => (coord(e, self), Some(Length::new::<meter>(0.0))),
             Coord::Plane(xy, _) => (coord(&xy[0], self), coord(&xy[1], self)),
         };
+        // A position that failed is NaN, so that the parts at the node are
+        // not reported again (as zero length); its error ends the build.
+        let failed = Length::new::<meter>(f64::NAN);
         Node {
             name: n.name.name.clone(),
-            x: x.unwrap_or_default(),
-            y: y.unwrap_or_default(),
+            x: x.unwrap_or(failed),
+            y: y.unwrap_or(failed),
             fixed: [false; 2],
             span: n.span,
         }
@@ -1555,8 +1575,8 @@ impl<'t> Builder<'t> {
                 // keeps the numbering of nodes; the syntax error is the result
                 _ => Node {
                     name: stub.name.name.clone(),
-                    x: Length::default(),
-                    y: Length::default(),
+                    x: Length::new::<meter>(f64::NAN),
+                    y: Length::new::<meter>(f64::NAN),
                     fixed: [false; 2],
                     span: stub.span,
                 },
@@ -1949,16 +1969,26 @@ impl<'t> Builder<'t> {
                 let Some(e) = self.opt(f.expr(key)) else {
                     continue;
                 };
+                let guard = |b: &mut Self, v: f64, dim: Dimension, of: &str| {
+                    let q = Quantity::new(v, dim);
+                    b.ok(ModelError::guard(
+                        q,
+                        || format!("the {of} of {what}"),
+                        e.span,
+                    ))
+                    .map(|q| q.value)
+                };
                 match self.ok(eval_val(e, scope)) {
                     Some(Val::Section(s)) => {
-                        area = Some(s.area);
+                        area = guard(self, s.area, Dimension::AREA, "area");
                         shape = Some(s.shape);
                         if key == "section" {
-                            inertia = Some(s.inertia());
+                            inertia =
+                                guard(self, s.inertia(), Dimension::SECOND_MOMENT, "second moment");
                         }
                     }
                     Some(Val::Q(q)) if key == "area" && q.dim == Dimension::AREA => {
-                        area = Some(q.value);
+                        area = guard(self, q.value, Dimension::AREA, "area");
                     }
                     Some(Val::Q(q)) => self.errors.push(ModelError::WrongDimension {
                         what: format!("`{key}` of {what}"),
@@ -2015,22 +2045,34 @@ impl<'t> Builder<'t> {
             }
         };
 
-        let length_key = |key: &str, b: &mut Self, nonneg: bool| -> Option<Length> {
+        // `Some(help)`: the value must be zero or more (`Some(None)`: more
+        // than zero), with that help.
+        let length_key = |key: &str, b: &mut Self, sign: Option<Option<&str>>| -> Option<Length> {
             let q = b.opt(f.quantity(key, Dimension::LENGTH, scope))?;
-            if nonneg && q.value < 0.0 {
+            let bad = match sign {
+                None => false,
+                Some(Some(_)) => q.value < 0.0,
+                Some(None) => q.value <= 0.0,
+            };
+            if bad {
                 b.errors.push(ModelError::NotPositive {
                     what: format!("`{key}` of {what}"),
-                    value: "negative".into(),
+                    value: if q.value < 0.0 { "negative" } else { "zero" }.into(),
                     span: f.map.get(key).map(|e| e.span).unwrap_or_default(),
-                    help: Some("a gap is zero or more; `carries` gives its sense".into()),
+                    help: sign.flatten().map(str::to_string),
                 });
                 return None;
             }
             Some(si_length(q))
         };
-        let misfit = length_key("misfit", self, false).unwrap_or_default();
-        let slack = length_key("slack", self, true).unwrap_or_default();
-        let buckling_length = length_key("buckling_length", self, true);
+        let misfit = length_key("misfit", self, None).unwrap_or_default();
+        let slack = length_key(
+            "slack",
+            self,
+            Some(Some("a gap is zero or more; `carries` gives its sense")),
+        )
+        .unwrap_or_default();
+        let buckling_length = length_key("buckling_length", self, Some(None));
         let ratio_key = |key: &str, default: f64, b: &mut Self| -> f64 {
             match b.opt(f.quantity(key, Dimension::NONE, scope)) {
                 Some(q) if q.value > 0.0 => q.value,
@@ -2103,6 +2145,10 @@ impl<'t> Builder<'t> {
         let dx = (b.x - a.x).value;
         let dy = (b.y - a.y).value;
         let length = dx.hypot(dy);
+        if length.is_nan() {
+            // an end's position failed and was reported
+            return None;
+        }
         let scale =
             a.x.value
                 .abs()
@@ -2110,7 +2156,7 @@ impl<'t> Builder<'t> {
                 .max(a.y.value.abs())
                 .max(b.y.value.abs())
                 .max(1e-300);
-        if length <= 1e-12 * scale || length == 0.0 {
+        if length <= 1e-12 * scale || length < range::range_of(Dimension::LENGTH).0 {
             let allowed = matches!(law, Law::Spring { .. }) && kind == Kind::Axial;
             if !allowed {
                 self.errors.push(ModelError::ZeroLength {
@@ -2144,6 +2190,12 @@ impl<'t> Builder<'t> {
             });
             return None;
         }
+        let k = Quantity::new(k, Dimension::STIFFNESS);
+        self.ok(ModelError::guard(
+            k,
+            || format!("the stiffness E·A/L of {what}"),
+            nb.name.span,
+        ))?;
         Some(part)
     }
 
@@ -2175,19 +2227,7 @@ impl<'t> Builder<'t> {
             span,
         };
         let typed = |e: &Expr, dim: Dimension, what: String, b: &mut Self| -> Option<Quantity> {
-            let q = b.ok(eval(e, scope))?;
-            if q.dim == dim {
-                Some(q)
-            } else {
-                b.errors.push(ModelError::WrongDimension {
-                    what,
-                    expected: dim.describe(),
-                    found: q.dim.describe(),
-                    span: e.span,
-                    help: example_for(dim),
-                });
-                None
-            }
+            b.ok(typed(e, dim, || what.clone(), scope))
         };
         let part_of = |id: &Ident, b: &mut Self| -> Option<usize> {
             let i = b.ok(names.resolve(id, NameKind::Part))?;

@@ -59,6 +59,18 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("{what} is {why}: {value}")]
+    #[diagnostic(code(tandem::number::range))]
+    OutOfRange {
+        what: String,
+        why: &'static str,
+        value: String,
+        #[label("{why}")]
+        span: Span,
+        #[help]
+        help: String,
+    },
+
     #[error("unknown {kind} `{name}`")]
     #[diagnostic(code(tandem::name::unknown))]
     UnknownName {
@@ -345,6 +357,17 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("every factor of combination `{combination}` is zero: it loads nothing")]
+    #[diagnostic(
+        code(tandem::combine::zero),
+        help("give the cases their factors, e.g. `combine service = dead + live`, or remove the combination")
+    )]
+    ZeroCombination {
+        combination: String,
+        #[label("all factors zero")]
+        span: Span,
+    },
+
     #[error("node `{node}` belongs to more than one rigid body")]
     #[diagnostic(
         code(tandem::rigid::shared),
@@ -404,6 +427,30 @@ impl ModelError {
             reason: POISON.into(),
             span: Span::default(),
         }
+    }
+
+    /// A value outside its sane range ([`super::range`]), or `Ok`.
+    ///
+    /// # Errors
+    /// [`ModelError::OutOfRange`] at `span`.
+    pub fn guard(
+        q: crate::units::Quantity,
+        what: impl FnOnce() -> String,
+        span: Span,
+    ) -> Result<crate::units::Quantity, ModelError> {
+        super::range::check(q)
+            .map(|()| q)
+            .map_err(|r| ModelError::OutOfRange {
+                what: what(),
+                why: r.why,
+                value: super::range::si_words(q),
+                span,
+                help: format!(
+                    "tandem takes {} of magnitude {} (or zero); check the value and its unit",
+                    q.dim.describe(),
+                    r.range
+                ),
+            })
     }
 
     #[must_use]

@@ -213,12 +213,17 @@ pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
         }
         ExprKind::Call(c) => return call(&c.func, &c.args, e.span, scope),
     };
-    if q.value.is_finite() {
+    if q.value.is_finite() && !q.value.is_subnormal() {
         Ok(Val::Q(q))
     } else {
         Err(ModelError::NotFinite {
             what: "this expression".into(),
-            reason: "the result overflows".into(),
+            reason: if q.value.is_subnormal() {
+                "the result underflows (too small for a normal number)"
+            } else {
+                "the result overflows"
+            }
+            .into(),
             span: e.span,
         })
     }

@@ -5,6 +5,7 @@
 mod build;
 mod error;
 pub mod eval;
+pub mod range;
 
 pub use build::{build, build_outline, build_with, solver_depends_on, Limits};
 pub use error::ModelError;

@@ -238,6 +238,70 @@ impl Display {
     }
 }
 
+/// Values of one kind below this fraction of the largest of that kind in
+/// their combination are round-off and print as 0 in text and Markdown
+/// (JSON keeps the raw value). The same relative 1e-9 as the band within
+/// which two utilizations tie (common practice).
+pub const ROUND_OFF: f64 = 1e-9;
+
+/// The largest magnitudes of one combination's results, by kind, for
+/// printing round-off as 0 ([`ROUND_OFF`]). All zero: nothing is chopped.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct Scales {
+    pub force: f64,
+    pub stress: f64,
+    /// Displacements and elongations.
+    pub small: f64,
+    pub strain: f64,
+}
+
+impl Scales {
+    /// The scales of a combination's results.
+    #[must_use]
+    pub fn of(r: &crate::solve::CombinationResult) -> Self {
+        let mut s = Self {
+            force: r.force_scale.value,
+            ..Self::default()
+        };
+        for p in &r.parts {
+            s.stress = s.stress.max(p.stress.map_or(0.0, |x| x.value.abs()));
+            s.small = s.small.max(p.elongation.value.abs());
+            s.strain = s.strain.max(p.strain.abs());
+        }
+        for n in &r.nodes {
+            for d in 0..2 {
+                s.small = s.small.max(n.displacement[d].value.abs());
+            }
+        }
+        s
+    }
+
+    #[must_use]
+    pub fn force(&self, v: f64) -> f64 {
+        chop(v, self.force)
+    }
+    #[must_use]
+    pub fn stress(&self, v: f64) -> f64 {
+        chop(v, self.stress)
+    }
+    #[must_use]
+    pub fn small(&self, v: f64) -> f64 {
+        chop(v, self.small)
+    }
+    #[must_use]
+    pub fn strain(&self, v: f64) -> f64 {
+        chop(v, self.strain)
+    }
+}
+
+fn chop(v: f64, scale: f64) -> f64 {
+    if v.abs() < ROUND_OFF * scale {
+        0.0
+    } else {
+        v
+    }
+}
+
 /// Format with `digits` significant figures, in plain decimal notation for
 /// everyday magnitudes and scientific notation outside them.
 pub fn number(v: f64, digits: usize) -> String {

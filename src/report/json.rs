@@ -24,6 +24,7 @@ pub struct Document<'a> {
     yielded: Vec<Yielded<'a>>,
     capacity: Vec<Capacity<'a>>,
     long_term: Vec<LongTerm<'a>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     long_term_checks: Option<Vec<LongTermCheck<'a>>>,
     buckling: Vec<Buckling<'a>>,
     warnings: &'a [String],
@@ -55,6 +56,7 @@ struct Parts<'a>(&'a Model, &'a CombinationResult);
 struct PartRecord<'a> {
     name: &'a str,
     force_N: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
     stress_Pa: Option<f64>,
     strain: f64,
     elongation_m: f64,
@@ -134,6 +136,7 @@ struct CheckOutcome<'a> {
     combination: &'a str,
     demand: f64,
     capacity: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
     utilization: Option<f64>,
     pass: bool,
     governing: bool,
@@ -149,8 +152,11 @@ struct Yielded<'a> {
 #[derive(Serialize)]
 struct Capacity<'a> {
     combination: &'a str,
+    #[serde(skip_serializing_if = "Option::is_none")]
     first_yield_factor: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     plastic_limit_factor: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     ratio: Option<f64>,
     sequence: Vec<YieldEvent<'a>>,
     #[serde(rename = "limit_forces_N")]
@@ -185,7 +191,9 @@ struct LongTermPart<'a> {
     name: &'a str,
     short_term_force_N: f64,
     long_term_force_N: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
     short_term_stress_Pa: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     long_term_stress_Pa: Option<f64>,
 }
 
@@ -195,6 +203,7 @@ struct LongTermCheck<'a> {
     combination: &'a str,
     demand: f64,
     capacity: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
     utilization: Option<f64>,
     pass: bool,
 }
@@ -203,7 +212,9 @@ struct LongTermCheck<'a> {
 struct Buckling<'a> {
     parts: Vec<&'a str>,
     effective_length_m: f64,
+    #[serde(skip_serializing_if = "Option::is_none")]
     radius_of_gyration_m: Option<f64>,
+    #[serde(skip_serializing_if = "Option::is_none")]
     slenderness: Option<f64>,
     euler_load_N: f64,
     max_compression_N: f64,
@@ -250,6 +261,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
             kind: match o.origin {
                 Origin::Line(_) => "check",
                 Origin::Allowable(_) => "allowable",
+                Origin::Buckling(_) => "buckling",
             },
             combination: &combos[o.combination].name,
             demand: o.demand.value,

@@ -5,7 +5,7 @@
 
 use std::fmt::Write as _;
 
-use super::display::{number, Display, Shown};
+use super::display::{number, Display, Scales, Shown};
 use super::table::combination_text;
 use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
@@ -66,6 +66,8 @@ impl Doc {
 /// Formatting helpers bound to one display.
 struct Fmt<'a> {
     d: &'a Display,
+    /// The scales of the combination being written (round-off prints as 0).
+    scales: std::cell::Cell<Scales>,
 }
 
 impl Fmt<'_> {
@@ -80,19 +82,19 @@ impl Fmt<'_> {
         bracket_negative(self.with(si, u))
     }
     fn force(&self, si: f64) -> String {
-        self.with(si, &self.d.force)
+        self.with(self.scales.get().force(si), &self.d.force)
     }
     fn force_t(&self, si: f64) -> String {
-        self.term(si, &self.d.force)
+        self.term(self.scales.get().force(si), &self.d.force)
     }
     fn stress(&self, si: f64) -> String {
-        self.with(si, &self.d.stress)
+        self.with(self.scales.get().stress(si), &self.d.stress)
     }
     fn small(&self, si: f64) -> String {
-        self.with(si, &self.d.small)
+        self.with(self.scales.get().small(si), &self.d.small)
     }
     fn small_t(&self, si: f64) -> String {
-        self.term(si, &self.d.small)
+        self.term(self.scales.get().small(si), &self.d.small)
     }
     fn length(&self, si: f64) -> String {
         self.with(si, &self.d.length)
@@ -155,7 +157,10 @@ fn checks_outcome(n: usize, fails: usize) -> String {
 #[allow(clippy::too_many_lines)]
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
     let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
-    let f = Fmt { d: display };
+    let f = Fmt {
+        d: display,
+        scales: std::cell::Cell::default(),
+    };
     // Room for the whole document up front: grown by doubling, a report of
     // hundreds of MiB would be copied and its fresh pages touched again at
     // each step. About 700 bytes a part or node in each combination is an
@@ -371,6 +376,13 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             .any(|o| matches!(o.origin, Origin::Allowable(_)))
         {
             doc.p("Allowable-stress checks compare each part's stress in its sense (tension or compression) with its material's allowable for that sense.");
+        }
+        if checks
+            .outcomes
+            .iter()
+            .any(|o| matches!(o.origin, Origin::Buckling(_)))
+        {
+            doc.p("Euler-load checks compare the compression in each part (or parallel group) with a `buckling_length` against its Euler load P_e times its `euler_fraction` (see Stability).");
         }
     }
     doc.out.trim_end().to_string() + "\n"
@@ -666,6 +678,19 @@ fn combination(
     incidence: &[Vec<(usize, f64, [f64; 2])>],
 ) {
     let r = &solution.combinations[ci];
+    f.scales.set(Scales::of(r));
+    combination_body(doc, f, model, r, ci, incidence);
+    f.scales.set(Scales::default());
+}
+
+fn combination_body(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    r: &crate::solve::CombinationResult,
+    ci: usize,
+    incidence: &[Vec<(usize, f64, [f64; 2])>],
+) {
     let combo = &model.combinations[ci];
     doc.h(
         2,

@@ -1,6 +1,6 @@
 //! The compact, aligned results tables of `tandem solve`.
 
-use super::display::{number, Display};
+use super::display::{number, Display, Scales};
 use crate::model::{Kind, Model};
 
 /// Columns padded to a common width: text columns (those in `left`) flush
@@ -91,6 +91,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         out.push_str(&format!("warning: {w}\n"));
     }
     for (ci, r) in solution.combinations.iter().enumerate() {
+        let sc = Scales::of(r);
         out.push_str(&format!(
             "\ncombination {}\n",
             combination_heading(model, ci, false)
@@ -106,11 +107,12 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         for (p, pr) in model.parts.iter().zip(&r.parts) {
             rows.push(vec![
                 p.name.to_string(),
-                number(d.force.value(pr.force.value), d.digits),
-                pr.stress
-                    .map_or("—".into(), |s| number(d.stress.value(s.value), d.digits)),
-                number(pr.strain * 1e6, d.digits),
-                number(d.small.value(pr.elongation.value), d.digits),
+                number(d.force.value(sc.force(pr.force.value)), d.digits),
+                pr.stress.map_or("—".into(), |s| {
+                    number(d.stress.value(sc.stress(s.value)), d.digits)
+                }),
+                number(sc.strain(pr.strain) * 1e6, d.digits),
+                number(d.small.value(sc.small(pr.elongation.value)), d.digits),
                 pr.state.name().to_string(),
             ]);
         }
@@ -132,17 +134,20 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         for (n, nr) in model.nodes.iter().zip(&r.nodes) {
             let react = |k: usize| {
                 if n.fixed[k] {
-                    number(d.force.value(nr.reaction[k].value), d.digits)
+                    number(d.force.value(sc.force(nr.reaction[k].value)), d.digits)
                 } else {
                     "—".to_string()
                 }
             };
             let mut row = vec![
                 n.name.to_string(),
-                number(d.small.value(nr.displacement[0].value), d.digits),
+                number(d.small.value(sc.small(nr.displacement[0].value)), d.digits),
             ];
             if model.kind == Kind::Plane {
-                row.push(number(d.small.value(nr.displacement[1].value), d.digits));
+                row.push(number(
+                    d.small.value(sc.small(nr.displacement[1].value)),
+                    d.digits,
+                ));
                 row.push(react(0));
                 row.push(react(1));
             } else {

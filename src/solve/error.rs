@@ -67,6 +67,32 @@ pub enum SolveError {
         help: Option<String>,
     },
 
+    #[error("combination `{combination}` is out of equilibrium by {residual} (largest force {scale}): the result is not trustworthy")]
+    #[diagnostic(
+        code(tandem::solve::equilibrium),
+        help("the loads, part forces and reactions must balance to within {tolerance} of the largest force; parts whose stiffnesses differ by many orders of magnitude lose precision: check units and values, or model the stiffest parts as a rigid body or a tie")
+    )]
+    OutOfEquilibrium {
+        combination: String,
+        residual: String,
+        scale: String,
+        tolerance: String,
+        #[label("in this combination")]
+        span: Span,
+    },
+
+    #[error("combination `{combination}` gives a result that is not a finite number ({what})")]
+    #[diagnostic(
+        code(tandem::solve::not_finite),
+        help("check the values of the parts and loads for magnitudes far outside the usual")
+    )]
+    NotFinite {
+        combination: String,
+        what: String,
+        #[label("in this combination")]
+        span: Span,
+    },
+
     #[error("the stiffness system could not be solved: {reason}")]
     #[diagnostic(
         code(tandem::solve::numeric),

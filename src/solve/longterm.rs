@@ -100,6 +100,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         let total = add(&a_s, &a_t);
         let states = vec![PartState::Elastic; n];
         let result = system.results(combo.name.clone(), &q, &total, &elong, &forces, &states, 1);
+        let result = super::verified(model, result, combo.span)?;
         out.push(LongTerm {
             combination: ci,
             result: Some(result),

@@ -1,0 +1,215 @@
+//! No wrong result passes: absurd values are refused at their span, every
+//! result is finite and in equilibrium, and a strut past its Euler load
+//! fails. Each case below passed with exit 0 before it was guarded.
+
+mod common;
+
+use std::io::Write as _;
+use std::process::Command;
+
+fn tandem_on(text: &str, args: &[&str]) -> std::process::Output {
+    let mut f = tempfile_in_target("calc");
+    f.1.write_all(text.as_bytes()).expect("write");
+    let mut all: Vec<&str> = args.to_vec();
+    let path = f.0.display().to_string();
+    all.push(&path);
+    Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .args(&all)
+        .output()
+        .expect("runs")
+}
+
+/// A fresh file under the target folder (removed with it).
+fn tempfile_in_target(stem: &str) -> (std::path::PathBuf, std::fs::File) {
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    static N: AtomicUsize = AtomicUsize::new(0);
+    let dir = std::path::Path::new(env!("CARGO_TARGET_TMPDIR")).join("trust");
+    std::fs::create_dir_all(&dir).expect("dir");
+    let path = dir.join(format!(
+        "{stem}-{}-{}.tandem",
+        std::process::id(),
+        N.fetch_add(1, Ordering::Relaxed)
+    ));
+    let f = std::fs::File::create(&path).expect("create");
+    (path, f)
+}
+
+const ROD: &str = "
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 1 m
+fix a
+part r { material = steel; area = AREA; ends = a, b }
+load b = 50 kN
+";
+
+#[test]
+fn a_subnormal_area_is_refused_at_its_span() {
+    // before: all-zero forces, "equilibrium residual 50 kN", exit 0
+    for area in ["1e-320 m^2", "1e-319 m^2"] {
+        let out = tandem_on(&ROD.replace("AREA", area), &["solve"]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{area}: {err}");
+        assert!(err.contains("underflows"), "{err}");
+    }
+    // absurd but normal: too small for its kind
+    let out = tandem_on(&ROD.replace("AREA", "1e-300 m^2"), &["solve"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(err.contains("too small") && err.contains("1 µm²"), "{err}");
+}
+
+#[test]
+fn a_node_at_1e308_m_is_refused_without_a_follow_on_error() {
+    // before: `k = … / ∞` in the report, exit 0
+    let text = ROD.replace("AREA", "100 mm^2").replace("1 m", "1e308 m");
+    let out = tandem_on(&text, &["check"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        err.contains("the position of node `b` is too large"),
+        "{err}"
+    );
+    // one fault, one error: no "zero length" for the part at that node
+    assert!(!err.contains("zero length"), "{err}");
+    assert!(err.contains("1 error"), "{err}");
+}
+
+#[test]
+fn a_zero_buckling_length_is_refused() {
+    // before: P_e = ∞, exit 0
+    let text = "
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 1 m
+fix a
+part r { material = steel; section = circle(d = 20 mm); ends = a, b; buckling_length = 0 m }
+load b = -5 kN
+";
+    let out = tandem_on(text, &["solve"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{err}");
+    assert!(
+        err.contains("`buckling_length` of part `r` must be positive"),
+        "{err}"
+    );
+}
+
+#[test]
+fn a_strut_past_its_euler_load_fails_the_gate() {
+    // π²·E·I/L² for a 20 mm rod 2 m long (E = 200 GPa): 3.876 kN (Euler's
+    // formula, any mechanics-of-materials text); 220 kN is 57 × that.
+    let text = "
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 2 m
+fix a
+part strut { material = steel; section = circle(d = 20 mm); ends = a, b; buckling_length = 2 m }
+load b = -220 kN
+";
+    let out = tandem_on(text, &["solve"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(1), "{stdout}");
+    assert!(
+        stdout.contains("strut: compression within Euler load"),
+        "{stdout}"
+    );
+    let json = tandem_on(text, &["solve", "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).expect("json");
+    let check = &v["checks"][0];
+    assert_eq!(check["kind"], "buckling");
+    assert_eq!(check["pass"], false);
+    let pe =
+        std::f64::consts::PI.powi(2) * 200e9 * std::f64::consts::PI * 0.02f64.powi(4) / 64.0 / 4.0;
+    let u = check["utilization"].as_f64().expect("u");
+    assert!(common::rel(u, 220e3 / pe) < 1e-9, "{u}");
+    assert!(u > 56.0 && u < 58.0);
+    let report = tandem_on(text, &["report"]);
+    let md = String::from_utf8_lossy(&report.stdout);
+    assert_eq!(report.status.code(), Some(1));
+    assert!(md.contains("the one check fails"), "{md}");
+}
+
+#[test]
+fn a_filled_pipe_is_gated_by_its_group_not_its_parts() {
+    // the core alone would be past its own Euler load; bonded to the tube
+    // it buckles with it (Σ E·I)
+    let a = common::analyse(
+        "
+material fill { E = 25 GPa }
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 6 m
+fix a
+part core { material = fill; section = circle(d = 250 mm); buckling_length = 6 m; ends = a, b }
+part tube { material = steel; section = ring(d = 273 mm, t = 6 mm); buckling_length = 6 m; ends = a, b }
+load b = -500 kN
+",
+    );
+    let labels: Vec<&str> = a.checks.outcomes.iter().map(|o| o.label.as_str()).collect();
+    assert_eq!(labels, ["core + tube: compression within Euler load"]);
+    assert_eq!(a.failures(), 0);
+}
+
+#[test]
+fn a_combination_of_zero_factors_is_refused() {
+    let text = ROD.replace("AREA", "100 mm^2").replace(
+        "load b = 50 kN",
+        "case c { load b = 50 kN }\ncombine none = 0 c",
+    );
+    let out = tandem_on(&text, &["check"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        err.contains("every factor of combination `none` is zero"),
+        "{err}"
+    );
+}
+
+#[test]
+fn every_result_is_verified_in_equilibrium() {
+    // the tolerance is relative to the largest force of the combination
+    let (m, s) = common::solve(&ROD.replace("AREA", "100 mm^2"));
+    for r in &s.combinations {
+        assert!(
+            r.equilibrium_residual.value
+                <= tandem::solve::EQUILIBRIUM_TOLERANCE * r.force_scale.value
+        );
+    }
+    // a result out of equilibrium is an error naming its combination
+    let mut bad = s.combinations[0].clone();
+    bad.equilibrium_residual.value = 1e-3 * bad.force_scale.value;
+    let err = tandem::solve::verified(&m, bad, m.combinations[0].span).expect_err("refused");
+    assert!(err
+        .to_string()
+        .contains("combination `loads` is out of equilibrium"));
+    // and so is a result that is not finite
+    let mut bad = s.combinations[0].clone();
+    bad.parts[0].force.value = f64::INFINITY;
+    let err = tandem::solve::verified(&m, bad, m.combinations[0].span).expect_err("refused");
+    assert!(
+        err.to_string().contains("not a finite number (part `r`)"),
+        "{err}"
+    );
+}
+
+#[test]
+fn negative_zero_never_reaches_the_json() {
+    // a part that carries nothing: its force may come out as −0
+    let text = "
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 1 m
+node c at 2 m
+fix a
+fix c
+part r { material = steel; area = 100 mm^2; ends = a, b }
+part s { material = steel; area = 100 mm^2; ends = b, c }
+load b = -0 kN
+";
+    let out = tandem_on(text, &["solve", "--json"]);
+    let json = String::from_utf8_lossy(&out.stdout);
+    assert_eq!(out.status.code(), Some(0), "{json}");
+    assert!(!json.contains("-0.0"), "{json}");
+    assert!(!json.contains("null"), "{json}");
+}
