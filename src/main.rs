@@ -54,6 +54,11 @@ fn bad() -> ExitCode {
 static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
 fn main() -> ExitCode {
+    // Interrupted (SIGINT, SIGTERM): leave no temporary file behind.
+    let _ = ctrlc::set_handler(|| {
+        tandem::output::remove_pending();
+        std::process::exit(130);
+    });
     let cli = Cli::parse();
     match cli.command {
         Command::Check { files } => check(&files),
@@ -252,6 +257,21 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
                 .collect()
         }
     };
+    // Two inputs whose reports would land on one file: refused before
+    // anything is written.
+    let mut seen: std::collections::HashMap<&Path, &Path> = std::collections::HashMap::new();
+    for (t, f) in targets.iter().zip(files) {
+        let Some(t) = t else { continue };
+        if let Some(first) = seen.insert(t.as_path(), f.as_path()) {
+            errln!(
+                "error: {} and {} would both be reported to {}; report them into different folders",
+                first.display(),
+                f.display(),
+                t.display()
+            );
+            return bad();
+        }
+    }
     for t in targets.iter().flatten() {
         if tandem::output::is_input(t, files) {
             errln!(
@@ -324,7 +344,11 @@ fn fmt(files: &[PathBuf], check: bool) -> ExitCode {
                 if check {
                     outln!("{}", source.name);
                     unformatted = true;
-                } else if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
+                } else if let Err(e) = tandem::output::replace_if_unchanged(
+                    path,
+                    source.text.as_bytes(),
+                    text.as_bytes(),
+                ) {
                     errln!("error: cannot write {}: {e}", path.display());
                     code = bad();
                 }
@@ -355,10 +379,48 @@ fn read_revision(spec: &str) -> Option<Source> {
     if rev.is_empty() || file.is_empty() {
         return read(path);
     }
-    match std::process::Command::new("git")
-        .args(["show", spec])
-        .output()
-    {
+    // User text never reaches git as an option: `--end-of-options` first.
+    // The object must be a file (a blob) within the size limit.
+    let git = |args: &[&str]| {
+        std::process::Command::new("git")
+            .args(args)
+            .args(["--end-of-options", spec])
+            .output()
+    };
+    match git(&["cat-file", "-t"]) {
+        Ok(out) if out.status.success() => {
+            let kind = String::from_utf8_lossy(&out.stdout).trim().to_string();
+            if kind != "blob" {
+                errln!("error: {spec} is a {kind} in git, not a file");
+                return None;
+            }
+        }
+        Ok(out) => {
+            errln!(
+                "error: cannot read {file} at revision {rev}: {}",
+                String::from_utf8_lossy(&out.stderr).trim()
+            );
+            return None;
+        }
+        Err(e) => {
+            errln!("error: cannot run git to read {spec}: {e}");
+            return None;
+        }
+    }
+    if let Ok(out) = git(&["cat-file", "-s"]) {
+        let size: u64 = String::from_utf8_lossy(&out.stdout)
+            .trim()
+            .parse()
+            .unwrap_or(u64::MAX);
+        if size > tandem::MAX_FILE_BYTES {
+            errln!(
+                "error: {spec} is {size} bytes; tandem reads calc files of at most {} bytes",
+                tandem::MAX_FILE_BYTES
+            );
+            return None;
+        }
+    }
+    match git(&["cat-file", "blob"]) {
         Ok(out) if out.status.success() => match String::from_utf8(out.stdout) {
             Ok(text) => Some(Source::new(spec, text)),
             Err(_) => {
