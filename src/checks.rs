@@ -35,6 +35,20 @@ pub struct Outcome {
     pub pass: bool,
 }
 
+impl Outcome {
+    /// The two sides as the check is written, `(left, right)`: for `<=`
+    /// the demand and the capacity, for `>=` the value provided and the
+    /// value required. A table shows `left op right`, which reads true
+    /// exactly when the check passes.
+    #[must_use]
+    pub fn written(&self) -> (Quantity, Quantity) {
+        match self.op {
+            Compare::Le | Compare::Lt => (self.demand, self.capacity),
+            Compare::Ge | Compare::Gt => (self.capacity, self.demand),
+        }
+    }
+}
+
 /// All outcomes, grouped by check in file order, combinations in order.
 #[derive(Clone, Debug, PartialEq, Default)]
 pub struct Checks {

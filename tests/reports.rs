@@ -153,7 +153,7 @@ fn report_structure() {
         if !a.checks.outcomes.is_empty() {
             let checks_table = tables
                 .iter()
-                .find(|(h, _)| h.starts_with("CheckCombinationDemand"))
+                .find(|(h, _)| h.starts_with("CheckCombinationValueLimit"))
                 .expect("checks table");
             assert_eq!(checks_table.1, a.checks.outcomes.len() + 1);
         }

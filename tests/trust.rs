@@ -213,3 +213,53 @@ load b = -0 kN
     assert!(!json.contains("-0.0"), "{json}");
     assert!(!json.contains("null"), "{json}");
 }
+
+const CLAMPED: &str = r#"
+calc { title = "Clamp <script>alert(1)</script> *rev* B" }
+let fy  = 36 ksi
+let phi = 0.9
+let fa  = 0.6*fy*phi
+material steel { E = 29000 ksi }
+node a at 0 in
+node b at 10 in
+fix a
+fix b
+part bolt_a { material = steel; area = 0.5 in^2; ends = a, b; misfit = -0.01 in; carries = tension }
+check "residual clamp" : bolt_a.force >= 10 kip
+check "bolt *stress*" : bolt_a.stress <= fa
+"#;
+
+#[test]
+fn the_report_shows_user_text_as_written() {
+    let out = tandem_on(CLAMPED, &["report", "--html"]);
+    let html = String::from_utf8_lossy(&out.stdout);
+    // before: `0.6<em>fy</em>phi`, the signs gone
+    assert!(html.contains("0.6*fy*phi"), "{html}");
+    assert!(!html.contains("<em>fy</em>"));
+    assert!(!html.contains("<script>"));
+    assert!(html.contains("bolt *stress*"));
+    assert!(html.contains("&lt;script&gt;"));
+}
+
+#[test]
+fn a_greater_equal_check_reads_true() {
+    let out = tandem_on(CLAMPED, &["report"]);
+    let md = String::from_utf8_lossy(&out.stdout);
+    // the clamp force 29000 ksi · 0.5 in² · 0.01 in / 10 in = 14.50 kip
+    // (Hooke's law); before: "| 10.00 kip | ≥ 14.50 kip |", a falsehood
+    assert!(md.contains("| 14.50 kip | ≥ 10.00 kip |"), "{md}");
+    let text = tandem_on(CLAMPED, &["solve"]);
+    let t = String::from_utf8_lossy(&text.stdout);
+    assert!(t.contains("14.50 kip") && t.contains("≥ 10.00 kip"), "{t}");
+    // utilization to three decimals: 10 / 14.5
+    assert!(md.contains("0.690"), "{md}");
+}
+
+#[test]
+fn utilization_has_three_decimals_everywhere() {
+    assert_eq!(tandem::report::utilization(Some(1.0763)), "1.076");
+    assert_eq!(tandem::report::utilization(Some(0.90412)), "0.904");
+    assert_eq!(tandem::report::utilization(Some(-1e-9)), "0.000");
+    assert_eq!(tandem::report::utilization(None), "—");
+    assert_eq!(tandem::report::utilization(Some(f64::INFINITY)), "—");
+}

@@ -238,6 +238,19 @@ impl Display {
     }
 }
 
+/// A utilization (demand over capacity) to three decimals, `1.076`,
+/// `0.904`; `—` where it is undefined (a capacity that is not positive).
+/// The one place a utilization is rounded for printing.
+#[must_use]
+pub fn utilization(u: Option<f64>) -> String {
+    match u {
+        // `+ 0.0` and the check for a rounded zero keep `-0.000` out
+        Some(u) if (u * 1000.0).round() == 0.0 => "0.000".into(),
+        Some(u) if u.is_finite() => format!("{:.3}", u + 0.0),
+        _ => "—".into(),
+    }
+}
+
 /// Values of one kind below this fraction of the largest of that kind in
 /// their combination are round-off and print as 0 in text and Markdown
 /// (JSON keeps the raw value). The same relative 1e-9 as the band within

@@ -5,7 +5,7 @@
 
 use std::fmt::Write as _;
 
-use super::display::{number, Display, Scales, Shown};
+use super::display::{number, utilization, Display, Scales, Shown};
 use super::table::combination_text;
 use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
@@ -117,6 +117,47 @@ impl Fmt<'_> {
     }
 }
 
+/// User text (a name, a label, a title field) as Markdown that shows it as
+/// written: the characters Markdown would read as markup are escaped, so
+/// `0.6*fy*phi` keeps its signs and raw HTML never passes into the page.
+fn text(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 8);
+    for c in s.chars() {
+        match c {
+            '\\' | '`' | '*' | '_' | '<' | '>' | '[' | ']' | '~' | '#' | '&' => {
+                out.push('\\');
+                out.push(c);
+            }
+            '\n' | '\r' => out.push(' '),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// User text as a code span, with a fence longer than any run of
+/// backticks inside it.
+fn code(s: &str) -> String {
+    let s = s.replace(['\n', '\r'], " ");
+    let mut longest = 0;
+    let mut run = 0;
+    for c in s.chars() {
+        if c == '`' {
+            run += 1;
+            longest = longest.max(run);
+        } else {
+            run = 0;
+        }
+    }
+    let fence = "`".repeat(longest + 1);
+    let pad = if s.starts_with('`') || s.ends_with('`') {
+        " "
+    } else {
+        ""
+    };
+    format!("{fence}{pad}{s}{pad}{fence}")
+}
+
 /// A negative value in parentheses, so `a - (-b)` reads unambiguously.
 fn bracket_negative(s: String) -> String {
     if s.starts_with('-') {
@@ -132,10 +173,6 @@ fn degree(name: &str) -> String {
         "degC" => "°C".into(),
         other => other.to_string(),
     }
-}
-
-fn pct(u: Option<f64>) -> String {
-    u.map_or("—".into(), |u| number(u, 3))
 }
 
 /// The status-line outcome of `n` governing checks of which `fails` fail,
@@ -176,7 +213,7 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         .title
         .get("title")
         .unwrap_or("Load-sharing calculation");
-    let _ = write!(doc.out, "# {title}\n\n");
+    let _ = write!(doc.out, "# {}\n\n", text(title));
     let mut rows = Vec::new();
     for key in crate::model::Title::KEYS.iter().skip(1) {
         if let Some(v) = model.title.get(key) {
@@ -184,10 +221,10 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             if let Some(c) = k.get_mut(0..1) {
                 c.make_ascii_uppercase();
             }
-            rows.push(vec![k, v.to_string()]);
+            rows.push(vec![k, text(v)]);
         }
     }
-    rows.push(vec!["Calc file".into(), format!("`{}`", source.name)]);
+    rows.push(vec!["Calc file".into(), code(&source.name)]);
     doc.table(&["Item", "Value"], &rows, &[]);
 
     // Status line.
@@ -201,8 +238,8 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     let highest = checks.highest().map_or(String::new(), |o| {
         format!(
             "; highest utilization {} ({}, combination `{}`)",
-            pct(o.utilization),
-            o.label,
+            utilization(o.utilization),
+            text(&o.label),
             solution.combinations[o.combination].name
         )
     });
@@ -222,9 +259,9 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             .iter()
             .map(|o| {
                 vec![
-                    o.label.clone(),
+                    text(&o.label),
                     format!("`{}`", solution.combinations[o.combination].name),
-                    pct(o.utilization),
+                    utilization(o.utilization),
                     if o.pass {
                         "pass".into()
                     } else {
@@ -252,7 +289,7 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         }
         let smax = solution.combinations[cf].parts[i].stress.map(|s| s.value);
         rows.push(vec![
-            p.name.to_string(),
+            text(&p.name),
             f.force(fmax),
             smax.map_or("—".into(), |s| f.stress(s)),
             format!("`{}`", solution.combinations[cf].name),
@@ -321,15 +358,15 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             .map(|(k, o)| {
                 let is_gov = gov.contains(&k);
                 vec![
-                    o.label.clone(),
+                    text(&o.label),
                     if is_gov {
                         format!("`{}` (governs)", solution.combinations[o.combination].name)
                     } else {
                         format!("`{}`", solution.combinations[o.combination].name)
                     },
-                    display.quantity(o.demand),
-                    format!("{} {}", o.op.symbol(), display.quantity(o.capacity)),
-                    pct(o.utilization),
+                    display.quantity(o.written().0),
+                    format!("{} {}", o.op.symbol(), display.quantity(o.written().1)),
+                    utilization(o.utilization),
                     if o.pass {
                         "pass".into()
                     } else {
@@ -342,8 +379,8 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             &[
                 "Check",
                 "Combination",
-                "Demand",
-                "Capacity",
+                "Value",
+                "Limit",
                 "Utilization",
                 "Result",
             ],
@@ -356,15 +393,15 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             .map(|c| {
                 format!(
                     "\"{}\": {} {} {}",
-                    c.label,
-                    source.slice(c.lhs.span).trim(),
+                    text(&c.label),
+                    code(source.slice(c.lhs.span).trim()),
                     c.op.symbol(),
-                    source.slice(c.rhs.span).trim()
+                    code(source.slice(c.rhs.span).trim())
                 )
             })
             .collect();
         if !lines.is_empty() {
-            doc.p("As written in the calc file (utilization is demand over capacity):");
+            doc.p("As written in the calc file (utilization is demand over capacity: the left side over the right for `<=`, the right side over the left for `>=`):");
             for l in lines {
                 doc.eq(&l);
             }
@@ -403,7 +440,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 } else {
                     f.d.quantity(l.value)
                 };
-                let mut row = vec![l.name.clone(), expr, value];
+                let mut row = vec![text(&l.name), code(&expr), value];
                 if with_sources {
                     row.push(if l.sources.is_empty() {
                         "—".into()
@@ -443,7 +480,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 format!("{} ({})", f.stress(m.e.value), m.e_sources.join("; "))
             };
             vec![
-                m.name.clone(),
+                text(&m.name),
                 e,
                 m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
                 opt(m.yield_strength),
@@ -472,7 +509,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 (Kind::Plane, [false, true]) => "fixed in y (roller)",
                 _ => "free",
             };
-            vec![n.name.to_string(), at, sup.to_string()]
+            vec![text(&n.name), at, sup.to_string()]
         })
         .collect();
     doc.table(&["Node", "Position", "Support"], &rows, &[1]);
@@ -521,7 +558,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                     section,
                     ..
                 } => (
-                    model.materials[*material].name.clone(),
+                    text(&model.materials[*material].name),
                     match section {
                         Some(s) => format!("{} ({s})", f.area(area.value)),
                         None => f.area(area.value),
@@ -540,7 +577,7 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
                 notes.push(format!("misfit {}", f.small(p.misfit.value)));
             }
             vec![
-                p.name.to_string(),
+                text(&p.name),
                 ends,
                 mat,
                 area,
@@ -1353,7 +1390,7 @@ fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                     .enumerate()
                     .map(|(i, p)| {
                         vec![
-                            p.name.to_string(),
+                            text(&p.name),
                             f.force(c.limit_forces[i]),
                             f.force(c.residual.get(i).copied().unwrap_or(0.0)),
                         ]
@@ -1420,7 +1457,7 @@ fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                 let s0 = short.parts[i].stress.map(|s| s.value);
                 let s1 = r.parts[i].stress.map(|s| s.value);
                 vec![
-                    p.name.to_string(),
+                    text(&p.name),
                     f.force(short.parts[i].force.value),
                     f.force(r.parts[i].force.value),
                     s0.map_or("—".into(), |s| f.stress(s)),
@@ -1455,11 +1492,11 @@ fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             .iter()
             .map(|o| {
                 vec![
-                    o.label.clone(),
+                    text(&o.label),
                     format!("`{}`", lt.combinations[o.combination].name),
-                    f.d.quantity(o.demand),
-                    format!("{} {}", o.op.symbol(), f.d.quantity(o.capacity)),
-                    pct(o.utilization),
+                    f.d.quantity(o.written().0),
+                    format!("{} {}", o.op.symbol(), f.d.quantity(o.written().1)),
+                    utilization(o.utilization),
                     if o.pass {
                         "pass".into()
                     } else {
@@ -1472,8 +1509,8 @@ fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             &[
                 "Check",
                 "Governing combination",
-                "Demand",
-                "Capacity",
+                "Value",
+                "Limit",
                 "Utilization",
                 "Result",
             ],

@@ -6,7 +6,7 @@ pub mod json;
 pub mod markdown;
 pub mod table;
 
-pub use display::{number, Display};
+pub use display::{number, utilization, Display};
 
 /// A print-friendly, self-contained HTML page of a Markdown report.
 #[must_use]

@@ -256,8 +256,8 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         let mut rows = vec![vec![
             "check".to_string(),
             "combination".to_string(),
-            "demand".to_string(),
-            "capacity".to_string(),
+            "value".to_string(),
+            "limit".to_string(),
             "utilization".to_string(),
             "result".to_string(),
         ]];
@@ -265,9 +265,9 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             rows.push(vec![
                 o.label.clone(),
                 solution.combinations[o.combination].name.clone(),
-                d.quantity(o.demand),
-                d.quantity(o.capacity),
-                o.utilization.map_or("—".into(), |u| number(u, 3)),
+                d.quantity(o.written().0),
+                format!("{} {}", o.op.symbol(), d.quantity(o.written().1)),
+                super::utilization(o.utilization),
                 if o.pass { "pass" } else { "FAIL" }.to_string(),
             ]);
         }
@@ -294,7 +294,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             rows.push(vec![
                 o.label.clone(),
                 lt.combinations[o.combination].name.clone(),
-                o.utilization.map_or("—".into(), |u| number(u, 3)),
+                super::utilization(o.utilization),
                 if o.pass { "pass" } else { "FAIL" }.to_string(),
             ]);
         }

@@ -525,15 +525,11 @@ pub fn diff(
     }
 }
 
-fn util(u: Option<f64>) -> String {
-    u.map_or("—".into(), |u| number(u, 3))
-}
-
 fn status(s: Option<(Option<f64>, bool)>) -> String {
     match s {
         None => "—".into(),
-        Some((u, true)) => format!("{} pass", util(u)),
-        Some((u, false)) => format!("{} **FAIL**", util(u)),
+        Some((u, true)) => format!("{} pass", crate::report::utilization(u)),
+        Some((u, false)) => format!("{} **FAIL**", crate::report::utilization(u)),
     }
 }
 
@@ -544,7 +540,7 @@ pub fn markdown(diff: &Diff, display: &Display) -> String {
         diff.old_name, diff.new_name
     );
     let gov = |g: &Option<(f64, String, String)>| match g {
-        Some((u, l, c)) => format!("{} ({l}, `{c}`)", number(*u, 3)),
+        Some((u, l, c)) => format!("{} ({l}, `{c}`)", crate::report::utilization(Some(*u))),
         None => "no checks".into(),
     };
     out.push_str(&format!(
@@ -651,12 +647,18 @@ pub fn markdown(diff: &Diff, display: &Display) -> String {
 
 /// The diff as JSON (SI values).
 pub fn json(diff: &Diff) -> Value {
-    let side =
-        |s: Option<(Option<f64>, bool)>| s.map(|(u, p)| json!({"utilization": u, "pass": p}));
+    // a utilization that does not exist (capacity not positive) is left out
+    let util = |u: Option<f64>, mut v: Value| {
+        if let Some(u) = u.filter(|u| u.is_finite()) {
+            v["utilization"] = json!(u);
+        }
+        v
+    };
+    let side = |s: Option<(Option<f64>, bool)>| s.map(|(u, p)| util(u, json!({"pass": p})));
     json!({
         "old": diff.old_name,
         "new": diff.new_name,
-        "governing_utilization": diff.governing.iter().map(|g| g.as_ref().map(|(u, l, c)| json!({"utilization": u, "check": l, "combination": c}))).collect::<Vec<_>>(),
+        "governing_utilization": diff.governing.iter().map(|g| g.as_ref().map(|(u, l, c)| util(Some(*u), json!({"check": l, "combination": c})))).collect::<Vec<_>>(),
         "newly_failing": diff.newly_failing(),
         "inputs": diff.inputs.iter().map(|c| json!({"input": c.what, "old": c.old, "new": c.new})).collect::<Vec<_>>(),
         "added": diff.added,

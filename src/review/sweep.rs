@@ -341,7 +341,7 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
         Some(u) => number(u.value(q.value), d.digits),
         None => number(q.value, d.digits),
     };
-    let util = |u: &Option<f64>| u.map_or("—".into(), |u| number(u, 3));
+    let util = |u: &Option<f64>| crate::report::utilization(*u);
     let mut rows = vec![head];
     for s in &sweep.steps {
         let mut r = vec![show(&s.value), util(&s.governing)];
@@ -360,8 +360,8 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
         )),
         Some(Seek::NoRoot { lowest, highest }) => out.push_str(&format!(
             "\nseek: no value in the range brings the governing utilization to 1.0 (it runs from {} to {}); widen the range\n",
-            number(*lowest, 3),
-            number(*highest, 3)
+            crate::report::utilization(Some(*lowest)),
+            crate::report::utilization(Some(*highest))
         )),
         None => {}
     }
