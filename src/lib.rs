@@ -142,21 +142,9 @@ pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
     let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
     let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
     let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
-    let long_term = solve::longterm::long_term(&model).map_err(|e| vec![Error::from(e)])?;
     let buckling = checks::buckling(&model, &solution);
-    let states: Vec<solve::CombinationResult> =
-        long_term.iter().filter_map(|l| l.result.clone()).collect();
-    let long_term_checks = if states.is_empty() {
-        None
-    } else {
-        let lt = solve::Solution {
-            unknowns: solution.unknowns,
-            combinations: states,
-            warnings: Vec::new(),
-        };
-        let c = checks::evaluate(&model, &lt).map_err(|e| vec![Error::from(e)])?;
-        Some((lt, c))
-    };
+    let (long_term, long_term_checks) =
+        long_term_checks(&model, &solution, &checks::Refs::new(&model, &[]))?;
     Ok(Analysis {
         model,
         solution,
@@ -167,6 +155,40 @@ pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
         long_term_checks,
     })
 }
+
+/// The long-term states of a model (creep under sustained cases) and every
+/// check evaluated in them, with those states as a solution of their own
+/// (`None` when the model has no long-term state). `refs` must come from
+/// `checks::Refs::new` on this model.
+///
+/// # Errors
+/// A long-term state that cannot be solved, or a check that cannot be
+/// evaluated in it.
+pub fn long_term_checks(
+    model: &Model,
+    solution: &solve::Solution,
+    refs: &checks::Refs<'_>,
+) -> Result<LongTermChecks, Vec<Error>> {
+    let long_term = solve::longterm::long_term(model).map_err(|e| vec![Error::from(e)])?;
+    let states: Vec<solve::CombinationResult> =
+        long_term.iter().filter_map(|l| l.result.clone()).collect();
+    if states.is_empty() {
+        return Ok((long_term, None));
+    }
+    let lt = solve::Solution {
+        unknowns: solution.unknowns,
+        combinations: states,
+        warnings: Vec::new(),
+    };
+    let c = checks::evaluate_with(model, &lt, refs).map_err(|e| vec![Error::from(e)])?;
+    Ok((long_term, Some((lt, c))))
+}
+
+/// The long-term states and the checks evaluated in them.
+pub type LongTermChecks = (
+    Vec<solve::longterm::LongTerm>,
+    Option<(solve::Solution, checks::Checks)>,
+);
 
 /// Parse a display-unit choice as the `--units` flag takes it: `us`, `si`,
 /// or a comma-separated list such as `kip,in,ksi`.

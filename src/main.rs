@@ -505,15 +505,34 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
             args.vary
         ));
     };
-    let Some((from, to)) = range.split_once("..") else {
+    let Some((from_text, to_text)) = range.split_once("..") else {
         return fail(format!(
             "`{range}` needs the form FROM..TO, e.g. `0.25 in..0.75 in`"
         ));
     };
-    let (from, to) = match (tandem::quantity(from), tandem::quantity(to)) {
+    // `10 kN...100 kN` would read as 10 kN to .100 kN
+    if to_text.trim_start().starts_with('.') || to_text.contains("..") {
+        return fail(format!(
+            "`{range}` needs the form FROM..TO with two dots, e.g. `10 kN..100 kN`"
+        ));
+    }
+    let (from, to) = match (tandem::quantity(from_text), tandem::quantity(to_text)) {
         (Ok(a), Ok(b)) => (a, b),
         (Err(e), _) | (_, Err(e)) => return fail(e),
     };
+    // the unit the range is written in (`deg`), to answer in
+    let range_unit = from_text
+        .find(|c: char| c.is_ascii_alphabetic())
+        .map(|i| from_text[i..].trim().to_string())
+        .filter(|u| !u.is_empty())
+        .and_then(|u| {
+            tandem::quantity(&format!("1 {u}"))
+                .ok()
+                .map(|q| tandem::report::display::Shown {
+                    name: u,
+                    factor: q.value,
+                })
+        });
     let Some(source) = read(args.file) else {
         return bad();
     };
@@ -536,14 +555,23 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
         }
     }
     let solve_error = |(q, errors): (tandem::units::Quantity, Vec<tandem::Error>)| {
-        errln!("at {} = {} SI:", name.trim(), q.value);
+        match &range_unit {
+            Some(u) => errln!(
+                "at {} = {} {}:",
+                name.trim(),
+                tandem::report::number(u.value(q.value), 6),
+                u.name
+            ),
+            None => errln!("at {} = {}:", name.trim(), q.value),
+        }
         report_errors(&errors, &source);
         bad()
     };
-    let table = match sweeper.sweep(from, to, args.steps) {
+    let mut table = match sweeper.sweep(from, to, args.steps) {
         Ok(t) => t,
         Err(e) => return solve_error(e),
     };
+    table.unit.clone_from(&range_unit);
     let seek = if args.seek {
         match sweeper.seek(&table, 1e-6) {
             Ok(s) => Some(s),

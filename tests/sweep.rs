@@ -184,3 +184,118 @@ fn only_what_depends_on_the_parameter_is_re_solved() {
         assert!((s.governing.unwrap_or(0.0) - sigma / limit).abs() < 1e-9);
     }
 }
+
+/// A sweep step at the file's own value sees every check `solve` sees:
+/// the automatic checks and the long-term state's (before: a pier whose
+/// long-term check governed swept with the short-term value alone).
+#[test]
+fn a_step_sees_every_check_solve_sees() {
+    let examples = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples");
+    let mut sources: Vec<Source> = std::fs::read_dir(&examples)
+        .expect("examples")
+        .flatten()
+        .map(|e| tandem::read_source(&e.path()).expect("read"))
+        .collect();
+    // the pier's bars: 0.747 short term, 1.12 long term (creep moves load
+    // onto them); the long-term failure governs
+    let pier = std::fs::read_to_string(examples.join("conveyor_pier.tandem")).expect("pier");
+    sources.push(Source::new(
+        "pier_bars.tandem",
+        pier + "check \"bar stress\" : -bars.stress <= 150 MPa\n",
+    ));
+    let mut tried = 0;
+    for src in sources {
+        let a = tandem::analyse(&src).unwrap_or_else(|_| panic!("analyse"));
+        let Some(l) = a.model.lets.first() else {
+            continue;
+        };
+        let sweeper = Sweeper::new(&src, &l.name, &[]).unwrap_or_else(|_| panic!("sweeper"));
+        let table = sweeper
+            .sweep(l.value, l.value, 1)
+            .unwrap_or_else(|_| panic!("sweep"));
+        let all = a
+            .checks
+            .outcomes
+            .iter()
+            .chain(a.long_term_checks.iter().flat_map(|(_, c)| &c.outcomes))
+            .map(|o| o.utilization.unwrap_or(f64::INFINITY))
+            .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
+        assert_eq!(table.steps[0].governing, all, "{}", src.name);
+        tried += 1;
+    }
+    assert!(tried >= 3);
+    let last = tandem::analyse(&Source::new("p", pier_check())).unwrap_or_else(|_| panic!("a"));
+    assert_eq!(last.failures(), 1);
+}
+
+fn pier_check() -> String {
+    let examples = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples");
+    std::fs::read_to_string(examples.join("conveyor_pier.tandem")).expect("pier")
+        + "check \"bar stress\" : -bars.stress <= 150 MPa\n"
+}
+
+/// A utilization that falls then rises crosses 1.0 twice: both are found,
+/// and the sweep says it is not monotonic. |k − 5| / 2 = 1 at k = 3 and 7.
+#[test]
+fn seek_reports_every_crossing() {
+    let text = format!(
+        "let k = 1\ncheck \"band\" : abs(k - 5) <= 2\n{}",
+        common_assembly()
+    );
+    let src = tandem::source::Source::new("band.tandem", text);
+    let sweeper = Sweeper::new(&src, "k", &[]).unwrap_or_else(|_| panic!("sweeper"));
+    let table = sweeper
+        .sweep(
+            tandem::quantity("0").expect("q"),
+            tandem::quantity("10").expect("q"),
+            11,
+        )
+        .unwrap_or_else(|_| panic!("sweep"));
+    match sweeper
+        .seek(&table, 1e-9)
+        .unwrap_or_else(|_| panic!("seek"))
+    {
+        Seek::Found {
+            crossings,
+            monotonic,
+            ..
+        } => {
+            let at: Vec<f64> = crossings.iter().map(|c| c.value).collect();
+            assert_eq!(at.len(), 2, "{at:?}");
+            assert!(
+                (at[0] - 3.0).abs() < 1e-6 && (at[1] - 7.0).abs() < 1e-6,
+                "{at:?}"
+            );
+            assert!(!monotonic);
+        }
+        Seek::NoRoot { .. } => panic!("two roots lie in the range"),
+    }
+}
+
+fn common_assembly() -> &'static str {
+    "material s { E = 200 GPa }\nnode a at 0 m\nnode b at 1 m\nfix a\npart p { material = s; area = 100 mm^2; ends = a, b }\nload b = 1 kN\n"
+}
+
+#[test]
+fn a_range_in_deg_answers_in_deg_and_three_dots_are_refused() {
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=10 mm..30 mm",
+        "--steps",
+        "3",
+        "--seek",
+    ]);
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.starts_with("t (mm)"), "{text}");
+    assert!(text.contains(" mm (to within"), "{text}");
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=0.3 in...1.2 in",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("two dots"));
+}

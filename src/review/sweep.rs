@@ -41,6 +41,9 @@ pub struct Step {
 #[derive(Clone, Debug, PartialEq)]
 pub struct Sweep {
     pub name: String,
+    /// The unit the range was written in (`deg`), for showing the
+    /// parameter; `None`: the display's unit for its dimension.
+    pub unit: Option<crate::report::display::Shown>,
     pub labels: Vec<String>,
     pub shown: Vec<Shown>,
     pub steps: Vec<Step>,
@@ -49,9 +52,14 @@ pub struct Sweep {
 /// The answer of a goal seek.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Seek {
-    /// The value at which the governing utilization reaches 1.0.
+    /// The values at which the governing utilization reaches 1.0: `value`
+    /// the first, `crossings` every one in the range, in order;
+    /// `monotonic` whether the utilization only rises or only falls over
+    /// the steps.
     Found {
         value: Quantity,
+        crossings: Vec<Quantity>,
+        monotonic: bool,
         tolerance: f64,
         evaluations: usize,
     },
@@ -159,12 +167,30 @@ impl<'a> Sweeper<'a> {
         let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
         let refs = Refs::new(&model, &objects);
         let checks = evaluate_with(&model, solution, &refs).map_err(|e| vec![Error::from(e)])?;
-        let governing = checks
+        // every check `solve` evaluates: the long-term state's too
+        let (_, long) = crate::long_term_checks(&model, solution, &refs)?;
+        let long = long.map(|(_, c)| c);
+        let all = checks
             .outcomes
             .iter()
+            .chain(long.iter().flat_map(|c| &c.outcomes));
+        let governing = all
             .map(|o| o.utilization.unwrap_or(f64::INFINITY))
             .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
-        let per_check = checks.governing().iter().map(|o| o.utilization).collect();
+        let short = checks.governing();
+        let long_gov = long.as_ref().map(Checks::governing).unwrap_or_default();
+        let worse = |a: Option<f64>, b: Option<f64>| match (a, b) {
+            (Some(a), Some(b)) => Some(a.max(b)),
+            (None, _) | (_, None) => None,
+        };
+        let per_check = short
+            .iter()
+            .enumerate()
+            .map(|(k, o)| match long_gov.get(k) {
+                Some(l) if l.label == o.label => worse(o.utilization, l.utilization),
+                _ => o.utilization,
+            })
+            .collect();
         let shown = self
             .shown
             .iter()
@@ -227,6 +253,7 @@ impl<'a> Sweeper<'a> {
         }
         Ok(Sweep {
             name: self.name.clone(),
+            unit: None,
             labels,
             shown: self.shown.clone(),
             steps: out,
@@ -234,59 +261,82 @@ impl<'a> Sweeper<'a> {
     }
 
     /// Find where the governing utilization reaches 1.0 inside the sweep's
-    /// range: the first bracketing pair of steps, then bisection to
-    /// `tolerance` (as a fraction of the range).
+    /// range: every pair of neighbouring steps that brackets 1.0, each
+    /// refined by bisection to `tolerance` (as a fraction of the range).
     ///
     /// # Errors
-    /// A value inside the bracket that cannot be solved.
+    /// A value inside a bracket that cannot be solved.
     pub fn seek(&self, sweep: &Sweep, tolerance: f64) -> Result<Seek, (Quantity, Vec<Error>)> {
-        let us: Vec<f64> = sweep.steps.iter().filter_map(|s| s.governing).collect();
+        // an undefined utilization (capacity not positive) stands for ∞
+        let g = |s: &Step| {
+            s.governing
+                .map(|u| if u.is_nan() { f64::INFINITY } else { u })
+        };
+        let us: Vec<f64> = sweep.steps.iter().filter_map(g).collect();
         let lowest = us.iter().copied().fold(f64::INFINITY, f64::min);
         let highest = us.iter().copied().fold(f64::NEG_INFINITY, f64::max);
-        let bracket = sweep
-            .steps
-            .windows(2)
-            .find(|w| match (w[0].governing, w[1].governing) {
-                (Some(a), Some(b)) => (a - 1.0) * (b - 1.0) <= 0.0,
-                _ => false,
-            });
-        let Some(w) = bracket else {
+        let rising = us.windows(2).all(|w| w[1] >= w[0]);
+        let falling = us.windows(2).all(|w| w[1] <= w[0]);
+        let monotonic = rising || falling;
+        let dim = sweep.steps.first().map_or(self.dim, |s| s.value.dim);
+        let range = match (sweep.steps.first(), sweep.steps.last()) {
+            (Some(a), Some(b)) => (b.value.value - a.value.value).abs(),
+            _ => 0.0,
+        };
+        let tol = tolerance * range.max(f64::MIN_POSITIVE);
+        let mut crossings = Vec::new();
+        let mut evaluations = 0;
+        for w in sweep.steps.windows(2) {
+            let (Some(ua), Some(ub)) = (g(&w[0]), g(&w[1])) else {
+                continue;
+            };
+            let (fa, fb) = (ua - 1.0, ub - 1.0);
+            // a step exactly at 1.0 is its own crossing, found once
+            if fa == 0.0 {
+                if crossings.last() != Some(&w[0].value.value) {
+                    crossings.push(w[0].value.value);
+                }
+                continue;
+            }
+            if fb == 0.0 || (fa < 0.0) == (fb < 0.0) {
+                continue;
+            }
+            let (mut a, mut b, mut ga) = (w[0].value.value, w[1].value.value, fa);
+            while (b - a).abs() > tol && evaluations < 200 * (crossings.len() + 1) {
+                let m = 0.5 * (a + b);
+                let q = Quantity::new(m, dim);
+                let (_, _, step) = self.at(q).map_err(|e| (q, e))?;
+                evaluations += 1;
+                let gm = g(&step).unwrap_or(0.0) - 1.0;
+                if gm == 0.0 {
+                    a = m;
+                    b = m;
+                    break;
+                }
+                if (ga < 0.0) == (gm < 0.0) {
+                    a = m;
+                    ga = gm;
+                } else {
+                    b = m;
+                }
+            }
+            crossings.push(0.5 * (a + b));
+        }
+        if let Some(last) = sweep.steps.last() {
+            if g(last) == Some(1.0) && crossings.last() != Some(&last.value.value) {
+                crossings.push(last.value.value);
+            }
+        }
+        let Some(&first) = crossings.first() else {
             return Ok(Seek::NoRoot { lowest, highest });
         };
-        let (mut a, mut b) = (w[0].value.value, w[1].value.value);
-        let mut ga = w[0].governing.unwrap_or(0.0) - 1.0;
-        let dim = w[0].value.dim;
-        let range =
-            (sweep.steps[sweep.steps.len() - 1].value.value - sweep.steps[0].value.value).abs();
-        let tol = tolerance * range.max(f64::MIN_POSITIVE);
-        let mut evaluations = 0;
-        if ga == 0.0 {
-            return Ok(Seek::Found {
-                value: Quantity::new(a, dim),
-                tolerance: tol,
-                evaluations,
-            });
-        }
-        while (b - a).abs() > tol && evaluations < 200 {
-            let m = 0.5 * (a + b);
-            let q = Quantity::new(m, dim);
-            let (_, _, step) = self.at(q).map_err(|e| (q, e))?;
-            evaluations += 1;
-            let gm = step.governing.unwrap_or(0.0) - 1.0;
-            if gm == 0.0 {
-                a = m;
-                b = m;
-                break;
-            }
-            if (ga < 0.0) == (gm < 0.0) {
-                a = m;
-                ga = gm;
-            } else {
-                b = m;
-            }
-        }
         Ok(Seek::Found {
-            value: Quantity::new(0.5 * (a + b), dim),
+            value: Quantity::new(first, dim),
+            crossings: crossings
+                .into_iter()
+                .map(|v| Quantity::new(v, dim))
+                .collect(),
+            monotonic,
             tolerance: tol,
             evaluations,
         })
@@ -313,7 +363,7 @@ pub fn json(sweep: &Sweep, seek: Option<&Seek>) -> Value {
         })
         .collect();
     let seek = seek.map(|s| match s {
-        Seek::Found { value, tolerance, evaluations } => json!({"found": true, "value_si": value.value, "tolerance_si": tolerance, "evaluations": evaluations}),
+        Seek::Found { value, crossings, monotonic, tolerance, evaluations } => json!({"found": true, "value_si": value.value, "crossings_si": crossings.iter().map(|c| c.value).collect::<Vec<_>>(), "monotonic": monotonic, "tolerance_si": tolerance, "evaluations": evaluations}),
         Seek::NoRoot { lowest, highest } => json!({"found": false, "lowest_utilization": lowest, "highest_utilization": highest}),
     });
     json!({"parameter": sweep.name, "steps": steps, "seek": seek})
@@ -324,7 +374,15 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
     use crate::report::number;
     let unit_of = |q: &Quantity| d.unit_for(q.dim).map(|u| u.name.clone());
     let first = sweep.steps.first().map(|s| s.value);
-    let mut head = vec![match first.as_ref().and_then(unit_of) {
+    let param_unit = sweep
+        .unit
+        .clone()
+        .or_else(|| first.and_then(|q| d.unit_for(q.dim).cloned()));
+    let param = |v: f64| match &param_unit {
+        Some(u) => number(u.value(v), d.digits),
+        None => number(v, d.digits),
+    };
+    let mut head = vec![match param_unit.as_ref().map(|u| u.name.clone()) {
         Some(u) => format!("{} ({u})", sweep.name),
         None => sweep.name.clone(),
     }];
@@ -344,20 +402,43 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
     let util = |u: &Option<f64>| crate::report::utilization(*u);
     let mut rows = vec![head];
     for s in &sweep.steps {
-        let mut r = vec![show(&s.value), util(&s.governing)];
+        let mut r = vec![param(s.value.value), util(&s.governing)];
         r.extend(s.checks.iter().map(util));
         r.extend(s.shown.iter().map(show));
         rows.push(r);
     }
     let mut out = crate::report::table::aligned(&rows, &[], "");
     match seek {
-        Some(Seek::Found { value, tolerance, evaluations }) => out.push_str(&format!(
-            "\nseek: the governing utilization reaches 1.0 at {} = {} (to within {:.1e}{}; {evaluations} extra solves)\n",
-            sweep.name,
-            d.quantity(*value),
-            d.unit_for(value.dim).map_or(*tolerance, |u| u.value(*tolerance)),
-            d.unit_for(value.dim).map_or(String::new(), |u| format!(" {}", u.name)),
-        )),
+        Some(Seek::Found {
+            crossings,
+            monotonic,
+            tolerance,
+            evaluations,
+            ..
+        }) => {
+            let unit = param_unit
+                .as_ref()
+                .map_or(String::new(), |u| format!(" {}", u.name));
+            let at: Vec<String> = crossings
+                .iter()
+                .map(|c| format!("{}{unit}", param(c.value)))
+                .collect();
+            out.push_str(&format!(
+                "\nseek: the governing utilization reaches 1.0 at {} = {} (to within {:.1e}{unit}; {evaluations} extra solves)\n",
+                sweep.name,
+                at.join(", "),
+                param_unit.as_ref().map_or(*tolerance, |u| u.value(*tolerance)),
+            ));
+            if crossings.len() > 1 {
+                out.push_str(&format!(
+                    "seek: it crosses 1.0 {} times in the range; each crossing is listed\n",
+                    crossings.len()
+                ));
+            }
+            if !monotonic {
+                out.push_str("seek: the utilization is not monotonic over the range: a value between the steps may pass 1.0 unseen; use more steps to be sure\n");
+            }
+        }
         Some(Seek::NoRoot { lowest, highest }) => out.push_str(&format!(
             "\nseek: no value in the range brings the governing utilization to 1.0 (it runs from {} to {}); widen the range\n",
             crate::report::utilization(Some(*lowest)),
