@@ -58,14 +58,43 @@ pub fn read_source_limited(path: &Path, max_bytes: u64) -> Result<Source, String
         ));
     }
     let bytes = std::fs::read(path).map_err(|e| format!("cannot read {}: {e}", path.display()))?;
-    let text = String::from_utf8(bytes).map_err(|e| {
+    let name = path.display().to_string();
+    text_of(&name, bytes).map(|text| Source::new(name, text))
+}
+
+/// The text of a calc file's bytes: UTF-8, a leading byte-order mark
+/// dropped, no NUL byte.
+///
+/// # Errors
+/// A message naming the file, the line and the column of the first byte
+/// that is not UTF-8 text, or of a NUL byte.
+pub fn text_of(name: &str, mut bytes: Vec<u8>) -> Result<String, String> {
+    if bytes.starts_with(&[0xEF, 0xBB, 0xBF]) {
+        bytes.drain(..3);
+    }
+    let at = |bytes: &[u8], i: usize| {
+        let before = &bytes[..i];
+        let line = before.iter().filter(|&&b| b == b'\n').count() + 1;
+        let start = before
+            .iter()
+            .rposition(|&b| b == b'\n')
+            .map_or(0, |p| p + 1);
+        let column = String::from_utf8_lossy(&before[start..]).chars().count() + 1;
+        format!("line {line}, column {column}")
+    };
+    if let Some(i) = bytes.iter().position(|&b| b == 0) {
+        return Err(format!(
+            "{name} holds a NUL byte at {}; a calc file is plain text",
+            at(&bytes, i)
+        ));
+    }
+    String::from_utf8(bytes).map_err(|e| {
+        let i = e.utf8_error().valid_up_to();
         format!(
-            "{} is not UTF-8 text (byte {})",
-            path.display(),
-            e.utf8_error().valid_up_to()
+            "{name} is not UTF-8 text: byte {i} ({}) is not; save the file as UTF-8",
+            at(e.as_bytes(), i)
         )
-    })?;
-    Ok(Source::new(path.display().to_string(), text))
+    })
 }
 
 /// Parse and check a calc file: the typed model, or every error found.

@@ -139,7 +139,12 @@ fn write_checked(
         f.sync_all()?;
         drop(f);
         if let Some(old) = expected {
-            if fs::read(&target).ok().as_deref() != Some(old) {
+            // a leading byte-order mark, dropped when it was read, is no change
+            let now = fs::read(&target).ok();
+            let now = now
+                .as_deref()
+                .map(|b| b.strip_prefix(&[0xEF, 0xBB, 0xBF]).unwrap_or(b));
+            if now != Some(old) {
                 return Err(io::Error::other(format!(
                     "{} changed after it was read; not replaced",
                     target.display()

@@ -263,3 +263,25 @@ fn utilization_has_three_decimals_everywhere() {
     assert_eq!(tandem::report::utilization(None), "—");
     assert_eq!(tandem::report::utilization(Some(f64::INFINITY)), "—");
 }
+
+#[test]
+fn a_byte_order_mark_is_accepted_and_nul_or_non_utf8_named_with_line_and_column() {
+    let text = ROD.replace("AREA", "100 mm^2");
+    let with_bom = format!("\u{feff}{text}");
+    assert_eq!(tandem_on(&with_bom, &["check"]).status.code(), Some(0));
+    let err = tandem::text_of("c.tandem", b"let a = 1\nlet b\0 = 2\n".to_vec()).expect_err("NUL");
+    assert!(err.contains("NUL byte at line 2, column 6"), "{err}");
+    let err =
+        tandem::text_of("c.tandem", b"let a = 1\nlet \xff = 2\n".to_vec()).expect_err("latin-1");
+    assert!(err.contains("line 2, column 5"), "{err}");
+}
+
+#[test]
+fn a_node_tied_to_itself_is_an_error() {
+    // before: accepted silently
+    let text = ROD.replace("AREA", "100 mm^2") + "tie b, b\n";
+    let out = tandem_on(&text, &["check"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(err.contains("node `b` is tied to itself"), "{err}");
+}

@@ -1323,7 +1323,20 @@ impl<'t> Builder<'t> {
                                 let (a, b) = (&nodes[idx[0]], &nodes[i]);
                                 (a.x - b.x).value.abs() + (a.y - b.y).value.abs() > 0.0
                             });
-                        if apart {
+                        let mut seen = HashSet::new();
+                        let twice = t
+                            .nodes
+                            .iter()
+                            .zip(&idx)
+                            .find(|(_, &i)| !seen.insert(i))
+                            .map(|(id, _)| id);
+                        if let Some(id) = twice {
+                            self.errors.push(ModelError::ModelKind {
+                                message: format!("node `{}` is tied to itself", id.name),
+                                span: id.span,
+                                help: Some("a tie joins different nodes, e.g. `tie a, b`".into()),
+                            });
+                        } else if apart {
                             self.errors.push(ModelError::ModelKind {
                                 message: "in a plane model a tie joins nodes at one position".into(),
                                 span: t.span,
