@@ -82,19 +82,20 @@ pub fn text_of(name: &str, mut bytes: Vec<u8>) -> Result<String, String> {
         let column = String::from_utf8_lossy(&before[start..]).chars().count() + 1;
         format!("line {line}, column {column}")
     };
-    if let Some(i) = bytes.iter().position(|&b| b == 0) {
-        return Err(format!(
-            "{name} holds a NUL byte at {}; a calc file is plain text",
-            at(&bytes, i)
-        ));
-    }
-    String::from_utf8(bytes).map_err(|e| {
+    let text = String::from_utf8(bytes).map_err(|e| {
         let i = e.utf8_error().valid_up_to();
         format!(
             "{name} is not UTF-8 text: byte {i} ({}) is not; save the file as UTF-8",
             at(e.as_bytes(), i)
         )
-    })
+    })?;
+    if let Some(i) = text.bytes().position(|b| b == 0) {
+        return Err(format!(
+            "{name} holds a NUL byte at {}; a calc file is plain text",
+            at(text.as_bytes(), i)
+        ));
+    }
+    Ok(text)
 }
 
 /// Parse and check a calc file: the typed model, or every error found.
