@@ -299,3 +299,28 @@ fn a_range_in_deg_answers_in_deg_and_three_dots_are_refused() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("two dots"));
 }
+
+/// Where a utilization is undefined (the capacity k · 1 kN is zero at
+/// k = 0) or off the scale, the plot draws it at the top edge and marks it
+/// rather than leaving a gap.
+#[test]
+fn the_plot_keeps_stretches_off_the_scale() {
+    let text = format!(
+        "let k = 1\ncheck \"reach\" : 1 kN <= k * 1 kN\n{}",
+        common_assembly()
+    );
+    let src = tandem::source::Source::new("reach.tandem", text);
+    let sweeper = Sweeper::new(&src, "k", &[]).unwrap_or_else(|_| panic!("sweeper"));
+    let table = sweeper
+        .sweep(
+            tandem::quantity("0").expect("q"),
+            tandem::quantity("2").expect("q"),
+            5,
+        )
+        .unwrap_or_else(|_| panic!("sweep"));
+    assert_eq!(table.steps[0].checks[0], None);
+    let a = tandem::analyse(&src).unwrap_or_else(|_| panic!("analyse"));
+    let d = tandem::report::Display::for_model(&a.model, 4);
+    let svg = tandem::review::sweep::plot(&table, &d).expect("plot");
+    assert!(svg.contains("off the scale"), "{svg}");
+}

