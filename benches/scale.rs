@@ -201,6 +201,7 @@ fn main() {
                     long_term: Vec::new(),
                     buckling: Vec::new(),
                     long_term_checks: None,
+                    left_out: Vec::new(),
                 };
                 let d = tandem::report::Display::for_model(&a.model, 4);
                 let t = Instant::now();

@@ -20,6 +20,29 @@ pub enum Error {
     #[error(transparent)]
     #[diagnostic(transparent)]
     Solve(#[from] crate::solve::SolveError),
+    /// An error that arose in one load combination only: the others are
+    /// still solved and reported ([`crate::analyse_partial`]).
+    #[error("in combination `{combination}`: {inner}")]
+    #[diagnostic(forward(inner))]
+    InCombination {
+        combination: String,
+        inner: Box<Error>,
+    },
+}
+
+impl Error {
+    /// This error, said to arise in `combination` (unless it names it).
+    #[must_use]
+    pub fn in_combination(self, combination: &str) -> Self {
+        if self.to_string().contains(&format!("`{combination}`")) {
+            self
+        } else {
+            Error::InCombination {
+                combination: combination.to_string(),
+                inner: Box::new(self),
+            }
+        }
+    }
 }
 
 impl From<ModelError> for Error {

@@ -150,6 +150,9 @@ pub struct Analysis {
     /// The checks evaluated on the long-term states, with those states as a
     /// solution of their own (combinations in the order of `long_term`).
     pub long_term_checks: Option<(solve::Solution, checks::Checks)>,
+    /// Combinations that could not be solved or checked and are left out
+    /// of this analysis (see [`analyse_partial`]); empty from [`analyse`].
+    pub left_out: Vec<String>,
 }
 
 impl Analysis {
@@ -168,22 +171,104 @@ impl Analysis {
 /// # Errors
 /// Every error of the first stage that fails.
 pub fn analyse(source: &Source) -> Result<Analysis, Vec<Error>> {
-    let model = check(source)?;
-    let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
-    let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
-    let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
-    let buckling = checks::buckling(&model, &solution);
-    let (long_term, long_term_checks) =
-        long_term_checks(&model, &solution, &checks::Refs::new(&model, &[]))?;
-    Ok(Analysis {
-        model,
-        solution,
-        checks,
-        capacity,
-        long_term,
-        buckling,
-        long_term_checks,
-    })
+    match analyse_partial(source) {
+        (Some(a), errors) if errors.is_empty() => Ok(a),
+        (_, errors) => Err(errors),
+    }
+}
+
+/// Check, solve and evaluate what can be: when some load combinations
+/// cannot be solved or checked (a mechanism once parts go slack, a check
+/// that cannot be evaluated there), the others are still analysed. Returns
+/// the analysis of the combinations that stand (with
+/// [`Analysis::left_out`] naming the others), if any, and every error,
+/// each naming its combination. Any error makes the calc fail (exit 2);
+/// the partial analysis is there to be shown beside the errors.
+pub fn analyse_partial(source: &Source) -> (Option<Analysis>, Vec<Error>) {
+    let model = match check(source) {
+        Ok(m) => m,
+        Err(e) => return (None, e),
+    };
+    // The whole model first: in the usual case it stands, at no extra cost.
+    let (model, first) = match analyse_model(model) {
+        Ok(a) => return (Some(a), Vec::new()),
+        Err(failed) => *failed,
+    };
+    if model.combinations.len() < 2 {
+        return (None, first);
+    }
+    // Each combination alone, to find which fail and why.
+    let mut errors: Vec<Error> = Vec::new();
+    let mut keep = Vec::new();
+    let mut left_out = Vec::new();
+    for c in &model.combinations {
+        let single = Model {
+            combinations: vec![c.clone()],
+            ..model.clone()
+        };
+        match analyse_model(single) {
+            Ok(_) => keep.push(c.clone()),
+            Err(failed) => {
+                let (_, es) = *failed;
+                left_out.push(c.name.clone());
+                for e in es {
+                    let e = e.in_combination(&c.name);
+                    if !errors.contains(&e) {
+                        errors.push(e);
+                    }
+                }
+            }
+        }
+    }
+    if keep.is_empty() || errors.is_empty() {
+        // every combination fails (or the failure is of the whole): as is
+        return (None, if errors.is_empty() { first } else { errors });
+    }
+    let reduced = Model {
+        combinations: keep,
+        ..model
+    };
+    match analyse_model(reduced) {
+        Ok(mut a) => {
+            a.left_out = left_out;
+            (Some(a), errors)
+        }
+        Err(_) => (None, errors),
+    }
+}
+
+/// [`analyse`] of a checked model; on failure the model comes back with
+/// the errors.
+fn analyse_model(model: Model) -> Result<Analysis, Box<(Model, Vec<Error>)>> {
+    let parts = (|| {
+        let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
+        let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
+        let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
+        let buckling = checks::buckling(&model, &solution);
+        let (long_term, long_term_checks) =
+            long_term_checks(&model, &solution, &checks::Refs::new(&model, &[]))?;
+        Ok((
+            solution,
+            checks,
+            capacity,
+            buckling,
+            long_term,
+            long_term_checks,
+        ))
+    })();
+    match parts {
+        Ok((solution, checks, capacity, buckling, long_term, long_term_checks)) => Ok(Analysis {
+            model,
+            solution,
+            checks,
+            capacity,
+            long_term,
+            buckling,
+            long_term_checks,
+            left_out: Vec::new(),
+        }),
+        Err(e) => Err(Box::new((model, e))),
+    }
 }
 
 /// The long-term states of a model (creep under sustained cases) and every

@@ -161,12 +161,8 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
     let Some(source) = read(path) else {
         return bad();
     };
-    let a = match tandem::analyse(&source) {
-        Ok(a) => a,
-        Err(errors) => {
-            report_errors(&errors, &source);
-            return bad();
-        }
+    let Some((a, incomplete)) = analyse_shown(&source) else {
+        return bad();
     };
     if json {
         // written as it is serialized: a million parts never sit in memory
@@ -195,24 +191,35 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
         };
         out!("{}", tandem::report::table::solve_text(&a, &d));
     }
-    if a.failures() > 0 {
+    if incomplete {
+        bad()
+    } else if a.failures() > 0 {
         ExitCode::from(1)
     } else {
         ExitCode::SUCCESS
     }
 }
 
-/// One report: its text and whether any check fails.
-fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool), ExitCode> {
+/// The analysis to show of a calc file, and whether it is incomplete: the
+/// errors are drawn on stderr; a calc whose every combination fails has
+/// nothing to show (`None`). A combination that fails leaves the others
+/// shown, and the calc still fails (exit 2).
+fn analyse_shown(source: &Source) -> Option<(tandem::Analysis, bool)> {
+    let (a, errors) = tandem::analyse_partial(source);
+    if !errors.is_empty() {
+        report_errors(&errors, source);
+    }
+    a.map(|a| (a, !errors.is_empty()))
+}
+
+/// One report: its text, whether any check fails, whether it is
+/// incomplete (some combination could not be analysed).
+fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool, bool), ExitCode> {
     let Some(source) = read(path) else {
         return Err(bad());
     };
-    let a = match tandem::analyse(&source) {
-        Ok(a) => a,
-        Err(errors) => {
-            report_errors(&errors, &source);
-            return Err(bad());
-        }
+    let Some((a, incomplete)) = analyse_shown(&source) else {
+        return Err(bad());
     };
     let d = display(&a.model, show).map_err(|msg| {
         errln!("error: {msg}");
@@ -225,7 +232,7 @@ fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool),
     } else {
         md
     };
-    Ok((text, a.failures() > 0))
+    Ok((text, a.failures() > 0, incomplete))
 }
 
 fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> ExitCode {
@@ -286,7 +293,7 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
         .map_or(1, std::num::NonZero::get)
         .min(files.len())
         .max(1);
-    let results: Vec<Result<(String, bool), ExitCode>> = std::thread::scope(|scope| {
+    let results: Vec<Result<(String, bool, bool), ExitCode>> = std::thread::scope(|scope| {
         let chunk = files.len().div_ceil(workers);
         let handles: Vec<_> = files
             .chunks(chunk)
@@ -308,8 +315,11 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
     let mut failed_check = false;
     for (result, target) in results.into_iter().zip(&targets) {
         match result {
-            Ok((text, fails)) => {
+            Ok((text, fails, incomplete)) => {
                 failed_check |= fails;
+                if incomplete {
+                    code = bad();
+                }
                 match target {
                     None => out!("{text}"),
                     Some(path) => {

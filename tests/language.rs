@@ -48,6 +48,13 @@ fn unit_binding_rule() {
     assert!(rel(q.value, 5.0) < 1e-15 && q.dim.is_none());
     let q = value("let b = 3\nlet l = 10 ft * b", "l");
     assert!(rel(q.value, 30.0 * 0.3048) < 1e-15);
+    // a word followed by `(` or `.` is a call or a result, not a unit:
+    // 57000·√5000 psi = 4031 ksi (ACI 318-19 19.2.2.1(b), as written with
+    // the unit first)
+    let q = value("let fc = 5000 psi\nlet e = 57000 psi * sqrt(fc / psi)", "e");
+    assert!(rel(q.value, 57000.0 * 5000f64.sqrt() * 6_894.757_293_168_361) < 1e-12);
+    let q = value("let f = 50 kN * max(1, 2)", "f");
+    assert!(rel(q.value, 100e3) < 1e-15);
     let q = value("let a = 3 ft^2", "a");
     assert!(rel(q.value, 3.0 * 0.3048 * 0.3048) < 1e-15);
     assert_eq!(q.dim, Dimension::AREA);

@@ -33,6 +33,12 @@ fn grammar_corners_parse_the_same_both_ways() {
     let cases = [
         "let a = 10 ft * b",
         "let a = 10 ft * b * 2",
+        "let e = 57000 psi * sqrt(fc / psi)",
+        "let e = 50 kN * max(1, 2)",
+        "let e = 50 kN * max (1, 2)",
+        "check \"r\" : 1 MPa / rod.stress <= 2",
+        "check \"r\" : 1 MPa / rod . stress <= 2",
+        "let e = 2 in^2 * f(x)",
         "let a = 10 ft * (b)",
         "let a = 2 in ^ x",
         "let a = 2 in^-2",

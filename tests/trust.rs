@@ -285,3 +285,42 @@ fn a_node_tied_to_itself_is_an_error() {
     assert_eq!(out.status.code(), Some(2));
     assert!(err.contains("node `b` is tied to itself"), "{err}");
 }
+
+/// One combination that cannot be solved (the compression-only part goes
+/// slack under a pull: a mechanism) no longer hides the others: `push` is
+/// solved and shown, the calc says it is incomplete and exits 2.
+#[test]
+fn one_failing_combination_does_not_hide_the_rest() {
+    let text = "
+material steel { E = 200 GPa }
+node a at 0 m
+node b at 1 m
+fix a
+part r { material = steel; area = 100 mm^2; ends = a, b; carries = compression }
+case push { load b = -10 kN }
+case pull { load b = 10 kN }
+check \"stress\" : -r.stress <= 150 MPa
+check \"ratio\" : 1 kN / r.force >= -1
+";
+    let out = tandem_on(text, &["solve"]);
+    let stdout = String::from_utf8_lossy(&out.stdout);
+    let stderr = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2), "{stderr}");
+    assert!(stdout.contains("combination push"), "{stdout}");
+    assert!(
+        stdout.contains("INCOMPLETE: combination `pull`"),
+        "{stdout}"
+    );
+    assert!(stderr.contains("combination `pull`"), "{stderr}");
+    let report = tandem_on(text, &["report"]);
+    let md = String::from_utf8_lossy(&report.stdout);
+    assert_eq!(report.status.code(), Some(2));
+    assert!(md.contains("**Incomplete:** combination `pull`"), "{md}");
+    let json = tandem_on(text, &["solve", "--json"]);
+    let v: serde_json::Value = serde_json::from_slice(&json.stdout).expect("json");
+    assert_eq!(v["left_out"][0], "pull");
+    assert_eq!(v["combinations"].as_array().map(Vec::len), Some(1));
+    // the library's strict form still refuses
+    let src = tandem::source::Source::new("t.tandem", text);
+    assert!(tandem::analyse(&src).is_err());
+}

@@ -28,6 +28,10 @@ pub struct Document<'a> {
     long_term_checks: Option<Vec<LongTermCheck<'a>>>,
     buckling: Vec<Buckling<'a>>,
     warnings: &'a [String],
+    /// Combinations that could not be solved or checked (then the calc
+    /// has errors and exits 2).
+    #[serde(skip_serializing_if = "<[String]>::is_empty")]
+    left_out: &'a [String],
 }
 
 #[derive(Serialize)]
@@ -385,6 +389,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
         long_term_checks,
         buckling,
         warnings: &solution.warnings,
+        left_out: &a.left_out,
     }
 }
 

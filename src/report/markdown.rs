@@ -251,6 +251,12 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         None => String::new(),
     };
     doc.p(&format!("**Status:** {status}{highest}{long}."));
+    if !a.left_out.is_empty() {
+        doc.p(&format!(
+            "**Incomplete:** {}; this calculation is not complete and does not stand as a design check.",
+            crate::report::left_out(&a.left_out)
+        ));
+    }
 
     // Summary.
     doc.h(2, "Summary");

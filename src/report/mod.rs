@@ -8,6 +8,19 @@ pub mod table;
 
 pub use display::{number, utilization, Display};
 
+/// The sentence naming the combinations an analysis had to leave out
+/// ([`crate::analyse_partial`]), worded once for every output.
+#[must_use]
+pub fn left_out(names: &[String]) -> String {
+    let list: Vec<String> = names.iter().map(|n| format!("`{n}`")).collect();
+    format!(
+        "combination{} {} could not be solved or checked and {} left out (the errors say why)",
+        if names.len() == 1 { "" } else { "s" },
+        list.join(", "),
+        if names.len() == 1 { "is" } else { "are" }
+    )
+}
+
 /// A print-friendly, self-contained HTML page of a Markdown report.
 #[must_use]
 pub fn html(markdown: &str, title: &str) -> String {

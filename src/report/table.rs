@@ -87,6 +87,9 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             (solution.unknowns, "unknown"),
         ])
     ));
+    if !a.left_out.is_empty() {
+        out.push_str(&format!("INCOMPLETE: {}\n", super::left_out(&a.left_out)));
+    }
     for w in &solution.warnings {
         out.push_str(&format!("warning: {w}\n"));
     }

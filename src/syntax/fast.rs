@@ -860,6 +860,13 @@ impl<'a> P<'a> {
 
     fn unit_power(&mut self, divide: bool) -> Option<UnitFactor> {
         let (a, b) = self.word()?;
+        // a word followed by `(` or `.` is a call or a result, not a unit
+        let after = self.mark();
+        self.skip();
+        if matches!(self.peek(), Some(b'(' | b'.')) {
+            return None;
+        }
+        self.reset(after);
         let mut span = self.span(a, b);
         let mut power = 1;
         let m = self.mark();
