@@ -322,9 +322,18 @@ pub fn parse_units(text: &str) -> Result<model::UnitChoice, String> {
     let Some(syntax::ast::Decl::Units(syntax::ast::Units::List(list))) = file.decls.first() else {
         return Err(format!("`{text}` is not a list of units"));
     };
-    let mut out = Vec::new();
+    let mut out: Vec<(String, units::Quantity)> = Vec::new();
     for (u, name) in list.iter().zip(text.split(',')) {
         let q = model::eval::unit_value(u).map_err(|e| e.to_string())?;
+        if let Some((other, _)) = out.iter().find(|(_, o)| o.dim == q.dim) {
+            return Err(model::ModelError::SameKindUnits {
+                first: other.clone(),
+                second: name.trim().to_string(),
+                kind: q.dim.describe(),
+                span: u.span,
+            }
+            .to_string());
+        }
         out.push((name.trim().to_string(), q));
     }
     Ok(model::UnitChoice::List(out))

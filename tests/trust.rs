@@ -324,3 +324,67 @@ check \"ratio\" : 1 kN / r.force >= -1
     let src = tandem::source::Source::new("t.tandem", text);
     assert!(tandem::analyse(&src).is_err());
 }
+
+/// Hints that used to mislead now name what to write.
+#[test]
+fn hints_point_at_what_to_write() {
+    let rod = |tail: &str, area: &str| {
+        format!(
+            "material steel {{ E = 200 GPa }}\nnode a at 0 m\nnode b at 1 m\nfix a\npart r {{ material = steel; area = {area}; ends = a, b }}\n{tail}"
+        )
+    };
+    let cases = [
+        // (file, expected help); before: "did you mean `mm`?"
+        (rod("", "100 mm2"), "`mm^2`"),
+        // before: "`tandem units` lists the units"
+        (format!("units SI\n{}", rod("", "100 mm^2")), "`units si`"),
+        // before: a list of declaration keywords
+        (rod("support b fixed\n", "100 mm^2"), "`fix NODE`"),
+        (rod("pin b\n", "100 mm^2"), "`fix NODE`"),
+        (rod("case c { temp = 10 degC }\n", "100 mm^2"), "`temperature = 20 degC`"),
+    ];
+    for (text, help) in cases {
+        let out = tandem_on(&text, &["check"]);
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(out.status.code(), Some(2), "{text}");
+        assert!(err.contains(help), "{text}\n{err}");
+    }
+}
+
+/// Accepted silently before, now errors with a reason.
+#[test]
+fn silent_acceptances_are_errors() {
+    let spring = "material steel { E = 200 GPa }\nnode a at 0 m\nnode b at 1 m\nfix a\npart s { stiffness = 10 kN/mm; ends = a, b }\ncase c { temperature s = 10 degC }\n";
+    let out = tandem_on(spring, &["check"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("`s` is a spring"));
+    let text = format!("units kN, N\n{}", ROD.replace("AREA", "100 mm^2"));
+    let out = tandem_on(&text, &["check"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("`kN` and `N` are both a force"));
+    let out = tandem_on(&ROD.replace("AREA", "100 mm^2"), &["solve", "--units", "kN,N"]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("both a force"));
+}
+
+/// A node in two rigid bodies is one fault: one error, not a second
+/// "at least two nodes" for the body it was taken from.
+#[test]
+fn a_shared_rigid_node_is_one_error() {
+    let text = "
+material steel { E = 200 GPa }
+node a at (0 m, 0 m)
+node b at (1 m, 0 m)
+node c at (2 m, 0 m)
+node d at (1 m, 2 m)
+fix d
+rigid one { nodes = a, b }
+rigid two { nodes = b, c }
+part r { material = steel; area = 100 mm^2; ends = b, d }
+";
+    let out = tandem_on(text, &["check"]);
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(err.contains("more than one rigid body"), "{err}");
+    assert!(err.contains(": 1 error"), "{err}");
+}

@@ -1276,19 +1276,28 @@ impl<'t> Builder<'t> {
                         continue;
                     };
                     let mut idx = Vec::new();
+                    // a body whose nodes failed (unknown, or in another
+                    // body) is not also "too small": one fault, one error
+                    let mut faulted = false;
                     for id in list {
-                        if let Some(i) = self.ok(names.resolve(id, NameKind::Node)) {
-                            if let Some(first) = rigid_of.get(&i) {
-                                self.errors.push(ModelError::RigidShared {
-                                    node: id.name.to_string(),
-                                    span: id.span,
-                                    first: *first,
-                                });
-                            } else {
-                                rigid_of.insert(i, nb.name.span);
-                                idx.push(i);
-                            }
+                        let Some(i) = self.ok(names.resolve(id, NameKind::Node)) else {
+                            faulted = true;
+                            continue;
+                        };
+                        if let Some(first) = rigid_of.get(&i) {
+                            faulted = true;
+                            self.errors.push(ModelError::RigidShared {
+                                node: id.name.to_string(),
+                                span: id.span,
+                                first: *first,
+                            });
+                        } else {
+                            rigid_of.insert(i, nb.name.span);
+                            idx.push(i);
                         }
+                    }
+                    if faulted {
+                        continue;
                     }
                     if idx.len() < 2 {
                         self.errors.push(ModelError::Expected {
@@ -1643,6 +1652,15 @@ impl<'t> Builder<'t> {
                                 }
                             })
                             .collect::<String>();
+                        if let Some((first, _)) = out.iter().find(|(_, o)| o.dim == q.dim) {
+                            self.errors.push(ModelError::SameKindUnits {
+                                first: first.clone(),
+                                second: text,
+                                kind: q.dim.describe(),
+                                span: ue.span,
+                            });
+                            continue;
+                        }
                         out.push((text, q));
                     }
                 }
@@ -2301,6 +2319,15 @@ impl<'t> Builder<'t> {
                         },
                         None => None,
                     };
+                    if let (Some(i), Some(id)) = (target, part) {
+                        if parts[i].material().is_none() {
+                            self.errors.push(ModelError::SpringTemperature {
+                                part: id.name.to_string(),
+                                span: *span,
+                            });
+                            continue;
+                        }
+                    }
                     if let Some(first) = seen_temp.get(&target) {
                         self.errors.push(ModelError::DuplicateInCase {
                             what: "a temperature change".into(),

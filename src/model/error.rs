@@ -357,6 +357,29 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error(
+        "`{part}` is a spring: it has no material, so a temperature change does not act on it"
+    )]
+    #[diagnostic(
+        code(tandem::case::spring_temperature),
+        help("give the spring's free elongation with `misfit`, or model it as a member with a material and `alpha`")
+    )]
+    SpringTemperature {
+        part: String,
+        #[label("on a spring")]
+        span: Span,
+    },
+
+    #[error("`{first}` and `{second}` are both {kind}; give one unit of each kind")]
+    #[diagnostic(code(tandem::units::twice))]
+    SameKindUnits {
+        first: String,
+        second: String,
+        kind: String,
+        #[label("a second unit for {kind}")]
+        span: Span,
+    },
+
     #[error("every factor of combination `{combination}` is zero: it loads nothing")]
     #[diagnostic(
         code(tandem::combine::zero),

@@ -427,6 +427,31 @@ fn token_at(text: &str, pos: usize) -> String {
     format!("found `{word}`")
 }
 
+/// A hint for a word an engineer may start a statement with that is not
+/// one of tandem's keywords: the keyword that says it.
+fn keyword_hint(word: &str) -> Option<String> {
+    let w = word.to_ascii_lowercase();
+    match w.as_str() {
+        "support" | "supports" | "fixed" | "fixity" | "restrain" | "restraint" | "anchor"
+        | "pin" | "pinned" | "hinge" | "roller" | "bc" => Some(
+            "supports are written `fix NODE` (every direction), or in a plane model `fix NODE x` or `fix NODE y` (a roller)".into(),
+        ),
+        "temp" | "temps" | "dt" | "delta_t" | "thermal" | "heat" => Some(
+            "a temperature change is written `temperature = 20 degC` (every part) or `temperature PART = 20 degC`".into(),
+        ),
+        "force" | "point_load" | "loads" => {
+            Some("a load is written `load NODE = -10 kN` (or `(FX, FY)` in a plane)".into())
+        }
+        _ => {
+            const KEYWORDS: &[&str] = &[
+                "let", "material", "node", "part", "case", "combine", "check", "fix", "tie",
+                "rigid", "units", "calc", "load", "temperature", "strain", "settle",
+            ];
+            crate::model::did_you_mean(&w, KEYWORDS.iter().copied())
+        }
+    }
+}
+
 /// The token just before `pos` on the same line, for "after ...".
 fn token_before(text: &str, pos: usize) -> String {
     let head = text.get(..pos).unwrap_or("");
@@ -490,6 +515,11 @@ fn from_pest(e: &pest::error::Error<Rule>, text: &str, base: usize) -> SyntaxErr
             "units are written after the number, e.g. `29000 ksi`; `tandem units` lists them"
                 .into(),
         )
+    } else if let Some(h) = (line_start || words.iter().any(|w| w.starts_with("a case statement")))
+        .then(|| keyword_hint(found.trim_start_matches("found `").trim_end_matches('`')))
+        .flatten()
+    {
+        Some(h)
     } else if words.iter().any(|w| w.starts_with("a declaration")) {
         Some("each line starts with a keyword such as `let`, `material`, `node`, `part`, `case`, `combine` or `check`".into())
     } else {
@@ -1136,6 +1166,26 @@ fn factor_expr(f: UnitFactor) -> Expr {
 
 fn not_a_unit(f: &UnitFactor) -> SyntaxError {
     let names = crate::units::units().iter().map(|u| u.name);
+    // `mm2` for `mm^2`, `SI` for `si`
+    let digits = f.name.trim_start_matches(|c: char| !c.is_ascii_digit());
+    let stem = &f.name[..f.name.len() - digits.len()];
+    let power_hint = (!digits.is_empty()
+        && digits.chars().all(|c| c.is_ascii_digit())
+        && lookup(stem).is_some())
+    .then(|| format!("a power of a unit is written with `^`: `{stem}^{digits}`"));
+    let system_hint = matches!(f.name.to_ascii_lowercase().as_str(), "si" | "us").then(|| {
+        format!(
+            "the unit systems are written in lower case: `units {}`",
+            f.name.to_ascii_lowercase()
+        )
+    });
+    if let Some(help) = power_hint.or(system_hint) {
+        return SyntaxError::NotAUnit {
+            name: f.name.to_string(),
+            span: f.span,
+            help: Some(help),
+        };
+    }
     let help = match (
         crate::units::temperature_hint(&f.name),
         crate::model::did_you_mean(&f.name, names),
