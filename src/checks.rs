@@ -234,7 +234,28 @@ impl Scope for ResultScope<'_> {
         let found = self.refs.objects.get(object.name.as_str()).copied();
         if let Some(Object::Part(i)) = found {
             let p = &self.result.parts[i];
+            let part = &m.parts[i];
             return Ok(match field.name.as_str() {
+                "length" => Quantity::new(part.length.value, Dimension::LENGTH),
+                "euler_load" | "slenderness" => {
+                    let found = euler(m, i);
+                    let Some((pe, kl_r)) = found else {
+                        return Err(ModelError::MissingKey {
+                            block: format!("part `{}`", part.name),
+                            key: "buckling_length",
+                            span: field.span,
+                            help: Some(format!(
+                                "`.{}` needs the part's effective length: give `buckling_length` or `buckling_factor` and a `section`",
+                                field.name
+                            )),
+                        });
+                    };
+                    if field.name == "euler_load" {
+                        Quantity::new(pe, Dimension::FORCE)
+                    } else {
+                        Quantity::number(kl_r)
+                    }
+                }
                 "force" => Quantity::new(p.force.value, Dimension::FORCE),
                 "stress" => Quantity::new(p.stress.map_or(0.0, |s| s.value), Dimension::PRESSURE),
                 "strain" => Quantity::number(p.strain),
@@ -434,6 +455,16 @@ pub fn evaluate_with(
         }
     }
     Ok(out)
+}
+
+/// The Euler load π²·E·I/(K·L)² and slenderness K·L/r of one part, when it
+/// has a buckling length and a second moment.
+fn euler(model: &Model, i: usize) -> Option<(f64, f64)> {
+    let p = &model.parts[i];
+    let (kl, inertia, m, area) = (p.buckling_length?, p.inertia()?, p.material()?, p.area()?);
+    let kl = kl.value;
+    let pe = std::f64::consts::PI.powi(2) * model.materials[m].e.value * inertia / (kl * kl);
+    Some((pe, kl / (inertia / area.value).sqrt()))
 }
 
 /// Euler buckling of one compression part or parallel group.

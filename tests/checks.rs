@@ -66,3 +66,66 @@ fn many_checks_and_many_materials_resolve_each_name() {
         );
     }
 }
+
+/// A strut 2 m long, 40 mm round, E = 200 GPa, K = 0.7, under 70 kN.
+const STRUT: &str = "material s { E = 200 GPa }\nnode a at 0 m\nnode b at 2 m\nfix a\n\
+    part strut { material = s; section = circle(d = 40 mm); ends = a, b; buckling_factor = 0.7 }\n\
+    load b = -70 kN\n";
+
+/// A check is validated by dimension only: a root of a compression stress
+/// over MPa is negative at the validation's one-SI-unit stand-in, but real
+/// in every combination (before: "square root of a negative value").
+#[test]
+fn checks_are_validated_by_dimension_only() {
+    let a = analyse(&format!(
+        "{STRUT}check \"root\" : sqrt(-strut.stress / MPa) <= 20\ncheck \"inverse\" : 1 MPa / strut.stress <= 1\n"
+    ));
+    // σ = 70 kN / (π·(40 mm)²/4) = 55.70 MPa (Hooke's law, axial member)
+    let sigma = 70e3 / (std::f64::consts::PI * 0.04f64.powi(2) / 4.0) / 1e6;
+    let u = a.checks.outcomes[0].utilization.expect("u");
+    assert!((u - sigma.sqrt() / 20.0).abs() < 1e-12, "{u}");
+}
+
+/// π²·E·I/(K·L)² with I = π d⁴/64 (Euler's formula, any mechanics-of-
+/// materials text); K·L/r with r = d/4; sin 30° = 1/2 and atan2(1, 1) = 45°
+/// exactly (trigonometry); `.length` from the node positions.
+#[test]
+fn new_results_and_functions() {
+    let a = analyse(&format!(
+        "{STRUT}check \"euler\" : -strut.force <= 0.9 * strut.euler_load\n\
+         check \"slender\" : strut.slenderness <= 200\n\
+         check \"long\" : strut.length <= 2.5 m\n\
+         check \"trig\" : sin(30 deg) * strut.length <= 1.5 m\n\
+         check \"angle\" : atan2(1 m, 1 m) <= 45 deg\n\
+         check \"inverse trig\" : asin(0.5) / deg <= 30\n"
+    ));
+    let i = std::f64::consts::PI * 0.04f64.powi(4) / 64.0;
+    let pe = std::f64::consts::PI.powi(2) * 200e9 * i / (0.7 * 2.0f64).powi(2);
+    let by = |label: &str| {
+        a.checks
+            .outcomes
+            .iter()
+            .find(|o| o.label == label)
+            .unwrap_or_else(|| panic!("{label}"))
+    };
+    assert!((by("euler").capacity.value - 0.9 * pe).abs() < 1e-6 * pe);
+    assert!((by("slender").demand.value - 1.4 / 0.01).abs() < 1e-9);
+    assert_eq!(by("long").demand.value, 2.0);
+    assert!((by("trig").demand.value - 1.0).abs() < 1e-12);
+    assert!(by("angle").pass && by("inverse trig").pass);
+    // the buckling factor gives the automatic Euler-load check its K·L too
+    assert!((a.buckling[0].kl - 1.4).abs() < 1e-12);
+}
+
+#[test]
+fn an_euler_load_needs_a_buckling_length() {
+    let text = "material s { E = 200 GPa }\nnode a at 0 m\nnode b at 2 m\nfix a\n\
+        part p { material = s; area = 100 mm^2; ends = a, b }\nload b = -1 kN\n\
+        check \"e\" : -p.force <= p.euler_load\n";
+    let Err(err) = tandem::analyse(&Source::new("t.tandem", text.to_string())) else {
+        panic!("refused");
+    };
+    let text =
+        tandem::diagnostic::render(&err, &Source::new("t.tandem", text.to_string()), 100, false);
+    assert!(text.contains("buckling_length"), "{text}");
+}

@@ -341,7 +341,10 @@ fn hints_point_at_what_to_write() {
         // before: a list of declaration keywords
         (rod("support b fixed\n", "100 mm^2"), "`fix NODE`"),
         (rod("pin b\n", "100 mm^2"), "`fix NODE`"),
-        (rod("case c { temp = 10 degC }\n", "100 mm^2"), "`temperature = 20 degC`"),
+        (
+            rod("case c { temp = 10 degC }\n", "100 mm^2"),
+            "`temperature = 20 degC`",
+        ),
     ];
     for (text, help) in cases {
         let out = tandem_on(&text, &["check"]);
@@ -362,7 +365,10 @@ fn silent_acceptances_are_errors() {
     let out = tandem_on(&text, &["check"]);
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("`kN` and `N` are both a force"));
-    let out = tandem_on(&ROD.replace("AREA", "100 mm^2"), &["solve", "--units", "kN,N"]);
+    let out = tandem_on(
+        &ROD.replace("AREA", "100 mm^2"),
+        &["solve", "--units", "kN,N"],
+    );
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("both a force"));
 }

@@ -242,6 +242,9 @@ pub(crate) const PART_FIELDS: &[(&str, Dimension)] = &[
     ("stress", Dimension::PRESSURE),
     ("strain", Dimension::NONE),
     ("elongation", Dimension::LENGTH),
+    ("length", Dimension::LENGTH),
+    ("euler_load", Dimension::FORCE),
+    ("slenderness", Dimension::NONE),
 ];
 pub(crate) const AXIAL_NODE_FIELDS: &[(&str, Dimension)] = &[
     ("displacement", Dimension::LENGTH),
@@ -254,13 +257,20 @@ pub(crate) const PLANE_NODE_FIELDS: &[(&str, Dimension)] = &[
     ("ry", Dimension::FORCE),
 ];
 
-/// Checks are validated with every result standing at one SI unit.
+/// Checks are validated by dimension only: every result stands at one SI
+/// unit of its dimension, and the evaluator lets no value (a root of a
+/// negative, a division by zero) refuse a check that results in other
+/// combinations make valid ([`Scope::validating`]).
 struct CheckScope<'a, 'n> {
     lets: LetScope<'a, 'n>,
     kind: Kind,
 }
 
 impl Scope for CheckScope<'_, '_> {
+    fn validating(&self) -> bool {
+        true
+    }
+
     fn name(&self, id: &Ident) -> Result<Quantity, ModelError> {
         self.lets.name(id)
     }
@@ -1881,6 +1891,7 @@ impl<'t> Builder<'t> {
             "carries",
             "slack",
             "buckling_length",
+            "buckling_factor",
             "slenderness_limit",
             "euler_fraction",
         ];
@@ -2122,7 +2133,20 @@ impl<'t> Builder<'t> {
         // AISC 360-16 E2 (user note): KL/r preferably not over 200 (from memory).
         let slenderness_limit = ratio_key("slenderness_limit", 200.0, self);
         let euler_fraction = ratio_key("euler_fraction", 1.0, self);
-        if buckling_length.is_some()
+        // K, the effective-length factor: K·L from the part's own length
+        let buckling_factor = f
+            .has("buckling_factor")
+            .then(|| ratio_key("buckling_factor", 1.0, self));
+        if let (Some(_), Some(e)) = (buckling_factor, f.map.get("buckling_length")) {
+            self.errors.push(ModelError::Conflict {
+                key: "buckling_length".into(),
+                other: "buckling_factor".into(),
+                block: what.to_string(),
+                span: e.key.span,
+                help: Some("give the effective length K·L as `buckling_length`, or K alone as `buckling_factor`".into()),
+            });
+        }
+        if (buckling_length.is_some() || buckling_factor.is_some())
             && !matches!(
                 law,
                 Some(Law::Member {
@@ -2131,7 +2155,11 @@ impl<'t> Builder<'t> {
                 })
             )
         {
-            let sp = f.map.get("buckling_length").map_or(nb.span, |e| e.span);
+            let sp = f
+                .map
+                .get("buckling_length")
+                .or_else(|| f.map.get("buckling_factor"))
+                .map_or(nb.span, |e| e.span);
             self.errors.push(ModelError::MissingKey {
                 block: what.to_string(),
                 key: "inertia",
@@ -2207,7 +2235,8 @@ impl<'t> Builder<'t> {
             misfit,
             carries,
             slack,
-            buckling_length,
+            buckling_length: buckling_length
+                .or_else(|| buckling_factor.map(|k| Length::new::<meter>(k * length))),
             slenderness_limit,
             euler_fraction,
             span: nb.span,

@@ -56,6 +56,12 @@ pub trait Scope {
     /// # Errors
     /// Results outside checks, unknown objects or fields.
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError>;
+    /// True while a check is validated by dimension only: values that no
+    /// real result would give (a root of a negative, a division by zero)
+    /// stand for any value of their dimension instead of failing.
+    fn validating(&self) -> bool {
+        false
+    }
 }
 
 /// Built-in constant names.
@@ -67,6 +73,13 @@ pub const FUNCTIONS: &[&str] = &[
     "abs",
     "min",
     "max",
+    "sin",
+    "cos",
+    "tan",
+    "asin",
+    "acos",
+    "atan",
+    "atan2",
     "circle",
     "ring",
     "rect",
@@ -201,6 +214,9 @@ pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
                     MulOp::Mul => acc
                         .mul(v)
                         .map_err(|err| unit_error(&err, span, "multiply"))?,
+                    MulOp::Div if v.value == 0.0 && scope.validating() => {
+                        Quantity::new(1.0, acc.dim.div(v.dim))
+                    }
                     MulOp::Div => acc.div(v).map_err(|err| unit_error(&err, span, "divide"))?,
                 };
             }
@@ -215,6 +231,8 @@ pub fn eval_val(e: &Expr, scope: &dyn Scope) -> Result<Val, ModelError> {
     };
     if q.value.is_finite() && !q.value.is_subnormal() {
         Ok(Val::Q(q))
+    } else if scope.validating() {
+        Ok(Val::Q(Quantity::new(1.0, q.dim)))
     } else {
         Err(ModelError::NotFinite {
             what: "this expression".into(),
@@ -431,9 +449,57 @@ fn call(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Val
     let q = match name {
         "sqrt" => {
             let a = positional(func, args, Some(1), span)?;
-            let x = eval(a[0], scope)?;
+            let mut x = eval(a[0], scope)?;
+            if scope.validating() {
+                x.value = x.value.abs();
+            }
             x.sqrt()
                 .map_err(|e| unit_error(&e, span, "take the root of"))?
+        }
+        "sin" | "cos" | "tan" => {
+            let a = positional(func, args, Some(1), span)?;
+            let x = eval(a[0], scope)?;
+            dimensionless(
+                func,
+                &x,
+                a[0].span,
+                "an angle such as `30 deg` or `0.5 rad`",
+            )?;
+            Quantity::number(match name {
+                "sin" => x.value.sin(),
+                "cos" => x.value.cos(),
+                _ => x.value.tan(),
+            })
+        }
+        "asin" | "acos" | "atan" => {
+            let a = positional(func, args, Some(1), span)?;
+            let x = eval(a[0], scope)?;
+            dimensionless(func, &x, a[0].span, "a dimensionless number")?;
+            let v = if scope.validating() {
+                x.value.clamp(-1.0, 1.0)
+            } else {
+                x.value
+            };
+            if name != "atan" && v.abs() > 1.0 {
+                return Err(ModelError::NotFinite {
+                    what: format!("`{name}` of {}", x.value),
+                    reason: "the argument must lie between -1 and 1".into(),
+                    span: a[0].span,
+                });
+            }
+            Quantity::number(match name {
+                "asin" => v.asin(),
+                "acos" => v.acos(),
+                _ => v.atan(),
+            })
+        }
+        "atan2" => {
+            let a = positional(func, args, Some(2), span)?;
+            let y = eval(a[0], scope)?;
+            let x = eval(a[1], scope)?;
+            y.same(x)
+                .map_err(|e| unit_error(&e, a[0].span.to(a[1].span), "compare"))?;
+            Quantity::number(y.value.atan2(x.value))
         }
         "abs" => {
             let a = positional(func, args, Some(1), span)?;
@@ -506,6 +572,20 @@ fn call(func: &Ident, args: &[Arg], span: Span, scope: &dyn Scope) -> Result<Val
         }
     };
     Ok(Val::Q(q))
+}
+
+/// An error unless `x` is dimensionless (an angle in radians is).
+fn dimensionless(func: &Ident, x: &Quantity, span: Span, expected: &str) -> Result<(), ModelError> {
+    if x.dim.is_none() {
+        return Ok(());
+    }
+    Err(ModelError::WrongDimension {
+        what: format!("the argument of `{}`", func.name),
+        expected: expected.into(),
+        found: x.dim.describe(),
+        span,
+        help: None,
+    })
 }
 
 /// Solid circle of diameter `d`.
@@ -612,6 +692,18 @@ pub fn listing() -> String {
         ("abs(x)", "absolute value"),
         ("min(a, b, ...)", "smallest of values of one dimension"),
         ("max(a, b, ...)", "largest of values of one dimension"),
+        (
+            "sin(x), cos(x), tan(x)",
+            "of an angle (`30 deg`, `0.5 rad`, or a number taken as radians)",
+        ),
+        (
+            "asin(x), acos(x), atan(x)",
+            "an angle (in radians; shown in `deg` with `/ deg`)",
+        ),
+        (
+            "atan2(y, x)",
+            "the angle of (x, y); y and x of one dimension",
+        ),
         ("circle(d = ...)", "solid round: A = π d²/4, I = π d⁴/64"),
         (
             "ring(d = ..., t = ...)",
