@@ -340,9 +340,29 @@ pub fn evaluate_with(
     solution: &Solution,
     refs: &Refs<'_>,
 ) -> Result<Checks, ModelError> {
+    evaluate_state(model, solution, refs, None)
+}
+
+/// [`evaluate_with`] in one state: the short-term one (`long_of` `None`:
+/// `solution`'s combinations are the model's), or the long-term one, whose
+/// `k`-th state is model combination `long_of[k]`. Each check is evaluated
+/// where its `under` lets it apply.
+///
+/// # Errors
+/// As [`evaluate`].
+pub fn evaluate_state(
+    model: &Model,
+    solution: &Solution,
+    refs: &Refs<'_>,
+    long_of: Option<&[usize]>,
+) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
     for (ci, check) in model.checks.iter().enumerate() {
         for (k, result) in solution.combinations.iter().enumerate() {
+            let combination = long_of.map_or(k, |m| m[k]);
+            if !check.applies.to(combination, long_of.is_some()) {
+                continue;
+            }
             let scope = ResultScope {
                 model,
                 result,

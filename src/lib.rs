@@ -295,7 +295,13 @@ pub fn long_term_checks(
         combinations: states,
         warnings: Vec::new(),
     };
-    let c = checks::evaluate_with(model, &lt, refs).map_err(|e| vec![Error::from(e)])?;
+    let long_of: Vec<usize> = long_term
+        .iter()
+        .filter(|l| l.result.is_some())
+        .map(|l| l.combination)
+        .collect();
+    let c = checks::evaluate_state(model, &lt, refs, Some(&long_of))
+        .map_err(|e| vec![Error::from(e)])?;
     Ok((long_term, Some((lt, c))))
 }
 

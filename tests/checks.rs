@@ -129,3 +129,70 @@ fn an_euler_load_needs_a_buckling_length() {
         tandem::diagnostic::render(&err, &Source::new("t.tandem", text.to_string()), 100, false);
     assert!(text.contains("buckling_length"), "{text}");
 }
+
+const PIER: &str = "material c { E = 30 GPa; creep = 2 }\nmaterial s { E = 200 GPa }\n\
+    node a at 0 m\nnode b at 3 m\nfix a\n\
+    part core { material = c; area = 0.16 m^2; ends = a, b }\n\
+    part bars { material = s; area = 2500 mm^2; ends = a, b }\n\
+    case dead sustained { load b = -1200 kN }\ncase belt { load b = -450 kN }\n\
+    combine service = dead + belt\ncombine ultimate = 1.35 dead + 1.5 belt\n";
+
+/// `under` narrows where a check applies; `for x in GROUP` makes one check
+/// per member, labelled with it.
+#[test]
+fn checks_apply_where_they_are_written() {
+    let a = analyse(&format!(
+        "{PIER}group both = core, bars\n\
+         check \"short\" under ultimate : -core.stress <= 20 MPa\n\
+         check \"sustained\" under service long_term : -bars.stress <= 400 MPa\n\
+         check \"each\" for p in both under service, ultimate short_term : -p.force <= 5000 kN\n"
+    ));
+    let labels = |c: &tandem::checks::Checks| -> Vec<(String, usize)> {
+        c.outcomes
+            .iter()
+            .filter(|o| matches!(o.origin, tandem::checks::Origin::Line(_)))
+            .map(|o| (o.label.clone(), o.combination))
+            .collect()
+    };
+    assert_eq!(
+        labels(&a.checks),
+        [
+            ("short".to_string(), 1),
+            ("each (core)".to_string(), 0),
+            ("each (core)".to_string(), 1),
+            ("each (bars)".to_string(), 0),
+            ("each (bars)".to_string(), 1),
+        ]
+    );
+    let (_, long) = a.long_term_checks.as_ref().expect("long term");
+    // "short" names no state, so it reads both; "each" is short term only
+    assert_eq!(
+        labels(long),
+        [("short".to_string(), 1), ("sustained".to_string(), 0)]
+    );
+}
+
+#[test]
+fn under_names_what_is_wrong() {
+    let err = |text: &str| {
+        let src = Source::new("t.tandem", text.to_string());
+        match tandem::check(&src) {
+            Ok(_) => panic!("refused: {text}"),
+            Err(e) => tandem::diagnostic::render(&e, &src, 100, false),
+        }
+    };
+    let e = err(&format!(
+        "{PIER}check \"x\" under servise : -core.stress <= 20 MPa\n"
+    ));
+    assert!(e.contains("did you mean `service`?"), "{e}");
+    // no creep, no long-term state
+    let no_creep = PIER.replace("creep = 2", "yield = 30 MPa");
+    let e = err(&format!(
+        "{no_creep}check \"x\" under long_term : -core.stress <= 20 MPa\n"
+    ));
+    assert!(e.contains("no long-term state"), "{e}");
+    let e = err(&format!(
+        "{PIER}check \"x\" for p in nothing : p.force <= 1 kN\n"
+    ));
+    assert!(e.contains("unknown group `nothing`"), "{e}");
+}

@@ -19,9 +19,9 @@ use uom::si::temperature_interval::kelvin;
 
 use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS, FUNCTIONS};
 use super::{
-    did_you_mean, range, Carries, Case, Check, Combination, FreeStrain, Kind, Law, LetValue, Load,
-    Material, Model, ModelError, Node, Part, Rigid, Settlement, Stiffness, Temperature, Tie, Title,
-    UnitChoice,
+    did_you_mean, range, Applies, Carries, Case, Check, Combination, FreeStrain, Kind, Law,
+    LetValue, Load, Material, Model, ModelError, Node, Part, Rigid, Settlement, State, Stiffness,
+    Temperature, Tie, Title, UnitChoice,
 };
 use crate::source::Span;
 use crate::syntax::ast::{
@@ -55,9 +55,13 @@ enum NameKind {
     Rigid,
     Case,
     Combination,
+    Group,
 }
 
 impl NameKind {
+    /// How many kinds there are.
+    const COUNT: usize = NameKind::Group as usize + 1;
+
     fn word(self) -> &'static str {
         match self {
             NameKind::Let => "value",
@@ -67,6 +71,7 @@ impl NameKind {
             NameKind::Rigid => "rigid body",
             NameKind::Case => "case",
             NameKind::Combination => "combination",
+            NameKind::Group => "group",
         }
     }
 }
@@ -490,6 +495,7 @@ fn declared_name(d: &Decl) -> Option<(&Ident, NameKind)> {
         ),
         Decl::Case(c) => (&c.name, NameKind::Case),
         Decl::Combine(c) => (&c.name, NameKind::Combination),
+        Decl::Group(g) => (&g.name, NameKind::Group),
         _ => return None,
     })
 }
@@ -928,7 +934,12 @@ fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
             out.push(&c.rhs);
         }
         // counted when they are built (see `Builder::expand`)
-        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) | Decl::Deferred(_) => {}
+        Decl::Fix(_)
+        | Decl::Tie(_)
+        | Decl::Combine(_)
+        | Decl::Units(_)
+        | Decl::Deferred(_)
+        | Decl::Group(_) => {}
     }
 }
 
@@ -956,7 +967,7 @@ impl<'t> Builder<'t> {
     fn register<'a>(&mut self, file: &'a ast::File) -> Names<'a> {
         // Numbers among each kind, in file order.
         let mut number = vec![0u32; file.decls.len()];
-        let mut counters = [0u32; 7];
+        let mut counters = [0u32; NameKind::COUNT];
         for (n, d) in number.iter_mut().zip(&file.decls) {
             if let Some((_, kind)) = declared_name(d) {
                 *n = counters[kind as usize];
@@ -1487,12 +1498,68 @@ impl<'t> Builder<'t> {
             },
             kind,
         };
+        // Groups: each member a part, resolved once.
+        let mut groups: HashMap<&str, Vec<&Ident>> = HashMap::new();
         for d in &file.decls {
-            if let Decl::Check(c) = d {
-                let l = eval(&c.lhs, &cscope);
-                let r = eval(&c.rhs, &cscope);
+            if let Decl::Group(g) = d {
+                let members: Vec<&Ident> = g
+                    .members
+                    .iter()
+                    .filter(|m| self.ok(names.resolve(m, NameKind::Part)).is_some())
+                    .collect();
+                groups.insert(g.name.name.as_str(), members);
+            }
+        }
+        let combination_at: HashMap<&str, usize> = combinations
+            .iter()
+            .enumerate()
+            .map(|(i, c)| (c.name.as_str(), i))
+            .collect();
+        let declared_combinations = combinations.iter().any(|c| c.declared);
+        let long_term = materials.iter().any(|m| m.creep.is_some_and(|c| c > 0.0))
+            && cases.iter().any(|c| c.sustained)
+            && !parts
+                .iter()
+                .any(|p| p.carries != Carries::Both || p.slack.value > 0.0);
+        for d in &file.decls {
+            let Decl::Check(c) = d else { continue };
+            let Some(applies) =
+                self.applies(c, &names, &combination_at, declared_combinations, long_term)
+            else {
+                continue;
+            };
+            // `for x in GROUP`: one check per member, `x` standing for it
+            let members: Vec<Option<&Ident>> = match &c.each {
+                None => vec![None],
+                Some(e) => {
+                    if self.ok(names.resolve(&e.group, NameKind::Group)).is_none() {
+                        continue;
+                    }
+                    groups
+                        .get(e.group.name.as_str())
+                        .map(|m| m.iter().map(|m| Some(*m)).collect())
+                        .unwrap_or_default()
+                }
+            };
+            for member in members {
+                let (mut lhs, mut rhs) = (c.lhs.clone(), c.rhs.clone());
+                let mut label = c.label.text.clone();
+                if let (Some(e), Some(m)) = (&c.each, member) {
+                    for x in [&mut lhs, &mut rhs] {
+                        x.visit_mut(&mut |x| {
+                            if let ExprKind::Field(f) = &mut x.kind {
+                                if f[0].name == e.var.name {
+                                    f[0].name.clone_from(&m.name);
+                                }
+                            }
+                        });
+                    }
+                    label = format!("{label} ({})", m.name);
+                }
+                let l = eval(&lhs, &cscope);
+                let r = eval(&rhs, &cscope);
                 let (Some(l), Some(r)) = (self.ok(l), self.ok(r)) else {
-                    continue;
+                    break;
                 };
                 if l.dim != r.dim {
                     self.errors.push(ModelError::CheckDimensions {
@@ -1501,14 +1568,20 @@ impl<'t> Builder<'t> {
                         lhs: c.lhs.span,
                         rhs: c.rhs.span,
                     });
-                    continue;
+                    break;
                 }
                 checks.push(Check {
-                    label: c.label.text.clone(),
-                    lhs: c.lhs.clone(),
+                    label,
+                    lhs,
                     op: c.op,
-                    rhs: c.rhs.clone(),
+                    rhs,
                     span: c.span,
+                    applies: applies.clone(),
+                    member: c
+                        .each
+                        .as_ref()
+                        .zip(member)
+                        .map(|(e, m)| (e.var.name.to_string(), m.name.to_string())),
                 });
             }
         }
@@ -1633,6 +1706,43 @@ impl<'t> Builder<'t> {
                 None
             }
         }
+    }
+
+    /// Where a check applies, from its `under`.
+    fn applies(
+        &mut self,
+        c: &ast::Check,
+        names: &Names<'_>,
+        combination_at: &HashMap<&str, usize>,
+        declared: bool,
+        long_term: bool,
+    ) -> Option<Applies> {
+        let Some(u) = &c.under else {
+            return Some(Applies::default());
+        };
+        let kind = if declared {
+            NameKind::Combination
+        } else {
+            NameKind::Case
+        };
+        let mut list = Vec::new();
+        let mut ok = true;
+        for n in &u.names {
+            match self.ok(names.resolve(n, kind)) {
+                Some(_) => list.extend(combination_at.get(n.name.as_str()).copied()),
+                None => ok = false,
+            }
+        }
+        if let Some((State::Long, span)) = u.state {
+            if !long_term {
+                self.errors.push(ModelError::NoLongTerm { span });
+                ok = false;
+            }
+        }
+        ok.then(|| Applies {
+            combinations: (!u.names.is_empty()).then_some(list),
+            state: u.state.map(|(s, _)| s),
+        })
     }
 
     fn units(&mut self, u: &ast::Units) -> UnitChoice {

@@ -380,6 +380,16 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("`long_term`: this file has no long-term state")]
+    #[diagnostic(
+        code(tandem::check::no_long_term),
+        help("a long-term state needs a material with `creep`, a `sustained` case, and no one-sense or gapped parts; drop `long_term` or add them")
+    )]
+    NoLongTerm {
+        #[label("no long-term state to check")]
+        span: Span,
+    },
+
     #[error("every factor of combination `{combination}` is zero: it loads nothing")]
     #[diagnostic(
         code(tandem::combine::zero),

@@ -15,6 +15,7 @@ use uom::si::f64::{
 };
 
 use crate::source::Span;
+pub use crate::syntax::ast::State;
 use crate::syntax::ast::{Compare, Expr};
 use crate::units::Quantity;
 
@@ -323,6 +324,50 @@ pub struct Check {
     pub op: Compare,
     pub rhs: Expr,
     pub span: Span,
+    /// Where it applies (`under ...`).
+    pub applies: Applies,
+    /// `(x, member)` for one check of a `for x in GROUP`.
+    pub member: Option<(String, String)>,
+}
+
+/// Where a check applies: some combinations (all when `None`) and one
+/// state (both when `None`).
+#[derive(Clone, Debug, PartialEq, Default)]
+pub struct Applies {
+    pub combinations: Option<Vec<usize>>,
+    pub state: Option<State>,
+}
+
+impl Applies {
+    /// Whether the check is evaluated in combination `k` (a model
+    /// combination index), in the long-term state or the short-term one.
+    #[must_use]
+    pub fn to(&self, k: usize, long_term: bool) -> bool {
+        let state = match self.state {
+            None => true,
+            Some(State::Short) => !long_term,
+            Some(State::Long) => long_term,
+        };
+        state && self.combinations.as_ref().is_none_or(|c| c.contains(&k))
+    }
+
+    /// "all combinations", "`service`, long term", for reports.
+    #[must_use]
+    pub fn describe(&self, model: &Model) -> String {
+        let combos = match &self.combinations {
+            None => "every combination".to_string(),
+            Some(list) => list
+                .iter()
+                .map(|&k| format!("`{}`", model.combinations[k].name))
+                .collect::<Vec<_>>()
+                .join(", "),
+        };
+        match self.state {
+            None => combos,
+            Some(State::Short) => format!("{combos}, short term"),
+            Some(State::Long) => format!("{combos}, long term"),
+        }
+    }
 }
 
 /// Display units chosen by `units`.

@@ -134,9 +134,43 @@ struct Rotation<'a> {
 }
 
 #[derive(Serialize)]
+struct Under<'a> {
+    /// Combination names; absent: every combination.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    combinations: Option<Vec<&'a str>>,
+    /// `short_term` or `long_term`; absent: both.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    state: Option<&'static str>,
+}
+
+fn under<'a>(model: &'a Model, origin: &Origin) -> Option<Under<'a>> {
+    let Origin::Line(i) = origin else {
+        return None;
+    };
+    let a = &model.checks[*i].applies;
+    if *a == crate::model::Applies::default() {
+        return None;
+    }
+    Some(Under {
+        combinations: a.combinations.as_ref().map(|c| {
+            c.iter()
+                .map(|&k| model.combinations[k].name.as_str())
+                .collect()
+        }),
+        state: a.state.map(|s| match s {
+            crate::model::State::Short => "short_term",
+            crate::model::State::Long => "long_term",
+        }),
+    })
+}
+
+#[derive(Serialize)]
 struct CheckOutcome<'a> {
     label: &'a str,
     kind: &'static str,
+    /// Where a check line applies, when its `under` narrows it.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    under: Option<Under<'a>>,
     combination: &'a str,
     demand: f64,
     capacity: f64,
@@ -262,6 +296,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
         .zip(&governing)
         .map(|(o, &is_gov)| CheckOutcome {
             label: &o.label,
+            under: under(model, &o.origin),
             kind: match o.origin {
                 Origin::Line(_) => "check",
                 Origin::Allowable(_) => "allowable",

@@ -397,8 +397,15 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             .checks
             .iter()
             .map(|c| {
+                let mut applies = String::new();
+                if let Some((var, member)) = &c.member {
+                    applies.push_str(&format!(" (`{var}` = `{member}`)"));
+                }
+                if c.applies != crate::model::Applies::default() {
+                    applies.push_str(&format!(" (applies to {})", c.applies.describe(model)));
+                }
                 format!(
-                    "\"{}\": {} {} {}",
+                    "\"{}\"{applies}: {} {} {}",
                     text(&c.label),
                     code(source.slice(c.lhs.span).trim()),
                     c.op.symbol(),

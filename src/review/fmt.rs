@@ -305,6 +305,19 @@ impl Ctx<'_> {
                     ),
                 )
             }
+            Decl::Group(g) => {
+                let names: Vec<&str> = g.members.iter().map(|n| n.name.as_str()).collect();
+                let end = g.members.last().map_or(g.span.end(), |n| n.span.end());
+                one(
+                    "group",
+                    self.single(
+                        format!("group {}", g.name.name),
+                        format!("= {}", names.join(", ")),
+                        g.span.start(),
+                        end,
+                    ),
+                )
+            }
             Decl::Combine(c) => {
                 let end = c.terms.last().map_or(c.name.span.end(), |t| t.span.end());
                 let after_name = &self.text[c.name.span.end()..end];
@@ -329,10 +342,27 @@ impl Ctx<'_> {
                     Compare::Ge => ">=",
                     Compare::Gt => ">",
                 };
+                let mut head = format!("check {}", self.slice(c.label.span));
+                if let Some(e) = &c.each {
+                    head.push_str(&format!(" for {} in {}", e.var.name, e.group.name));
+                }
+                if let Some(u) = &c.under {
+                    head.push_str(" under");
+                    let names: Vec<&str> = u.names.iter().map(|n| n.name.as_str()).collect();
+                    if !names.is_empty() {
+                        head.push(' ');
+                        head.push_str(&names.join(", "));
+                    }
+                    match u.state {
+                        Some((crate::syntax::ast::State::Short, _)) => head.push_str(" short_term"),
+                        Some((crate::syntax::ast::State::Long, _)) => head.push_str(" long_term"),
+                        None => {}
+                    }
+                }
                 one(
                     "check",
                     self.single(
-                        format!("check {}", self.slice(c.label.span)),
+                        head,
                         format!(
                             ": {} {op} {}",
                             self.slice(c.lhs.span),

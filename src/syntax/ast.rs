@@ -32,6 +32,7 @@ pub enum Decl {
     Case(Box<Case>),
     Combine(Box<Combine>),
     Check(Box<Check>),
+    Group(Box<Group>),
     Units(Units),
     /// A case statement standing at top level (the file's single case).
     Stmt(Box<Stmt>),
@@ -238,13 +239,47 @@ impl Compare {
     }
 }
 
-/// `check "label" : LHS op RHS`
+/// `check "label" [for x in GROUP] [under NAME, ... [short_term|long_term]] : LHS op RHS`
 #[derive(Clone, Debug, PartialEq)]
 pub struct Check {
     pub label: Str,
+    pub each: Option<Each>,
+    pub under: Option<Under>,
     pub lhs: Expr,
     pub op: Compare,
     pub rhs: Expr,
+    pub span: Span,
+}
+
+/// `for x in GROUP` in a check.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Each {
+    pub var: Ident,
+    pub group: Ident,
+    pub span: Span,
+}
+
+/// Which state of the assembly a check reads.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum State {
+    Short,
+    Long,
+}
+
+/// `under NAME, ... [short_term|long_term]` in a check.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Under {
+    /// Combinations (or cases, in a file with no `combine`); empty: all.
+    pub names: Vec<Ident>,
+    pub state: Option<(State, Span)>,
+    pub span: Span,
+}
+
+/// `group NAME = a, b, c`
+#[derive(Clone, Debug, PartialEq)]
+pub struct Group {
+    pub name: Ident,
+    pub members: Vec<Ident>,
     pub span: Span,
 }
 
@@ -363,6 +398,39 @@ impl Expr {
             ExprKind::Call(c) => {
                 for a in &c.args {
                     a.value.visit(f);
+                }
+            }
+        }
+    }
+
+    /// Call `f` on this expression and every one inside it, mutably.
+    pub fn visit_mut(&mut self, f: &mut impl FnMut(&mut Expr)) {
+        f(self);
+        match &mut self.kind {
+            ExprKind::Quantity { .. }
+            | ExprKind::Unit(_)
+            | ExprKind::Name(_)
+            | ExprKind::Field(..) => {}
+            ExprKind::Neg(x) => x.visit_mut(f),
+            ExprKind::Sum(a, rest) => {
+                a.visit_mut(f);
+                for (_, x) in rest {
+                    x.visit_mut(f);
+                }
+            }
+            ExprKind::Product(a, rest) => {
+                a.visit_mut(f);
+                for (_, x) in rest {
+                    x.visit_mut(f);
+                }
+            }
+            ExprKind::Power(a, b) => {
+                a.visit_mut(f);
+                b.visit_mut(f);
+            }
+            ExprKind::Call(c) => {
+                for a in &mut c.args {
+                    a.value.visit_mut(f);
                 }
             }
         }

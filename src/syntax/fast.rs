@@ -15,9 +15,9 @@
 //! A failed alternative restores the position, as a PEG does.
 
 use super::ast::{
-    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
-    Expr, ExprKind, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Stub, StubKind, Support, Tie,
-    UnitExpr, UnitFactor, Units, Value,
+    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Each,
+    Entry, Expr, ExprKind, Group, Ident, Let, MulOp, NamedBlock, Node, State, Stmt, Str, Stub,
+    StubKind, Support, Tie, Under, UnitExpr, UnitFactor, Units, Value,
 };
 use super::lower::{quantity_with_unit, word_expr};
 use crate::source::Span;
@@ -268,8 +268,23 @@ impl<'a> P<'a> {
                 }))
             }
             "combine" => self.combine(start)?,
+            "group" => {
+                let name = self.ident()?;
+                if !self.eat(b'=') {
+                    return None;
+                }
+                let members = self.list(Self::ident)?;
+                let end = members[members.len() - 1].span.end() - self.base;
+                Decl::Group(Box::new(Group {
+                    name,
+                    members,
+                    span: self.span(start, end),
+                }))
+            }
             "check" => {
                 let label = self.string()?;
+                let each = self.each()?;
+                let under = self.under()?;
                 if !self.eat(b':') {
                     return None;
                 }
@@ -291,6 +306,8 @@ impl<'a> P<'a> {
                 let span = self.span(start, rhs.span.end() - self.base);
                 Decl::Check(Box::new(Check {
                     label,
+                    each,
+                    under,
                     lhs,
                     op,
                     rhs,
@@ -329,6 +346,71 @@ impl<'a> P<'a> {
 
     /// `item (, item)*`: at least one; a comma not followed by an item is
     /// left for the caller, as the grammar's repetition backtracks.
+    /// `for x in GROUP`, if present; `None` when it is malformed.
+    #[allow(clippy::option_option)]
+    fn each(&mut self) -> Option<Option<Each>> {
+        let m = self.mark();
+        let Some((a, _)) = self.word().filter(|&(a, b)| &self.text[a..b] == "for") else {
+            self.reset(m);
+            return Some(None);
+        };
+        let var = self.ident()?;
+        if !self.keyword("in") {
+            return None;
+        }
+        let group = self.ident()?;
+        let end = group.span.end() - self.base;
+        Some(Some(Each {
+            var,
+            group,
+            span: self.span(a, end),
+        }))
+    }
+
+    /// `under NAME, ... [short_term|long_term]`, if present.
+    #[allow(clippy::option_option)]
+    fn under(&mut self) -> Option<Option<Under>> {
+        let m = self.mark();
+        let Some((a, _)) = self.word().filter(|&(a, b)| &self.text[a..b] == "under") else {
+            self.reset(m);
+            return Some(None);
+        };
+        let state = |p: &mut Self| {
+            let m = p.mark();
+            match p.word() {
+                Some((x, y)) if matches!(&p.text[x..y], "short_term" | "long_term") => {
+                    let st = if &p.text[x..y] == "long_term" {
+                        State::Long
+                    } else {
+                        State::Short
+                    };
+                    Some((st, p.span(x, y)))
+                }
+                _ => {
+                    p.reset(m);
+                    None
+                }
+            }
+        };
+        let (names, state) = match state(self) {
+            Some(st) => (Vec::new(), Some(st)),
+            None => {
+                let names = self.list(Self::ident)?;
+                (names, state(self))
+            }
+        };
+        let end = match (&state, names.last()) {
+            (Some((_, sp)), _) => sp.end(),
+            (None, Some(n)) => n.span.end(),
+            (None, None) => return None,
+        } - self.base;
+        Some(Some(Under {
+            names,
+            state,
+            span: self.span(a, end),
+        }))
+    }
+
     fn list<T>(&mut self, mut item: impl FnMut(&mut Self) -> Option<T>) -> Option<Vec<T>> {
         let mut items = vec![item(self)?];
         loop {

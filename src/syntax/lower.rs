@@ -4,9 +4,9 @@ use pest::iterators::Pair;
 use pest::Parser;
 
 use super::ast::{
-    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Entry,
-    Expr, ExprKind, File, Ident, Let, MulOp, NamedBlock, Node, Stmt, Str, Stub, Support, Tie,
-    UnitExpr, UnitFactor, Units, Value,
+    AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Each,
+    Entry, Expr, ExprKind, File, Group, Ident, Let, MulOp, NamedBlock, Node, State, Stmt, Str,
+    Stub, Support, Tie, Under, UnitExpr, UnitFactor, Units, Value,
 };
 use super::parser::{CalcParser, Rule};
 use super::{SyntaxError, MAX_NESTING};
@@ -360,6 +360,10 @@ fn describe(rule: Rule) -> Option<&'static str> {
         Rule::sign => "`+` or `-`",
         Rule::combo_term => "a case name",
         Rule::case_flag => "`sustained`",
+        Rule::check_each | Rule::kw_for => "`for`",
+        Rule::kw_in => "`in`",
+        Rule::check_under | Rule::kw_under => "`under`",
+        Rule::check_state => "`short_term` or `long_term`",
         Rule::unit_system => "`us`, `si`",
         Rule::kw_at => "`at`",
         Rule::entry => "a `key = value` line",
@@ -374,6 +378,7 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::case_decl
         | Rule::combine_decl
         | Rule::check_decl
+        | Rule::group_decl
         | Rule::units_decl
         | Rule::statement
         | Rule::kw_calc
@@ -387,6 +392,7 @@ fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::kw_case
         | Rule::kw_combine
         | Rule::kw_check
+        | Rule::kw_group
         | Rule::kw_units => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
         Rule::load_stmt
         | Rule::temperature_stmt
@@ -589,6 +595,10 @@ fn parts(p: Pair<'_, Rule>) -> impl Iterator<Item = Pair<'_, Rule>> {
                 | Rule::kw_case
                 | Rule::kw_combine
                 | Rule::kw_check
+                | Rule::kw_for
+                | Rule::kw_in
+                | Rule::kw_under
+                | Rule::kw_group
                 | Rule::kw_units
                 | Rule::kw_load
                 | Rule::kw_temperature
@@ -719,7 +729,45 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
         }
         Rule::check_decl => {
             let label = string(&need(next(), sp)?);
-            let lhs = expr(need(next(), sp)?)?;
+            let mut q = need(next(), sp)?;
+            let mut each = None;
+            let mut under = None;
+            if q.as_rule() == Rule::check_each {
+                let esp = span(&q);
+                let mut it = parts(q);
+                let var = ident(&need(it.next(), esp)?);
+                let group = ident(&need(it.next(), esp)?);
+                each = Some(Each {
+                    var,
+                    group,
+                    span: esp,
+                });
+                q = need(next(), sp)?;
+            }
+            if q.as_rule() == Rule::check_under {
+                let usp = span(&q);
+                let mut names = Vec::new();
+                let mut state = None;
+                for r in parts(q) {
+                    if r.as_rule() == Rule::check_state {
+                        let st = if r.as_str() == "long_term" {
+                            State::Long
+                        } else {
+                            State::Short
+                        };
+                        state = Some((st, span(&r)));
+                    } else {
+                        names.push(ident(&r));
+                    }
+                }
+                under = Some(Under {
+                    names,
+                    state,
+                    span: usp,
+                });
+                q = need(next(), sp)?;
+            }
+            let lhs = expr(q)?;
             let op = match need(next(), sp)?.as_str() {
                 "<=" => Compare::Le,
                 "<" => Compare::Lt,
@@ -729,9 +777,23 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
             let rhs = expr(need(next(), sp)?)?;
             Decl::Check(Box::new(Check {
                 label,
+                each,
+                under,
                 lhs,
                 op,
                 rhs,
+                span: sp,
+            }))
+        }
+        Rule::group_decl => {
+            let name = ident(&need(next(), sp)?);
+            let mut members = Vec::new();
+            while let Some(n) = next() {
+                members.push(ident(&n));
+            }
+            Decl::Group(Box::new(Group {
+                name,
+                members,
                 span: sp,
             }))
         }
