@@ -4,10 +4,15 @@
 
 use crate::model::eval::{constant, eval, Scope};
 use crate::model::{Kind, Model, ModelError};
+use crate::solve::capacity::Capacity;
 use crate::solve::{CombinationResult, Solution};
 use crate::syntax::ast::{Compare, ExprKind, Ident};
 use crate::units::{Dimension, Quantity};
 use std::collections::{HashMap, HashSet};
+
+/// Names a check may use for the load factors of its combination's
+/// capacity path: λ at first yield and at the plastic limit.
+pub const LOAD_FACTORS: &[&str] = &["yield_factor", "limit_factor"];
 
 /// Where a check comes from.
 #[derive(Clone, Debug, PartialEq)]
@@ -215,6 +220,10 @@ pub struct ResultScope<'a> {
     pub result: &'a CombinationResult,
     /// Built once for the model (`Refs::new`) and shared by every scope.
     pub refs: &'a Refs<'a>,
+    /// The combination's capacity path, for `yield_factor` and `limit_factor`.
+    pub capacity: Option<&'a Capacity>,
+    /// The model combination index.
+    pub combination: usize,
 }
 
 impl Scope for ResultScope<'_> {
@@ -222,11 +231,39 @@ impl Scope for ResultScope<'_> {
         if let Some(v) = constant(&id.name) {
             return Ok(Quantity::number(v));
         }
-        self.refs
-            .lets
-            .get(id.name.as_str())
-            .map(|&i| self.model.lets[i].value)
-            .ok_or_else(ModelError::poisoned)
+        if let Some(&i) = self.refs.lets.get(id.name.as_str()) {
+            return Ok(self.model.lets[i].value);
+        }
+        if !LOAD_FACTORS.contains(&id.name.as_str()) {
+            return Err(ModelError::poisoned());
+        }
+        let combination = &self.model.combinations[self.combination].name;
+        let no = |reason: String| ModelError::NoLoadFactor {
+            name: id.name.to_string(),
+            combination: combination.clone(),
+            reason,
+            span: id.span,
+        };
+        let Some(c) = self.capacity else {
+            return Err(no(
+                "no capacity path is traced: no material gives `yield`".into()
+            ));
+        };
+        if let Some(note) = &c.note {
+            return Err(no(note.clone()));
+        }
+        let v = if id.name == "yield_factor" {
+            c.first_yield
+                .ok_or_else(|| no("no part yields along the path".into()))?
+        } else {
+            c.limit.ok_or_else(|| {
+                no(
+                    "no plastic limit forms: parts without a yield strength keep carrying load"
+                        .into(),
+                )
+            })?
+        };
+        Ok(Quantity::number(v))
     }
 
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
@@ -340,13 +377,14 @@ pub fn evaluate_with(
     solution: &Solution,
     refs: &Refs<'_>,
 ) -> Result<Checks, ModelError> {
-    evaluate_state(model, solution, refs, None)
+    evaluate_state(model, solution, refs, None, &[])
 }
 
 /// [`evaluate_with`] in one state: the short-term one (`long_of` `None`:
 /// `solution`'s combinations are the model's), or the long-term one, whose
 /// `k`-th state is model combination `long_of[k]`. Each check is evaluated
-/// where its `under` lets it apply.
+/// where its `under` lets it apply; `capacity` gives `yield_factor` and
+/// `limit_factor` (empty: none traced).
 ///
 /// # Errors
 /// As [`evaluate`].
@@ -355,6 +393,7 @@ pub fn evaluate_state(
     solution: &Solution,
     refs: &Refs<'_>,
     long_of: Option<&[usize]>,
+    capacity: &[Capacity],
 ) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
     for (ci, check) in model.checks.iter().enumerate() {
@@ -367,6 +406,8 @@ pub fn evaluate_state(
                 model,
                 result,
                 refs,
+                capacity: capacity.iter().find(|c| c.combination == combination),
+                combination,
             };
             let l = eval(&check.lhs, &scope)?;
             let r = eval(&check.rhs, &scope)?;

@@ -242,11 +242,12 @@ pub fn analyse_partial(source: &Source) -> (Option<Analysis>, Vec<Error>) {
 fn analyse_model(model: Model) -> Result<Analysis, Box<(Model, Vec<Error>)>> {
     let parts = (|| {
         let solution = solve::solve(&model).map_err(|e| vec![Error::from(e)])?;
-        let checks = checks::evaluate(&model, &solution).map_err(|e| vec![Error::from(e)])?;
         let capacity = solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
+        let refs = checks::Refs::new(&model, &[]);
+        let checks = checks::evaluate_state(&model, &solution, &refs, None, &capacity)
+            .map_err(|e| vec![Error::from(e)])?;
         let buckling = checks::buckling(&model, &solution);
-        let (long_term, long_term_checks) =
-            long_term_checks(&model, &solution, &checks::Refs::new(&model, &[]))?;
+        let (long_term, long_term_checks) = long_term_checks(&model, &solution, &refs, &capacity)?;
         Ok((
             solution,
             checks,
@@ -283,6 +284,7 @@ pub fn long_term_checks(
     model: &Model,
     solution: &solve::Solution,
     refs: &checks::Refs<'_>,
+    capacity: &[solve::capacity::Capacity],
 ) -> Result<LongTermChecks, Vec<Error>> {
     let long_term = solve::longterm::long_term(model).map_err(|e| vec![Error::from(e)])?;
     let states: Vec<solve::CombinationResult> =
@@ -300,7 +302,7 @@ pub fn long_term_checks(
         .filter(|l| l.result.is_some())
         .map(|l| l.combination)
         .collect();
-    let c = checks::evaluate_state(model, &lt, refs, Some(&long_of))
+    let c = checks::evaluate_state(model, &lt, refs, Some(&long_of), capacity)
         .map_err(|e| vec![Error::from(e)])?;
     Ok((long_term, Some((lt, c))))
 }

@@ -196,3 +196,40 @@ fn under_names_what_is_wrong() {
     ));
     assert!(e.contains("unknown group `nothing`"), "{e}");
 }
+
+/// `yield_factor` and `limit_factor` are the λ of each combination's
+/// capacity path: a core (fy·A) and bars in parallel reach the limit when
+/// both yield, λ = (0.85·fck·A_c + f_y·A_s) / P (plastic limit of parallel
+/// members, any limit-analysis text).
+#[test]
+fn load_factors_in_checks() {
+    let text = "material c { E = 30 GPa; yield = 25.5 MPa }\nmaterial s { E = 200 GPa; yield = 500 MPa }\n\
+        node a at 0 m\nnode b at 3 m\nfix a\n\
+        part core { material = c; area = 0.16 m^2; ends = a, b }\n\
+        part bars { material = s; area = 2500 mm^2; ends = a, b }\n\
+        load b = -2000 kN\n\
+        check \"reserve\" : limit_factor >= 1.7\ncheck \"first\" : yield_factor >= 1\n";
+    let a = analyse(text);
+    let limit = (25.5e6 * 0.16 + 500e6 * 2500e-6) / 2000e3;
+    let reserve = &a.checks.outcomes[0];
+    assert!(
+        (reserve.capacity.value - limit).abs() < 1e-9 * limit,
+        "{}",
+        reserve.capacity.value
+    );
+    assert_eq!(a.capacity[0].limit, Some(reserve.capacity.value));
+    assert_eq!(
+        a.capacity[0].first_yield,
+        Some(a.checks.outcomes[1].capacity.value)
+    );
+    // no material yields: no load factor, and the error says why
+    let plain = text
+        .replace("; yield = 25.5 MPa", "")
+        .replace("; yield = 500 MPa", "");
+    let src = Source::new("t.tandem", plain);
+    let Err(e) = tandem::analyse(&src) else {
+        panic!("refused");
+    };
+    let msg = tandem::diagnostic::render(&e, &src, 100, false);
+    assert!(msg.contains("no capacity path is traced"), "{msg}");
+}

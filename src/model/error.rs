@@ -380,6 +380,19 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("`{name}` has no value in combination `{combination}`: {reason}")]
+    #[diagnostic(
+        code(tandem::check::load_factor),
+        help("`yield_factor` and `limit_factor` are the load factors λ at first yield and at the plastic limit; narrow the check with `under` to combinations where they exist")
+    )]
+    NoLoadFactor {
+        name: String,
+        combination: String,
+        reason: String,
+        #[label("no {name} here")]
+        span: Span,
+    },
+
     #[error("`long_term`: this file has no long-term state")]
     #[diagnostic(
         code(tandem::check::no_long_term),

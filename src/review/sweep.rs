@@ -9,7 +9,7 @@
 
 use serde_json::{json, Value};
 
-use crate::checks::{evaluate_with, Checks, Refs};
+use crate::checks::{evaluate_state, Checks, Refs};
 use crate::model::{build_with, Limits, Model};
 use crate::solve::solve;
 use crate::source::Source;
@@ -181,9 +181,12 @@ impl<'a> Sweeper<'a> {
         // one lookup of the names for the checks and the results shown
         let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
         let refs = Refs::new(&model, &objects);
-        let checks = evaluate_with(&model, solution, &refs).map_err(|e| vec![Error::from(e)])?;
+        let capacity =
+            crate::solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
+        let checks = evaluate_state(&model, solution, &refs, None, &capacity)
+            .map_err(|e| vec![Error::from(e)])?;
         // every check `solve` evaluates: the long-term state's too
-        let (_, long) = crate::long_term_checks(&model, solution, &refs)?;
+        let (_, long) = crate::long_term_checks(&model, solution, &refs, &capacity)?;
         let long = long.map(|(_, c)| c);
         let all = checks
             .outcomes
@@ -216,6 +219,8 @@ impl<'a> Sweeper<'a> {
                         model: &model,
                         result: r,
                         refs: &refs,
+                        capacity: None,
+                        combination: 0,
                     };
                     let id = |n: &str| ast::Ident {
                         name: n.into(),
