@@ -394,3 +394,35 @@ part r { material = steel; area = 100 mm^2; ends = b, d }
     assert!(err.contains("more than one rigid body"), "{err}");
     assert!(err.contains(": 1 error"), "{err}");
 }
+
+/// The part table says which strain is which: the total (thermal and free
+/// strain included) and the strain from force, σ/E (Hooke's law).
+#[test]
+fn strain_columns_say_what_they_are() {
+    let out = tandem_on(
+        &std::fs::read_to_string(
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/anchored_pipe.tandem"),
+        )
+        .expect("example"),
+        &["solve", "--json"],
+    );
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let line = &v["combinations"][0]["parts"][0];
+    let from_force = line["strain_from_force"].as_f64().expect("member");
+    let sigma = line["stress_Pa"].as_f64().expect("stress");
+    // 29000 ksi in Pa (NIST SP 811: 1 psi = 6894.757293168361 Pa)
+    assert!(common::rel(from_force, sigma / (29000e3 * 6_894.757_293_168_361)) < 1e-12);
+    assert!(line["strain"].as_f64().expect("total") > 0.0 && from_force < 0.0);
+    let text = tandem_on(
+        &std::fs::read_to_string(
+            std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/anchored_pipe.tandem"),
+        )
+        .expect("example"),
+        &["solve"],
+    );
+    let t = String::from_utf8_lossy(&text.stdout);
+    assert!(
+        t.contains("total strain (µε)") && t.contains("strain from force σ/E (µε)"),
+        "{t}"
+    );
+}

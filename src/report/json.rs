@@ -62,7 +62,11 @@ struct PartRecord<'a> {
     force_N: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     stress_Pa: Option<f64>,
+    /// Total: elongation over length (free elongation and gap included).
     strain: f64,
+    /// From force alone: σ/E (members only).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    strain_from_force: Option<f64>,
     elongation_m: f64,
     state: &'static str,
 }
@@ -79,6 +83,7 @@ impl Serialize for Parts<'_> {
                     force_N: pr.force.value,
                     stress_Pa: pr.stress.map(|s| s.value),
                     strain: pr.strain,
+                    strain_from_force: super::table::force_strain(self.0, p, pr),
                     elongation_m: pr.elongation.value,
                     state: pr.state.name(),
                 }),

@@ -75,6 +75,16 @@ pub fn combination_text(model: &Model, index: usize) -> String {
 }
 
 /// The text `tandem solve` prints.
+/// The strain from force alone, σ/E, of a member (springs have none).
+pub fn force_strain(
+    model: &Model,
+    p: &crate::model::Part,
+    pr: &crate::solve::PartResult,
+) -> Option<f64> {
+    let e = model.materials[p.material()?].e.value;
+    Some(pr.stress?.value / e)
+}
+
 pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
     let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     let mut out = String::new();
@@ -103,7 +113,8 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             "part".to_string(),
             format!("force ({})", d.force.name),
             format!("stress ({})", d.stress.name),
-            "strain (µε)".to_string(),
+            "total strain (µε)".to_string(),
+            "strain from force σ/E (µε)".to_string(),
             format!("elongation ({})", d.small.name),
             "state".to_string(),
         ]];
@@ -115,11 +126,13 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
                     number(d.stress.value(sc.stress(s.value)), d.digits)
                 }),
                 number(sc.strain(pr.strain) * 1e6, d.digits),
+                force_strain(model, p, pr)
+                    .map_or("—".into(), |e| number(sc.strain(e) * 1e6, d.digits)),
                 number(d.small.value(sc.small(pr.elongation.value)), d.digits),
                 pr.state.name().to_string(),
             ]);
         }
-        out.push_str(&aligned(&rows, &[0, 5], "  "));
+        out.push_str(&aligned(&rows, &[0, 6], "  "));
         let mut rows = match model.kind {
             Kind::Axial => vec![vec![
                 "node".to_string(),
