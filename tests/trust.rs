@@ -426,3 +426,21 @@ fn strain_columns_say_what_they_are() {
         "{t}"
     );
 }
+
+/// A value derived from others shows its expression with their values
+/// substituted, once: Ec = 57000·√(f'c/psi) psi (ACI 318-19 19.2.2.1(b)).
+#[test]
+fn derived_inputs_show_their_numbers() {
+    let text = "let fc = 5000 psi\nlet ec = 57000 * sqrt(fc / psi) * psi\nlet span = 12 ft\n\
+        let defl = span / 360 - 0.1 in\nmaterial fill { E = ec }\nnode a at 0 ft\nnode b at span\nfix a\n\
+        part p { material = fill; area = 100 in^2; ends = a, b }\nload b = -10 kip\n";
+    let out = tandem_on(text, &["report"]);
+    let md = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        md.contains("| ec | `57000 * sqrt(fc / psi) * psi` = `57000 · √(5000 psi / psi) · psi` |"),
+        "{md}"
+    );
+    assert!(md.contains("= `12.00 ft / 360 − 0.1 in`"), "{md}");
+    // a value given directly is not repeated
+    assert!(md.contains("| fc | `5000 psi` |"), "{md}");
+}

@@ -443,17 +443,36 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
     if !model.lets.is_empty() {
         doc.h(3, "Design quantities");
         let with_sources = model.lets.iter().any(|l| !l.sources.is_empty());
+        // each let's value as shown, found by name once
+        let shown = |l: &crate::model::LetValue| {
+            if l.value.dim == Dimension::LENGTH {
+                f.length(l.value.value)
+            } else {
+                f.d.quantity(l.value)
+            }
+        };
+        let values: std::collections::HashMap<&str, String> = model
+            .lets
+            .iter()
+            .map(|l| (l.name.as_str(), shown(l)))
+            .collect();
         let rows: Vec<Vec<String>> = model
             .lets
             .iter()
             .map(|l| {
                 let expr = source.slice(l.expr.span).trim().replace('\n', " ");
-                let value = if l.value.dim == Dimension::LENGTH {
-                    f.length(l.value.value)
+                let value = shown(l);
+                // a value derived from others: its expression with their
+                // values substituted, once
+                let expr = if super::substitute::uses_names(&l.expr) {
+                    let with = super::substitute::substituted(&l.expr, source, &|n| {
+                        values.get(n).cloned()
+                    });
+                    format!("{} = {}", code(&expr), code(&with))
                 } else {
-                    f.d.quantity(l.value)
+                    code(&expr)
                 };
-                let mut row = vec![text(&l.name), code(&expr), value];
+                let mut row = vec![text(&l.name), expr, value];
                 if with_sources {
                     row.push(if l.sources.is_empty() {
                         "—".into()

@@ -4,6 +4,7 @@
 pub mod display;
 pub mod json;
 pub mod markdown;
+pub mod substitute;
 pub mod table;
 
 pub use display::{number, utilization, Display};
