@@ -212,6 +212,8 @@ struct Capacity<'a> {
 #[derive(Serialize)]
 struct YieldEvent<'a> {
     part: &'a str,
+    /// `yield` or `release` (a one-sense part letting go).
+    event: &'static str,
     load_factor: f64,
     sense: &'static str,
 }
@@ -348,6 +350,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
                 .iter()
                 .map(|e| YieldEvent {
                     part: &model.parts[e.part].name,
+                    event: if e.released { "release" } else { "yield" },
                     load_factor: e.lambda,
                     sense: if e.tension { "tension" } else { "compression" },
                 })

@@ -13,8 +13,11 @@ pub struct YieldEvent {
     pub part: usize,
     /// Load factor at which it yields.
     pub lambda: f64,
-    /// Yields in tension (else compression).
+    /// Yields in tension (else compression); for a release, the sense the
+    /// part carried until it let go.
     pub tension: bool,
+    /// A one-sense part letting go (its force reaching zero), not a yield.
+    pub released: bool,
 }
 
 /// The capacity path of one combination.
@@ -107,6 +110,8 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
         let n_el: Vec<f64> = (0..n).map(|i| k_full[i] * e_el[i]).collect();
 
         let mut yielded: Vec<Option<f64>> = vec![None; n];
+        // one-sense parts that have let go: no stiffness, no force
+        let mut released = vec![false; n];
         let mut lambda = 0.0;
         let mut events = Vec::new();
         let mut limit_forces = vec![0.0; n];
@@ -114,7 +119,13 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
         let mut note = None;
         loop {
             let k: Vec<f64> = (0..n)
-                .map(|i| if yielded[i].is_some() { 0.0 } else { k_full[i] })
+                .map(|i| {
+                    if yielded[i].is_some() || released[i] {
+                        0.0
+                    } else {
+                        k_full[i]
+                    }
+                })
                 .collect();
             let forces: Vec<f64> = yielded.iter().map(|y| y.unwrap_or(0.0)).collect();
             let factor = match system.factor(&k, &[]) {
@@ -139,20 +150,66 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                     }
                 })
                 .collect();
-            // Next part to reach its yield force.
-            let mut next = f64::INFINITY;
-            let wrong_sense = |lam: f64| {
-                (0..n).find(|&i| {
-                    let f = nc[i] + lam * np[i];
-                    let tol = 1e-9 * nc[i].abs().max(np[i].abs() * lam.abs()).max(1.0);
+            // A one-sense part already in the sense it cannot carry lets
+            // go now (at the start, under the self-straining actions alone).
+            if let Some(i) = (0..n).find(|&i| {
+                !released[i] && yielded[i].is_none() && {
+                    let f = nc[i] + lambda * np[i];
+                    let tol = 1e-9 * nc[i].abs().max(np[i].abs() * lambda.abs()).max(1.0);
                     match model.parts[i].carries {
                         Carries::Tension => f < -tol,
                         Carries::Compression => f > tol,
                         Carries::Both => false,
                     }
+                }
+            }) {
+                released[i] = true;
+                events.push(YieldEvent {
+                    part: i,
+                    lambda,
+                    tension: model.parts[i].carries == Carries::Tension,
+                    released: true,
+                });
+                continue;
+            }
+            // Next part to reach its yield force.
+            let mut next = f64::INFINITY;
+            // A part that has let go must stay free: its movement δ − δ₀
+            // may not turn back into the sense it carries.
+            let engages = |lam: f64| {
+                (0..n).find(|&i| {
+                    if !released[i] {
+                        return false;
+                    }
+                    let d = ec[i] - constant.free[i] + lam * ep[i];
+                    let tol = 1e-9 * model.parts[i].length.value.max(1e-3);
+                    match model.parts[i].carries {
+                        Carries::Tension => d > tol,
+                        Carries::Compression => d < -tol,
+                        Carries::Both => false,
+                    }
                 })
             };
-            let mut candidates: Vec<(usize, f64, bool)> = Vec::new();
+            // (part, λ, tension, release)
+            let mut candidates: Vec<(usize, f64, bool, bool)> = Vec::new();
+            for i in 0..n {
+                if yielded[i].is_some() || released[i] {
+                    continue;
+                }
+                let carries = model.parts[i].carries;
+                let scale = nc[i].abs().max(np[i].abs()).max(1.0);
+                // the force nc + λ·np reaches zero going the wrong way
+                let lets_go = match carries {
+                    Carries::Compression => np[i] > 1e-12 * scale,
+                    Carries::Tension => np[i] < -1e-12 * scale,
+                    Carries::Both => false,
+                };
+                if lets_go {
+                    let l = (-nc[i] / np[i]).max(lambda);
+                    candidates.push((i, l, carries == Carries::Tension, true));
+                    next = next.min(l);
+                }
+            }
             for i in 0..n {
                 if yielded[i].is_some() {
                     continue;
@@ -176,19 +233,20 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                     continue;
                 };
                 let l = l.max(lambda);
-                candidates.push((i, l, tension));
+                candidates.push((i, l, tension, false));
                 next = next.min(l);
             }
-            // One-sense parts are traced as engaged; the path holds only if
-            // each keeps its sense over this stage (forces vary linearly).
+            // Forces vary linearly over a stage, so a part that let go and
+            // stays free at both ends of it stays free throughout.
             let end = if next.is_finite() { next } else { lambda };
-            if let Some(i) = wrong_sense(lambda).or_else(|| wrong_sense(end)) {
+            if let Some(i) = engages(lambda).or_else(|| engages(end)) {
                 note = Some(format!(
-                    "not traced: part `{}`, which carries {} only, would go slack along the path",
-                    model.parts[i].name,
-                    model.parts[i].carries.name()
+                    "traced to λ = {lambda:.4}: part `{}`, which let go, would engage again beyond it",
+                    model.parts[i].name
                 ));
-                events.clear();
+                for i in 0..n {
+                    limit_forces[i] = nc[i] + lambda * np[i];
+                }
                 break;
             }
             if note.is_some() || !next.is_finite() {
@@ -198,20 +256,29 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
                 break;
             }
             let tol = 1e-9 * next.abs().max(1.0);
-            for &(i, l, tension) in &candidates {
+            for &(i, l, tension, release) in &candidates {
                 if l <= next + tol {
-                    let (ft, fc) = yield_forces(model, i).unwrap_or((0.0, 0.0));
-                    yielded[i] = Some(if tension { ft } else { -fc });
+                    if release {
+                        released[i] = true;
+                    } else {
+                        let (ft, fc) = yield_forces(model, i).unwrap_or((0.0, 0.0));
+                        yielded[i] = Some(if tension { ft } else { -fc });
+                    }
                     events.push(YieldEvent {
                         part: i,
                         lambda: next,
                         tension,
+                        released: release,
                     });
                 }
             }
             lambda = next;
             for i in 0..n {
-                limit_forces[i] = yielded[i].unwrap_or(nc[i] + lambda * np[i]);
+                limit_forces[i] = if released[i] {
+                    0.0
+                } else {
+                    yielded[i].unwrap_or(nc[i] + lambda * np[i])
+                };
             }
             if events.len() >= n {
                 limit = Some(lambda);
@@ -224,7 +291,7 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
         };
         out.push(Capacity {
             combination: ci,
-            first_yield: events.first().map(|e| e.lambda),
+            first_yield: events.iter().find(|e| !e.released).map(|e| e.lambda),
             limit,
             events,
             limit_forces,
