@@ -444,3 +444,20 @@ fn derived_inputs_show_their_numbers() {
     // a value given directly is not repeated
     assert!(md.contains("| fc | `5000 psi` |"), "{md}");
 }
+
+/// A material value written with other names is shown substituted too:
+/// Ec = 57000·√(f'c/psi) psi = 4031 ksi for f'c = 5 ksi (ACI 318-19
+/// 19.2.2.1(b)).
+#[test]
+fn derived_material_values_show_their_numbers() {
+    let text = std::fs::read_to_string(
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/filled_post.tandem"),
+    )
+    .expect("example");
+    let out = tandem_on(&text, &["report"]);
+    let md = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        md.contains("- E(fill): `57000 * sqrt(fc / psi) * psi` = `57000 · √(5.000 ksi / psi) · psi` = 4031 ksi"),
+        "{md}"
+    );
+}

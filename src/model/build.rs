@@ -1883,7 +1883,19 @@ impl<'t> Builder<'t> {
             });
             return None;
         }
+        // keys derived from other names, for the report's substitution
+        let mut derived = Vec::new();
+        for key in KEYS {
+            if let Some(Ok(e)) = f.expr(key) {
+                let mut named = false;
+                e.visit(&mut |x| named |= matches!(x.kind, ExprKind::Name(_)));
+                if named {
+                    derived.push((*key, e.clone()));
+                }
+            }
+        }
         Some(Material {
+            derived,
             name: nb.name.name.to_string(),
             e: si_pressure(e),
             alpha,

@@ -96,6 +96,9 @@ pub struct Material {
     pub creep: Option<f64>,
     /// Published formulas `E` comes from.
     pub e_sources: Vec<&'static str>,
+    /// The keys written as expressions of other names, with their
+    /// expressions (the report shows them substituted).
+    pub derived: Vec<(&'static str, Expr)>,
     pub span: Span,
 }
 

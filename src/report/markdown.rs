@@ -440,22 +440,22 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
 
 fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
     doc.h(2, "Inputs");
+    // each let's value as shown, found by name once
+    let shown = |l: &crate::model::LetValue| {
+        if l.value.dim == Dimension::LENGTH {
+            f.length(l.value.value)
+        } else {
+            f.d.quantity(l.value)
+        }
+    };
+    let values: std::collections::HashMap<&str, String> = model
+        .lets
+        .iter()
+        .map(|l| (l.name.as_str(), shown(l)))
+        .collect();
     if !model.lets.is_empty() {
         doc.h(3, "Design quantities");
         let with_sources = model.lets.iter().any(|l| !l.sources.is_empty());
-        // each let's value as shown, found by name once
-        let shown = |l: &crate::model::LetValue| {
-            if l.value.dim == Dimension::LENGTH {
-                f.length(l.value.value)
-            } else {
-                f.d.quantity(l.value)
-            }
-        };
-        let values: std::collections::HashMap<&str, String> = model
-            .lets
-            .iter()
-            .map(|l| (l.name.as_str(), shown(l)))
-            .collect();
         let rows: Vec<Vec<String>> = model
             .lets
             .iter()
@@ -525,6 +525,42 @@ fn inputs(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
         &rows,
         &[1, 2, 3],
     );
+    // values derived from other names, substituted once
+    let mut any = false;
+    for m in &model.materials {
+        for (key, e) in &m.derived {
+            let with = super::substitute::substituted(e, source, &|n| values.get(n).cloned());
+            let value = match *key {
+                "E" => f.stress(m.e.value),
+                "alpha" => m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
+                "creep" => m.creep.map_or("—".into(), |c| f.n(c)),
+                _ => [
+                    ("yield", m.yield_strength),
+                    ("yield_compression", m.yield_compression),
+                    ("allowable", m.allowable),
+                    ("allowable_tension", m.allowable_tension),
+                    ("allowable_compression", m.allowable_compression),
+                ]
+                .iter()
+                .find(|(k, _)| k == key)
+                .and_then(|(_, v)| *v)
+                .map_or("—".into(), |v| f.stress(v.value)),
+            };
+            if !any {
+                doc.p("Material values derived from other quantities, as written and with their values substituted:");
+                any = true;
+            }
+            doc.eq(&format!(
+                "{key}({}): {} = {} = {value}",
+                text(&m.name),
+                code(source.slice(e.span).trim()),
+                code(&with)
+            ));
+        }
+    }
+    if any {
+        doc.end_list();
+    }
 
     doc.h(3, "Nodes and supports");
     let rows: Vec<Vec<String>> = model
@@ -1444,6 +1480,9 @@ fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                     })
                     .collect();
                 doc.p("Part forces at the plastic limit, and the residual forces left after unloading elastically from it:");
+                if c.events.iter().any(|e| e.released) {
+                    doc.p("The unloading is taken with every part engaged: a part that let go on the way up is assumed to take load again as the assembly unloads.");
+                }
                 doc.table(
                     &["Part", "At the limit", "Residual after unloading"],
                     &rows,
