@@ -140,19 +140,14 @@ fn main() {
             let mib = text.len() as f64 / (1024.0 * 1024.0);
             let src = Source::new("bench.tandem", text);
             let t0 = Instant::now();
-            // As `tandem::check` reads a file: in outline, each node and part
-            // parsed as it is built.
-            let Ok(file) = tandem::syntax::parse_outline(&src.text) else {
+            // As `tandem::check` reads a file: parsed, then built.
+            let Ok(file) = tandem::syntax::parse(&src.text) else {
                 eprintln!("generated file does not parse");
                 return;
             };
             let tp = Instant::now();
             let rss_parsed = peak_rss_mib();
-            let model = match tandem::model::build_outline(
-                &file,
-                &src.text,
-                tandem::model::Limits::default(),
-            ) {
+            let model = match tandem::model::build(&file, tandem::model::Limits::default()) {
                 Ok(m) => m,
                 Err(e) => {
                     let e: Vec<tandem::Error> = e.into_iter().map(Into::into).collect();

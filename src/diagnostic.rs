@@ -46,13 +46,8 @@ impl Error {
 }
 
 impl From<ModelError> for Error {
-    /// A syntax error found while building (in a deferred statement) is a
-    /// syntax error like any other.
     fn from(e: ModelError) -> Self {
-        match e {
-            ModelError::Syntax(s) => Error::Syntax(*s),
-            e => Error::Model(e),
-        }
+        Error::Model(e)
     }
 }
 

@@ -100,31 +100,13 @@ pub fn text_of(name: &str, mut bytes: Vec<u8>) -> Result<String, String> {
 
 /// Parse and check a calc file: the typed model, or every error found.
 ///
-/// The file is read in outline ([`syntax::parse_outline`]): each `node` and
-/// `part` is parsed as its turn comes to be built, so that a large file's
-/// whole syntax tree never exists at once. The model and the errors are
-/// those of [`syntax::parse`] followed by [`model::build`].
-///
 /// # Errors
 /// Syntax errors, or all model errors in the file.
 pub fn check(source: &Source) -> Result<Model, Vec<Error>> {
-    let text = &source.text;
-    let limits = model::Limits::default();
-    let model = match syntax::parse_outline(text) {
-        Ok(file) => {
-            let m = model::build_outline(&file, text, limits);
-            release(file);
-            m
-        }
-        // A full parse finds the syntax errors in the deferred statements too.
-        Err(_) => {
-            let file = syntax::parse(text)
-                .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
-            let m = model::build(&file, limits);
-            release(file);
-            m
-        }
-    };
+    let file = syntax::parse(&source.text)
+        .map_err(|es| es.into_iter().map(Error::from).collect::<Vec<_>>())?;
+    let model = model::build(&file, model::Limits::default());
+    release(file);
     model.map_err(|es| es.into_iter().map(Error::from).collect())
 }
 

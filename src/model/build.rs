@@ -24,9 +24,7 @@ use super::{
     Temperature, Tie, Title, UnitChoice,
 };
 use crate::source::Span;
-use crate::syntax::ast::{
-    self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, StubKind, Value,
-};
+use crate::syntax::ast::{self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, Value};
 use crate::units::{Dimension, Quantity};
 
 /// Size limits, so that hostile input gets a diagnostic, not exhaustion.
@@ -351,61 +349,7 @@ impl Scope for CheckScope<'_, '_> {
 /// # Errors
 /// Every problem found, in file order.
 pub fn build(file: &ast::File, limits: Limits) -> Result<Model, Vec<ModelError>> {
-    Builder::new(limits, "").run(file).map_err(syntax_first)
-}
-
-/// Build the model of a file read by [`crate::syntax::parse_outline`]
-/// from `text`: each deferred `node` and `part` is parsed when it is built
-/// and its syntax tree dropped at once. The result is [`build`]'s on the
-/// fully parsed file; when a deferred statement has a syntax error, the
-/// syntax errors alone are returned (as [`crate::syntax::parse`] would).
-///
-/// # Errors
-/// Every problem found, in file order.
-pub fn build_outline(
-    file: &ast::File,
-    text: &str,
-    limits: Limits,
-) -> Result<Model, Vec<ModelError>> {
-    Builder::new(limits, text).run(file).map_err(|errors| {
-        // An error can end the build before every deferred statement was
-        // read (a file without nodes, a first node that does not parse);
-        // every syntax error among them still comes first and alone, as
-        // after a full parse. So, on failure, all of them are read.
-        let syntax: Vec<ModelError> = file
-            .decls
-            .iter()
-            .filter_map(|d| match d {
-                Decl::Deferred(stub) => crate::syntax::expand(text, stub).err(),
-                _ => None,
-            })
-            .map(|e| ModelError::Syntax(Box::new(e)))
-            .collect();
-        if syntax.is_empty() {
-            errors
-        } else {
-            syntax_first(syntax)
-        }
-    })
-}
-
-/// When a deferred statement had a syntax error, only the syntax errors (in
-/// file order, at most as many as a parse reports): the rest of the model
-/// was built from an incomplete file.
-fn syntax_first(errors: Vec<ModelError>) -> Vec<ModelError> {
-    if !errors.iter().any(|e| matches!(e, ModelError::Syntax(_))) {
-        return errors;
-    }
-    let mut syntax: Vec<ModelError> = errors
-        .into_iter()
-        .filter(|e| matches!(e, ModelError::Syntax(_)))
-        .collect();
-    syntax.sort_by_key(|e| match e {
-        ModelError::Syntax(s) => s.span().start(),
-        _ => 0,
-    });
-    syntax.truncate(crate::syntax::MAX_SYNTAX_ERRORS);
-    syntax
+    Builder::new(limits).run(file)
 }
 
 /// The shard of the name table a hash belongs to: bits that neither the
@@ -492,13 +436,6 @@ fn declared_name(d: &Decl) -> Option<(&Ident, NameKind)> {
         Decl::Part(nb) => (&nb.name, NameKind::Part),
         Decl::Rigid(nb) => (&nb.name, NameKind::Rigid),
         Decl::Node(n) => (&n.name, NameKind::Node),
-        Decl::Deferred(s) => (
-            &s.name,
-            match s.kind {
-                StubKind::Node => NameKind::Node,
-                StubKind::Part => NameKind::Part,
-            },
-        ),
         Decl::Case(c) => (&c.name, NameKind::Case),
         Decl::Combine(c) => (&c.name, NameKind::Combination),
         Decl::Group(g) => (&g.name, NameKind::Group),
@@ -574,39 +511,6 @@ struct Built<'m> {
 /// The materials that built, and their places (see [`places`]).
 type Materials<'m> = (&'m [Material], &'m [Option<usize>]);
 
-/// A node or part to build: parsed, or deferred (parsed when it is built).
-enum Src<'a, T> {
-    Parsed(&'a T),
-    Deferred(&'a ast::Stub),
-}
-
-impl<T> Clone for Src<'_, T> {
-    fn clone(&self) -> Self {
-        *self
-    }
-}
-
-impl<T> Copy for Src<'_, T> {}
-
-type NodeSrc<'a> = Src<'a, ast::Node>;
-type PartSrc<'a> = Src<'a, ast::NamedBlock>;
-
-/// The declarations of one kind in file order, parsed (`parsed`) or
-/// deferred (stubs of `kind`).
-fn sources<'a, T>(
-    file: &'a ast::File,
-    kind: StubKind,
-    parsed: impl Fn(&'a Decl) -> Option<&'a T>,
-) -> Vec<Src<'a, T>> {
-    file.decls
-        .iter()
-        .filter_map(|d| match d {
-            Decl::Deferred(s) if s.kind == kind => Some(Src::Deferred(s)),
-            d => parsed(d).map(Src::Parsed),
-        })
-        .collect()
-}
-
 /// Build with some `let`s given fixed values instead of their expressions
 /// (a parameter sweep re-evaluates a parsed file this way, without parsing
 /// it again).
@@ -618,18 +522,14 @@ pub fn build_with(
     limits: Limits,
     overrides: &[(String, Quantity)],
 ) -> Result<Model, Vec<ModelError>> {
-    let mut b = Builder::new(limits, "");
+    let mut b = Builder::new(limits);
     b.overrides = overrides.to_vec();
     b.run(file)
 }
 
-struct Builder<'t> {
+struct Builder {
     errors: Vec<ModelError>,
     limits: Limits,
-    /// The text deferred statements are parsed from (empty when none).
-    text: &'t str,
-    /// How often each unit name is written in the deferred statements.
-    units_used: BTreeMap<String, usize>,
     /// Materials whose `alpha` is written but did not evaluate.
     alpha_failed: HashSet<String>,
     overrides: Vec<(String, Quantity)>,
@@ -939,23 +839,16 @@ fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
             out.push(&c.lhs);
             out.push(&c.rhs);
         }
-        // counted when they are built (see `Builder::expand`)
-        Decl::Fix(_)
-        | Decl::Tie(_)
-        | Decl::Combine(_)
-        | Decl::Units(_)
-        | Decl::Deferred(_)
-        | Decl::Group(_) => {}
+        // no expressions of their own
+        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) | Decl::Group(_) => {}
     }
 }
 
-impl<'t> Builder<'t> {
-    fn new(limits: Limits, text: &'t str) -> Self {
+impl Builder {
+    fn new(limits: Limits) -> Self {
         Self {
             errors: Vec::new(),
             limits,
-            text,
-            units_used: BTreeMap::new(),
             alpha_failed: HashSet::new(),
             overrides: Vec::new(),
             let_sources: HashMap::new(),
@@ -1212,17 +1105,21 @@ impl<'t> Builder<'t> {
             materials.iter().map(|m| m.name.as_str()),
         );
         // Nodes: the first fixes the kind of model, which the rest must share.
-        let node_decls = sources(file, StubKind::Node, |d| match d {
-            Decl::Node(n) => Some(&**n),
-            _ => None,
-        });
+        let node_decls: Vec<&ast::Node> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Node(n) => Some(&**n),
+                _ => None,
+            })
+            .collect();
         let mut nodes: Vec<Node> = Vec::with_capacity(node_decls.len());
         if let Some(&first) = node_decls.first() {
-            nodes.push(self.node_src(first, &scope, &mut kind));
+            nodes.push(self.node(first, &scope, &mut kind));
             let known = kind;
-            nodes.extend(self.in_runs(&node_decls[1..], |b, &src| {
+            nodes.extend(self.in_runs(&node_decls[1..], |b, &n| {
                 let mut k = known;
-                Some(b.node_src(src, &scope, &mut k))
+                Some(b.node(n, &scope, &mut k))
             }));
         }
         let Some((kind, _)) = kind else {
@@ -1260,10 +1157,14 @@ impl<'t> Builder<'t> {
         }
 
         // Parts.
-        let part_decls = sources(file, StubKind::Part, |d| match d {
-            Decl::Part(nb) => Some(&**nb),
-            _ => None,
-        });
+        let part_decls: Vec<&ast::NamedBlock> = file
+            .decls
+            .iter()
+            .filter_map(|d| match d {
+                Decl::Part(nb) => Some(&**nb),
+                _ => None,
+            })
+            .collect();
         let parts = self.parts(
             &part_decls,
             &scope,
@@ -1608,9 +1509,6 @@ impl<'t> Builder<'t> {
         for e in exprs {
             walk_units(e, &mut counts);
         }
-        for (name, n) in std::mem::take(&mut self.units_used) {
-            *counts.entry(name).or_default() += n;
-        }
 
         if !self.errors.is_empty() {
             return Err(self.errors);
@@ -1669,48 +1567,6 @@ impl<'t> Builder<'t> {
             y: y.unwrap_or(failed),
             fixed: [false; 2],
             span: n.span,
-        }
-    }
-
-    /// A parsed node, or a deferred one parsed here.
-    fn node_src(
-        &mut self,
-        src: NodeSrc<'_>,
-        scope: &dyn Scope,
-        kind: &mut Option<(Kind, Span)>,
-    ) -> Node {
-        match src {
-            Src::Parsed(n) => self.node(n, scope, kind),
-            Src::Deferred(stub) => match self.expand(stub) {
-                Some(Decl::Node(n)) => self.node(&n, scope, kind),
-                // keeps the numbering of nodes; the syntax error is the result
-                _ => Node {
-                    name: stub.name.name.clone(),
-                    x: Length::new::<meter>(f64::NAN),
-                    y: Length::new::<meter>(f64::NAN),
-                    fixed: [false; 2],
-                    span: stub.span,
-                },
-            },
-        }
-    }
-
-    /// A deferred statement parsed in full, its units counted; `None`
-    /// (and a syntax error) when it does not parse.
-    fn expand(&mut self, stub: &ast::Stub) -> Option<Decl> {
-        match crate::syntax::expand(self.text, stub) {
-            Ok(d) => {
-                let mut exprs = Vec::new();
-                decl_exprs(&d, &mut exprs);
-                for e in exprs {
-                    walk_units(e, &mut self.units_used);
-                }
-                Some(d)
-            }
-            Err(e) => {
-                self.errors.push(ModelError::Syntax(Box::new(e)));
-                None
-            }
         }
     }
 
@@ -1913,15 +1769,15 @@ impl<'t> Builder<'t> {
     /// Every part: a part needs only the names, materials and nodes.
     fn parts(
         &mut self,
-        decls: &[PartSrc<'_>],
+        decls: &[&ast::NamedBlock],
         scope: &LetScope<'_, '_>,
         names: &Names<'_>,
         materials: Materials<'_>,
         nodes: &[Node],
         kind: Kind,
     ) -> Vec<Part> {
-        self.in_runs(decls, |b, &src| {
-            b.part_src(src, scope, names, materials, nodes, kind)
+        self.in_runs(decls, |b, &nb| {
+            b.part(nb, scope, names, materials, nodes, kind)
         })
     }
 
@@ -1931,7 +1787,7 @@ impl<'t> Builder<'t> {
     fn in_runs<I: Sync, T: Send>(
         &mut self,
         items: &[I],
-        work: impl Fn(&mut Builder<'t>, &I) -> Option<T> + Sync,
+        work: impl Fn(&mut Builder, &I) -> Option<T> + Sync,
     ) -> Vec<T> {
         let workers = if items.len() < 20_000 {
             1
@@ -1942,15 +1798,15 @@ impl<'t> Builder<'t> {
             return items.iter().filter_map(|i| work(self, i)).collect();
         }
         let per = items.len().div_ceil(workers);
-        let (limits, text, work) = (self.limits, self.text, &work);
+        let (limits, work) = (self.limits, &work);
         let total = items.len();
-        let runs: Vec<(Vec<T>, Builder<'t>)> = std::thread::scope(|s| {
+        let runs: Vec<(Vec<T>, Builder)> = std::thread::scope(|s| {
             let handles: Vec<_> = items
                 .chunks(per)
                 .enumerate()
                 .map(|(k, run)| {
                     s.spawn(move || {
-                        let mut b = Builder::new(limits, text);
+                        let mut b = Builder::new(limits);
                         // the first run's list has room for all: the others
                         // are moved onto it without growing it
                         let mut out = Vec::with_capacity(if k == 0 { total } else { run.len() });
@@ -1972,30 +1828,8 @@ impl<'t> Builder<'t> {
                 out.extend(o);
             }
             self.errors.extend(b.errors);
-            for (name, n) in b.units_used {
-                *self.units_used.entry(name).or_default() += n;
-            }
         }
         out
-    }
-
-    /// A parsed part, or a deferred one parsed here (its tree dropped after).
-    fn part_src(
-        &mut self,
-        src: PartSrc<'_>,
-        scope: &dyn Scope,
-        names: &Names<'_>,
-        materials: Materials<'_>,
-        nodes: &[Node],
-        kind: Kind,
-    ) -> Option<Part> {
-        match src {
-            Src::Parsed(nb) => self.part(nb, scope, names, materials, nodes, kind),
-            Src::Deferred(stub) => match self.expand(stub)? {
-                Decl::Part(nb) => self.part(&nb, scope, names, materials, nodes, kind),
-                _ => None,
-            },
-        }
     }
 
     #[allow(clippy::too_many_lines)]
@@ -2676,10 +2510,6 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
     file.decls.iter().any(|d| {
         if matches!(d, Decl::Let(_) | Decl::Check(_) | Decl::Calc(_)) {
             return false;
-        }
-        if matches!(d, Decl::Deferred(_)) {
-            // its expressions are unknown until it is parsed: assume so
-            return true;
         }
         let mut exprs = Vec::new();
         decl_exprs(d, &mut exprs);

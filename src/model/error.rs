@@ -8,12 +8,6 @@ use crate::source::Span;
 /// A problem with the meaning of a calc file: names, units, structure.
 #[derive(Debug, Error, Diagnostic, Clone, PartialEq)]
 pub enum ModelError {
-    /// A syntax error in a statement whose body is parsed as the model is
-    /// built (see [`crate::syntax::parse_outline`]).
-    #[error(transparent)]
-    #[diagnostic(transparent)]
-    Syntax(Box<crate::syntax::SyntaxError>),
-
     #[error("{what} must be {expected}, found {found}")]
     #[diagnostic(code(tandem::units::mismatch))]
     WrongDimension {

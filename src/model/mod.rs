@@ -7,7 +7,7 @@ mod error;
 pub mod eval;
 pub mod range;
 
-pub use build::{build, build_outline, build_with, solver_depends_on, Limits};
+pub use build::{build, build_with, solver_depends_on, Limits};
 pub use error::ModelError;
 
 use uom::si::f64::{

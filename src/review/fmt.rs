@@ -222,19 +222,6 @@ impl Ctx<'_> {
             body: 0..0,
         };
         match d {
-            Decl::Deferred(stub) => match crate::syntax::expand(self.text, stub) {
-                Ok(d) => self.item(&d),
-                // not reached for a file that parsed: kept as written
-                Err(_) => one(
-                    "stmt",
-                    self.single(
-                        self.slice(stub.span).trim().to_string(),
-                        String::new(),
-                        stub.span.start(),
-                        stub.span.end(),
-                    ),
-                ),
-            },
             Decl::Calc(b) => self.block("calc", b.span.start(), b),
             Decl::Material(nb) => self.block(
                 &format!("material {}", nb.name.name),

@@ -36,27 +36,6 @@ pub enum Decl {
     Units(Units),
     /// A case statement standing at top level (the file's single case).
     Stmt(Box<Stmt>),
-    /// A `node` or `part` whose body is read later: only the outline parse
-    /// ([`crate::syntax::parse_outline`]) makes these, and the model builder
-    /// parses each body when it builds that node or part, so that the
-    /// syntax tree of a large file never exists all at once.
-    Deferred(Stub),
-}
-
-/// The head of a deferred `node` or `part`: its kind, its name and the
-/// span of the whole statement (whose text is parsed when it is built).
-#[derive(Clone, Debug, PartialEq)]
-pub struct Stub {
-    pub kind: StubKind,
-    pub name: Ident,
-    pub span: Span,
-}
-
-/// What a [`Stub`] declares.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum StubKind {
-    Node,
-    Part,
 }
 
 /// `let NAME = EXPR`

@@ -6,7 +6,7 @@ use pest::Parser;
 use super::ast::{
     AddOp, Arg, Axis, Block, Call, Case, Check, Combine, ComboTerm, Compare, Coord, Decl, Each,
     Entry, Expr, ExprKind, File, Group, Ident, Let, MulOp, NamedBlock, Node, State, Stmt, Str,
-    Stub, Support, Tie, Under, UnitExpr, UnitFactor, Units, Value,
+    Support, Tie, Under, UnitExpr, UnitFactor, Units, Value,
 };
 use super::parser::{CalcParser, Rule};
 use super::{SyntaxError, MAX_NESTING};
@@ -22,43 +22,10 @@ type Result<T> = std::result::Result<T, SyntaxError>;
 /// too-deep nesting from a pre-scan, else each statement's first error,
 /// worded for an engineer.
 pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
-    parse_with(text, false)
+    parse_with(text)
 }
 
-/// [`parse`], except that each `node` and `part` statement is only read up
-/// to its name and kept as a [`Decl::Deferred`] stub: the model builder
-/// parses its body when it builds it, and drops that tree at once. This is
-/// how `tandem` reads a file to build its model, so that the syntax tree of
-/// a million parts never exists at once. The errors are [`parse`]'s, except
-/// those inside deferred statements, which come from
-/// [`crate::model::build_outline`] (in file order with these).
-///
-/// # Errors
-/// As [`parse`], for every statement that is not deferred.
-pub fn parse_outline(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
-    parse_with(text, true)
-}
-
-/// The declaration of a deferred statement, parsed in full.
-///
-/// # Errors
-/// The statement's syntax error, as [`parse`] would report it.
-pub fn expand(text: &str, stub: &Stub) -> Result<Decl> {
-    let (start, end) = (stub.span.start(), stub.span.end());
-    if text.get(start..end).is_none() {
-        // not the text the stub was read from
-        return Err(eof_error(text));
-    }
-    // the caller builds from the tree and drops it: no trimming
-    match statement(text, start, end, false) {
-        Ok(Some(d)) => Ok(d),
-        // a stub is made only from a statement that has a head
-        Ok(None) => Err(eof_error(&text[..end])),
-        Err(e) => Err(e),
-    }
-}
-
-fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<SyntaxError>> {
+fn parse_with(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
     let (pre, chunks) = prescan(text);
     if !pre.is_empty() {
         return Err(pre);
@@ -71,7 +38,7 @@ fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<Syntax
     };
     let per = chunks.len().div_ceil(workers).max(1);
     let parts: Vec<(Vec<Decl>, Vec<SyntaxError>)> = if workers == 1 {
-        vec![parse_chunks(text, &chunks, outline, chunks.len())]
+        vec![parse_chunks(text, &chunks, chunks.len())]
     } else {
         std::thread::scope(|scope| {
             let total = chunks.len();
@@ -82,7 +49,7 @@ fn parse_with(text: &str, outline: bool) -> std::result::Result<File, Vec<Syntax
                     // the first list has room for all: the others are moved
                     // onto it without growing it
                     let room = if k == 0 { total } else { group.len() };
-                    scope.spawn(move || parse_chunks(text, group, outline, room))
+                    scope.spawn(move || parse_chunks(text, group, room))
                 })
                 .collect();
             handles
@@ -123,19 +90,12 @@ thread_local! {
 fn parse_chunks(
     text: &str,
     chunks: &[(usize, usize)],
-    outline: bool,
     room: usize,
 ) -> (Vec<Decl>, Vec<SyntaxError>) {
     let mut decls = Vec::with_capacity(room);
     let mut errors = Vec::new();
     for &(start, end) in chunks {
-        if outline {
-            if let Some(stub) = super::fast::head(&text[start..end], start) {
-                decls.push(Decl::Deferred(stub));
-                continue;
-            }
-        }
-        match statement(text, start, end, true) {
+        match statement(text, start, end) {
             Ok(Some(d)) => decls.push(d),
             Ok(None) => {}
             Err(e) => errors.push(e),
@@ -147,29 +107,9 @@ fn parse_chunks(
     (decls, errors)
 }
 
-/// One statement (`text[start..end]`): the hand-written parser, else pest,
-/// which words the error. `Ok(None)` for a statement that declares nothing.
-/// `trim` as for [`super::fast::statement`]: whether the tree is kept.
-fn statement(text: &str, start: usize, end: usize, trim: bool) -> Result<Option<Decl>> {
-    let fast = super::fast::statement(&text[start..end], start, trim);
-    if cfg!(debug_assertions) {
-        // Debug builds (the tests) hold the hand-written parser to the
-        // grammar on every statement they parse.
-        let pest = pest_statement(text, start, end);
-        debug_assert!(
-            agree(fast.as_ref(), &pest),
-            "parsers disagree on {:?}:\n{fast:#?}\n{pest:#?}",
-            &text[start..end]
-        );
-    }
-    match fast {
-        Some(d) => Ok(Some(d)),
-        None => pest_statement(text, start, end),
-    }
-}
-
-/// One statement through pest and the lowering.
-fn pest_statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
+/// One statement (`text[start..end]`) through pest and the lowering;
+/// `Ok(None)` for a statement that declares nothing.
+fn statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
     BASE.with(|b| b.set(start));
     let out = match CalcParser::parse(Rule::statement, &text[start..end]) {
         Ok(mut pairs) => pairs.next().and_then(|stmt| {
@@ -181,41 +121,6 @@ fn pest_statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> 
     };
     BASE.with(|b| b.set(0));
     out.transpose()
-}
-
-/// Whether the hand-written parser's result is pest's: the same tree, or
-/// both refusing.
-fn agree(fast: Option<&Decl>, pest: &Result<Option<Decl>>) -> bool {
-    match (fast, pest) {
-        (Some(f), Ok(Some(p))) => f == p,
-        (None, Err(_)) => true,
-        _ => false,
-    }
-}
-
-/// For the tests: parse each statement of `text` with the hand-written
-/// parser and with pest, and describe the first statement where they
-/// differ. The number of statements compared when they all agree.
-///
-/// # Errors
-/// The statement's text and both results when the parsers disagree.
-#[doc(hidden)]
-pub fn compare_parsers(text: &str) -> std::result::Result<usize, String> {
-    let (pre, chunks) = prescan(text);
-    if !pre.is_empty() {
-        return Ok(0);
-    }
-    for &(start, end) in &chunks {
-        let fast = super::fast::statement(&text[start..end], start, true);
-        let pest = pest_statement(text, start, end);
-        if !agree(fast.as_ref(), &pest) {
-            return Err(format!(
-                "statement {:?}\nhand-written: {fast:#?}\npest: {pest:#?}",
-                &text[start..end]
-            ));
-        }
-    }
-    Ok(chunks.len())
 }
 
 fn eof_error(text: &str) -> SyntaxError {

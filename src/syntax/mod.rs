@@ -3,12 +3,11 @@
 
 pub mod ast;
 mod error;
-mod fast;
 mod lower;
 mod parser;
 
 pub use error::SyntaxError;
-pub use lower::{compare_parsers, expand, parse, parse_outline, MAX_SYNTAX_ERRORS};
+pub use lower::{parse, MAX_SYNTAX_ERRORS};
 
 /// Deepest nesting of parentheses an expression may have.
 pub const MAX_NESTING: usize = 64;

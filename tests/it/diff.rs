@@ -2,7 +2,7 @@
 //! revisions and JSON.
 //!
 //! Each `tests/diffs/NAME.old.tandem` / `NAME.new.tandem` pair gives
-//! `tests/diffs/NAME.md`; `UPDATE_GOLDEN=1 cargo test --test diff` rewrites them.
+//! `tests/diffs/NAME.md`; `UPDATE_GOLDEN=1 cargo test --test it diff::` rewrites them.
 
 use std::path::PathBuf;
 use std::process::Command;

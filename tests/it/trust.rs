@@ -2,7 +2,7 @@
 //! result is finite and in equilibrium, and a strut past its Euler load
 //! fails. Each case below passed with exit 0 before it was guarded.
 
-mod common;
+use crate::common;
 
 use std::io::Write as _;
 use std::process::Command;

@@ -2,7 +2,7 @@
 //! Capacity, creep and shrinkage, buckling and published moduli against
 //! closed forms and published values.
 
-mod common;
+use crate::common;
 
 use common::{analyse, rel};
 

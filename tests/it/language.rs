@@ -1,6 +1,6 @@
 //! The language evaluated: precedence, published formulas, section helpers.
 
-mod common;
+use crate::common;
 
 use common::{rel, value};
 use tandem::units::{lookup, Dimension};

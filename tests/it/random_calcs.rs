@@ -12,7 +12,7 @@
 
 use std::fmt::Write as _;
 
-mod common;
+use crate::common;
 
 use tandem::source::Source;
 

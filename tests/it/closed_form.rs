@@ -4,7 +4,7 @@
 //! indeterminate axial members, thermal effects, misfits), each in an
 //! invented scenario, to 1e-9 relative.
 
-mod common;
+use crate::common;
 
 use common::{force, rel, solve, solve_err};
 

@@ -1,6 +1,6 @@
 //! Golden diagnostics: each `tests/diagnostics/NAME.tandem` is a bad input and
 //! `NAME.stderr` its rendered diagnostics (no colour, 80 columns).
-//! Regenerate with `UPDATE_GOLDEN=1 cargo test --test diagnostics`.
+//! Regenerate with `UPDATE_GOLDEN=1 cargo test --test it diagnostics::`.
 
 use std::path::Path;
 

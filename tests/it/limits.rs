@@ -1,6 +1,6 @@
 //! Every limit gives a diagnostic, never a crash or an exhausted machine.
 
-mod common;
+use crate::common;
 
 use tandem::model::{build, Limits, ModelError};
 use tandem::source::Source;

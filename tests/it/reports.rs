@@ -10,7 +10,7 @@
 //!
 //! Goldens: every `examples/NAME.tandem` and `tests/reports/NAME.tandem`
 //! writes `tests/reports/NAME.md`. Regenerate with
-//! `UPDATE_GOLDEN=1 cargo test --test reports` and review the diff.
+//! `UPDATE_GOLDEN=1 cargo test --test it reports::` and review the diff.
 
 use std::path::{Path, PathBuf};
 

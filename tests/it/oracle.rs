@@ -7,7 +7,7 @@
 //! solve (nalgebra) as a general-purpose reference; plus equilibrium,
 //! superposition and reciprocity (Maxwell–Betti) on the same models.
 
-mod common;
+use crate::common;
 
 use nalgebra::{DMatrix, DVector};
 

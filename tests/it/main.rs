@@ -1,0 +1,21 @@
+//! The integration tests, one crate (one link) with a module per subject.
+
+mod capacity;
+mod checks;
+mod cli;
+mod closed_form;
+mod common;
+mod diagnostics;
+mod diff;
+mod fmt;
+mod language;
+mod large;
+mod limits;
+mod mutation;
+mod oracle;
+mod output;
+mod random_calcs;
+mod reports;
+mod sweep;
+mod trust;
+mod units;
