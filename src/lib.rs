@@ -12,6 +12,7 @@ pub mod checks;
 pub mod diagnostic;
 pub mod model;
 pub mod output;
+pub mod parallel;
 pub mod report;
 pub mod review;
 pub mod solve;

@@ -289,28 +289,8 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
         }
     }
     // Render in parallel, one worker per core.
-    let workers = std::thread::available_parallelism()
-        .map_or(1, std::num::NonZero::get)
-        .min(files.len())
-        .max(1);
-    let results: Vec<Result<(String, bool, bool), ExitCode>> = std::thread::scope(|scope| {
-        let chunk = files.len().div_ceil(workers);
-        let handles: Vec<_> = files
-            .chunks(chunk)
-            .map(|group| {
-                scope.spawn(move || {
-                    group
-                        .iter()
-                        .map(|f| render_report(f, html, show))
-                        .collect::<Vec<_>>()
-                })
-            })
-            .collect();
-        handles
-            .into_iter()
-            .flat_map(|h| h.join().unwrap_or_default())
-            .collect()
-    });
+    let results: Vec<Result<(String, bool, bool), ExitCode>> =
+        tandem::parallel::map(files, |f| render_report(f, html, show));
     let mut code = ExitCode::SUCCESS;
     let mut failed_check = false;
     for (result, target) in results.into_iter().zip(&targets) {

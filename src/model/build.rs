@@ -873,26 +873,12 @@ impl Builder {
                 counters[kind as usize] += 1;
             }
         }
-        let workers = if file.decls.len() < 20_000 {
-            1
-        } else {
-            std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
-        };
+        let workers = crate::parallel::runs_for(file.decls.len(), 20_000);
         let hasher = foldhash::fast::FixedState::default();
         let limits = self.limits;
-        let fill = |which: usize| fill_shard(file, &hasher, which, workers, limits);
-        let filled: Vec<Shard> = if workers == 1 {
-            vec![fill(0)]
-        } else {
-            std::thread::scope(|s| {
-                let fill = &fill;
-                let handles: Vec<_> = (0..workers).map(|w| s.spawn(move || fill(w))).collect();
-                handles
-                    .into_iter()
-                    .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
-                    .collect()
-            })
-        };
+        let filled: Vec<Shard> = crate::parallel::each(workers, |which| {
+            fill_shard(file, &hasher, which, workers, limits)
+        });
         let mut shards = Vec::with_capacity(workers);
         let mut errors = Vec::new();
         for (table, e) in filled {
@@ -1789,36 +1775,18 @@ impl Builder {
         items: &[I],
         work: impl Fn(&mut Builder, &I) -> Option<T> + Sync,
     ) -> Vec<T> {
-        let workers = if items.len() < 20_000 {
-            1
-        } else {
-            std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
-        };
-        if workers == 1 {
+        let runs = crate::parallel::runs_for(items.len(), 20_000);
+        if runs == 1 {
             return items.iter().filter_map(|i| work(self, i)).collect();
         }
-        let per = items.len().div_ceil(workers);
-        let (limits, work) = (self.limits, &work);
-        let total = items.len();
-        let runs: Vec<(Vec<T>, Builder)> = std::thread::scope(|s| {
-            let handles: Vec<_> = items
-                .chunks(per)
-                .enumerate()
-                .map(|(k, run)| {
-                    s.spawn(move || {
-                        let mut b = Builder::new(limits);
-                        // the first run's list has room for all: the others
-                        // are moved onto it without growing it
-                        let mut out = Vec::with_capacity(if k == 0 { total } else { run.len() });
-                        out.extend(run.iter().filter_map(|i| work(&mut b, i)));
-                        (out, b)
-                    })
-                })
-                .collect();
-            handles
-                .into_iter()
-                .map(|h| h.join().unwrap_or_else(|e| std::panic::resume_unwind(e)))
-                .collect()
+        let (limits, total) = (self.limits, items.len());
+        let runs: Vec<(Vec<T>, Builder)> = crate::parallel::in_runs(items, runs, |k, run| {
+            let mut b = Builder::new(limits);
+            // the first run's list has room for all: the others are moved
+            // onto it without growing it
+            let mut out = Vec::with_capacity(if k == 0 { total } else { run.len() });
+            out.extend(run.iter().filter_map(|i| work(&mut b, i)));
+            (out, b)
         });
         let mut out: Vec<T> = Vec::new();
         for (k, (o, b)) in runs.into_iter().enumerate() {

@@ -84,6 +84,9 @@ struct Line {
     /// Where this line starts and which source line it ends on (for comments).
     anchor: usize,
     ends_on: usize,
+    /// The entries of a block written on one line (`right` is then empty):
+    /// in a run of such blocks they are aligned as the columns of a table.
+    cells: Vec<String>,
 }
 
 /// A declaration as output lines: one line, or a block of lines.
@@ -94,6 +97,12 @@ struct Item {
     lines: Vec<Line>,
     /// Lines of a block body (aligned together).
     body: std::ops::Range<usize>,
+    /// Whether a blank line separates it from the declaration before it in
+    /// the source (a run of one-line declarations breaks there).
+    blank_before: bool,
+    /// A block written on one line: its kind and that line. It stays so
+    /// when the block before or after it is one too (a table of blocks).
+    row: Option<(&'static str, Line)>,
 }
 
 fn fold(s: &str) -> String {
@@ -169,7 +178,8 @@ impl Ctx<'_> {
         self.single(left, right, s.span().start(), end)
     }
 
-    fn block(&self, header: &str, start: usize, block: &ast::Block) -> Item {
+    fn block(&self, run: &'static str, header: &str, start: usize, block: &ast::Block) -> Item {
+        let close = block.span.end().saturating_sub(1);
         let mut lines = vec![Line {
             left: format!("{header} {{"),
             anchor: start,
@@ -177,16 +187,7 @@ impl Ctx<'_> {
             ..Line::default()
         }];
         for e in &block.entries {
-            let (value, end) = match &e.value {
-                Value::Str(s) => (self.slice(s.span), s.span.end()),
-                Value::Exprs(list) => (
-                    list.iter()
-                        .map(|x| self.slice(x.span))
-                        .collect::<Vec<_>>()
-                        .join(", "),
-                    list.last().map_or(e.key.span.end(), |x| x.span.end()),
-                ),
-            };
+            let (value, end) = self.entry_value(e);
             let mut l = self.single(
                 e.key.name.to_string(),
                 format!("= {value}"),
@@ -196,7 +197,31 @@ impl Ctx<'_> {
             l.indent = 2;
             lines.push(l);
         }
-        self.closed(lines, block.span.end().saturating_sub(1))
+        let mut item = self.closed(lines, close);
+        if !block.entries.is_empty() && self.line(start) == self.line(close) {
+            let cells = block
+                .entries
+                .iter()
+                .map(|e| format!("{} = {}", e.key.name, self.entry_value(e).0))
+                .collect();
+            let line = self.single(header.to_string(), String::new(), start, close + 1);
+            item.row = Some((run, Line { cells, ..line }));
+        }
+        item
+    }
+
+    /// A block entry's value as written, and where it ends.
+    fn entry_value(&self, e: &ast::Entry) -> (String, usize) {
+        match &e.value {
+            Value::Str(s) => (self.slice(s.span), s.span.end()),
+            Value::Exprs(list) => (
+                list.iter()
+                    .map(|x| self.slice(x.span))
+                    .collect::<Vec<_>>()
+                    .join(", "),
+                list.last().map_or(e.key.span.end(), |x| x.span.end()),
+            ),
+        }
     }
 
     /// A block item: its header and body lines, closed by `}` at `close`.
@@ -212,6 +237,8 @@ impl Ctx<'_> {
             run: None,
             lines,
             body: 1..n - 1,
+            blank_before: false,
+            row: None,
         }
     }
 
@@ -220,20 +247,25 @@ impl Ctx<'_> {
             run: Some(run),
             lines: vec![line],
             body: 0..0,
+            blank_before: false,
+            row: None,
         };
         match d {
-            Decl::Calc(b) => self.block("calc", b.span.start(), b),
+            Decl::Calc(b) => self.block("calc {}", "calc", b.span.start(), b),
             Decl::Material(nb) => self.block(
+                "material {}",
                 &format!("material {}", nb.name.name),
                 nb.span.start(),
                 &nb.block,
             ),
             Decl::Part(nb) => self.block(
+                "part {}",
                 &format!("part {}", nb.name.name),
                 nb.span.start(),
                 &nb.block,
             ),
             Decl::Rigid(nb) => self.block(
+                "rigid {}",
                 &format!("rigid {}", nb.name.name),
                 nb.span.start(),
                 &nb.block,
@@ -419,8 +451,39 @@ impl Ctx<'_> {
 }
 
 /// Pad `left`s of a group of lines to a common width and align their
-/// trailing comments.
+/// trailing comments; the entries of one-line blocks line up as columns.
 fn align(lines: &mut [Line]) {
+    let columns = lines.iter().map(|l| l.cells.len()).max().unwrap_or(0);
+    if columns > 0 {
+        // every entry but a row's last ends in `;`, padded to its column
+        let widths: Vec<usize> = (0..columns)
+            .map(|k| {
+                lines
+                    .iter()
+                    .filter(|l| k + 1 < l.cells.len())
+                    .map(|l| l.cells[k].chars().count() + 1)
+                    .max()
+                    .unwrap_or(0)
+            })
+            .collect();
+        for l in lines.iter_mut().filter(|l| !l.cells.is_empty()) {
+            let last = l.cells.len() - 1;
+            let mut right = String::from("{ ");
+            for (k, c) in l.cells.iter().enumerate() {
+                if k < last {
+                    let cell = format!("{c};");
+                    let pad = widths[k] - cell.chars().count();
+                    right.push_str(&cell);
+                    right.push_str(&" ".repeat(pad + 1));
+                } else {
+                    right.push_str(c);
+                }
+            }
+            right.push_str(" }");
+            l.right = right;
+            l.cells.clear();
+        }
+    }
     let width = lines
         .iter()
         .filter(|l| !l.right.is_empty())
@@ -447,6 +510,57 @@ fn align(lines: &mut [Line]) {
     }
 }
 
+/// Give each comment to its line: an own-line comment to the first line
+/// that starts after it, a trailing one to the last line that ends on its
+/// source line and starts before it. One pass over the lines and comments
+/// (both in file order), so a long commented file formats in linear time.
+fn attach(items: &mut [Item], comments: Vec<Comment>) -> Vec<String> {
+    let mut flat: Vec<(usize, usize)> = Vec::new();
+    let mut anchors: Vec<usize> = Vec::new();
+    let mut reach: Vec<usize> = Vec::new();
+    let mut by_end: std::collections::HashMap<usize, Vec<usize>> = std::collections::HashMap::new();
+    let mut furthest = 0;
+    for (i, it) in items.iter().enumerate() {
+        for (j, l) in it.lines.iter().enumerate() {
+            by_end.entry(l.ends_on).or_default().push(flat.len());
+            flat.push((i, j));
+            anchors.push(l.anchor);
+            // the furthest anchor so far: the first line starting after a
+            // point is where this first passes it
+            furthest = furthest.max(l.anchor);
+            reach.push(furthest);
+        }
+    }
+    let mut tail = Vec::new();
+    for c in comments {
+        let trailing = if c.trailing {
+            by_end
+                .get(&c.line)
+                .and_then(|v| v.iter().rev().copied().find(|&k| anchors[k] < c.start))
+        } else {
+            None
+        };
+        if let Some(k) = trailing {
+            let (i, j) = flat[k];
+            let l = &mut items[i].lines[j];
+            match &mut l.comment {
+                Some(existing) => {
+                    existing.push(' ');
+                    existing.push_str(&c.text);
+                }
+                None => l.comment = Some(c.text),
+            }
+            continue;
+        }
+        let k = reach.partition_point(|&a| a <= c.start);
+        match flat.get(k) {
+            Some(&(i, j)) => items[i].lines[j].before.push(c.text),
+            None => tail.push(c.text),
+        }
+    }
+    tail
+}
+
 /// Format a calc file.
 ///
 /// # Errors
@@ -459,46 +573,36 @@ pub fn format(source: &Source) -> Result<String, Vec<SyntaxError>> {
     };
     let mut items: Vec<Item> = file.decls.iter().map(|d| ctx.item(d)).collect();
 
-    // Attach comments: own-line ones to the next line that starts after them,
-    // trailing ones to the innermost line ending on their source line.
-    let mut tail: Vec<String> = Vec::new();
-    for c in comments(&source.text, &ctx.starts) {
-        let mut target: Option<(usize, usize)> = None;
-        if c.trailing {
-            for (i, it) in items.iter().enumerate() {
-                for (j, l) in it.lines.iter().enumerate() {
-                    if l.ends_on == c.line && l.anchor < c.start {
-                        target = Some((i, j));
-                    }
-                }
-            }
-        }
-        if target.is_none() {
-            'find: for (i, it) in items.iter().enumerate() {
-                for (j, l) in it.lines.iter().enumerate() {
-                    if l.anchor > c.start {
-                        target = Some((i, j));
-                        break 'find;
-                    }
-                }
-            }
-            match target {
-                Some((i, j)) => items[i].lines[j].before.push(c.text),
-                None => tail.push(c.text),
-            }
-            continue;
-        }
-        if let Some((i, j)) = target {
-            let l = &mut items[i].lines[j];
-            match &mut l.comment {
-                Some(existing) => {
-                    existing.push(' ');
-                    existing.push_str(&c.text);
-                }
-                None => l.comment = Some(c.text),
+    // A blank source line between two declarations is kept where it
+    // separates runs of one-line declarations.
+    for k in 1..items.len() {
+        let after = items[k - 1].lines.last().map_or(0, |l| l.ends_on);
+        let before = ctx.line(items[k].lines[0].anchor);
+        items[k].blank_before = (after + 1..before).any(|n| {
+            let end = ctx.starts.get(n + 1).map_or(source.text.len(), |&e| e);
+            source.text[ctx.starts[n]..end].trim().is_empty()
+        });
+    }
+    // Blocks written on one line, one after another, stay one line each.
+    let is_row = |k: usize| items.get(k).is_some_and(|it| it.row.is_some());
+    let kind = |k: usize| items.get(k).and_then(|it| it.row.as_ref()).map(|r| r.0);
+    let rows: Vec<bool> = (0..items.len())
+        .map(|k| {
+            is_row(k)
+                && ((k > 0 && !items[k].blank_before && kind(k - 1) == kind(k))
+                    || (is_row(k + 1) && !items[k + 1].blank_before && kind(k + 1) == kind(k)))
+        })
+        .collect();
+    for (it, row) in items.iter_mut().zip(rows) {
+        if row {
+            if let Some((run, line)) = it.row.take() {
+                it.run = Some(run);
+                it.lines = vec![line];
+                it.body = 0..0;
             }
         }
     }
+    let tail = attach(&mut items, comments(&source.text, &ctx.starts));
 
     // Align block bodies and runs of one-line declarations.
     for it in &mut items {
@@ -512,7 +616,7 @@ pub fn format(source: &Source) -> Result<String, Vec<SyntaxError>> {
     while i < items.len() {
         let mut j = i + 1;
         if let Some(kw) = items[i].run {
-            while j < items.len() && items[j].run == Some(kw) {
+            while j < items.len() && items[j].run == Some(kw) && !items[j].blank_before {
                 j += 1;
             }
             let mut run: Vec<Line> = items[i..j].iter().map(|it| it.lines[0].clone()).collect();

@@ -31,36 +31,13 @@ fn parse_with(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
         return Err(pre);
     }
     // Large files are parsed on every core; statements are independent.
-    let workers = if chunks.len() < 2000 {
-        1
-    } else {
-        std::thread::available_parallelism().map_or(1, std::num::NonZero::get)
-    };
-    let per = chunks.len().div_ceil(workers).max(1);
-    let parts: Vec<(Vec<Decl>, Vec<SyntaxError>)> = if workers == 1 {
-        vec![parse_chunks(text, &chunks, chunks.len())]
-    } else {
-        std::thread::scope(|scope| {
-            let total = chunks.len();
-            let handles: Vec<_> = chunks
-                .chunks(per)
-                .enumerate()
-                .map(|(k, group)| {
-                    // the first list has room for all: the others are moved
-                    // onto it without growing it
-                    let room = if k == 0 { total } else { group.len() };
-                    scope.spawn(move || parse_chunks(text, group, room))
-                })
-                .collect();
-            handles
-                .into_iter()
-                .map(|h| {
-                    h.join()
-                        .unwrap_or_else(|_| (Vec::new(), vec![eof_error(text)]))
-                })
-                .collect()
-        })
-    };
+    let total = chunks.len();
+    let runs = crate::parallel::runs_for(total, 2000);
+    let parts = crate::parallel::in_runs(&chunks, runs, |k, group| {
+        // the first list has room for all: the others are moved onto it
+        // without growing it
+        parse_chunks(text, group, if k == 0 { total } else { group.len() })
+    });
     let mut decls = Vec::new();
     let mut errors = Vec::new();
     for (k, (d, e)) in parts.into_iter().enumerate() {
@@ -121,16 +98,6 @@ fn statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
     };
     BASE.with(|b| b.set(0));
     out.transpose()
-}
-
-fn eof_error(text: &str) -> SyntaxError {
-    SyntaxError::Expected {
-        expected: "a declaration".into(),
-        after: String::new(),
-        span: Span::new(text.len(), text.len()),
-        found: "end of file".into(),
-        help: None,
-    }
 }
 
 /// Braces, strings and nesting depth, checked before pest runs so that the

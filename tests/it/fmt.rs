@@ -134,3 +134,51 @@ fn unparsable_file_is_refused_and_left_alone() {
     assert_eq!(std::fs::read_to_string(&good).expect("read"), "let a = 3\n");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn one_line_blocks_in_a_run_stay_a_table() {
+    // Blocks written one per line, one after another, stay so with their
+    // entries in aligned columns; a lone one-line block is opened up.
+    let text = "material s { E = 29000 ksi }\nnode a at 0 in\nnode b at 10 in\nnode c at 20 in\nfix a\npart p1 { material = s; area = 1 in^2; ends = a, b }\npart p10 {material=s; area = 12.5 in^2;ends = b, c}  # long\npart p11 { material = s; area = 1.5 in^2; ends = a, c }\nload c = 1 kip\n";
+    let want = "material s {\n  E = 29000 ksi\n}\n\nnode a at 0 in\nnode b at 10 in\nnode c at 20 in\n\nfix a\n\npart p1  { material = s; area = 1 in^2;    ends = a, b }\npart p10 { material = s; area = 12.5 in^2; ends = b, c }  # long\npart p11 { material = s; area = 1.5 in^2;  ends = a, c }\n\nload c = 1 kip\n";
+    assert_eq!(fmt(text), want);
+    assert_eq!(fmt(want), want, "not idempotent");
+    assert_eq!(results(text), results(want));
+}
+
+#[test]
+fn a_blank_line_between_groups_of_one_line_declarations_is_kept() {
+    let text = "let a = 1 in\nlet bb = 2 in\n\nlet ccc = 3 in\n";
+    let want = "let a  = 1 in\nlet bb = 2 in\n\nlet ccc = 3 in\n";
+    assert_eq!(fmt(text), want);
+    assert_eq!(fmt(want), want, "not idempotent");
+}
+
+#[test]
+fn comments_in_a_long_file_each_keep_their_line() {
+    // The placement pass is one sweep over lines and comments: every
+    // comment of a generated file with thousands of them lands on its line.
+    let mut text = String::from("material s { E = 29000 ksi }\nnode n0 at 0 in\nfix n0\n");
+    for i in 1..=3000 {
+        text.push_str(&format!("# node {i}\nnode n{i} at {i} in  # at {i}\n"));
+    }
+    text.push_str("load n3000 = 1 kip\n");
+    let once = fmt(&text);
+    let lines: Vec<&str> = once.lines().collect();
+    for i in (1..=3000).step_by(499) {
+        let k = lines
+            .iter()
+            .position(|l| l.starts_with(&format!("node n{i} ")))
+            .expect("node kept");
+        assert_eq!(
+            lines[k - 1],
+            format!("# node {i}"),
+            "own-line comment {i} moved"
+        );
+        assert!(
+            lines[k].ends_with(&format!("  # at {i}")),
+            "trailing comment {i} moved"
+        );
+    }
+    assert_eq!(fmt(&once), once);
+}
