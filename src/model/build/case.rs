@@ -1,0 +1,417 @@
+//! Load cases and their statements: loads, temperatures, free strains,
+//! settlements.
+
+#![allow(clippy::wildcard_imports)] // the builder's shared imports and helpers
+
+use super::*;
+
+/// What every statement of a case is read against.
+struct InCase<'s, 'n, 'b> {
+    name: &'s str,
+    scope: &'s dyn Scope,
+    names: &'s Names<'n>,
+    built: Built<'b>,
+}
+
+impl InCase<'_, '_, '_> {
+    fn typed(&self, e: &Expr, dim: Dimension, what: &str, b: &mut Builder) -> Option<Quantity> {
+        b.ok(typed(e, dim, || what.to_string(), self.scope))
+    }
+
+    fn part_of(&self, id: &Ident, b: &mut Builder) -> Option<usize> {
+        let i = b.ok(self.names.resolve(id, NameKind::Part))?;
+        place(self.built.part_at, i)
+    }
+}
+
+/// What a case has already said, so that saying it twice is an error.
+#[derive(Default)]
+struct Seen {
+    temperature: HashMap<Option<usize>, Span>,
+    strain: HashMap<usize, Span>,
+    settlement: HashMap<(usize, usize), Span>,
+}
+
+impl Builder {
+    /// The load cases: the declared ones, or the loose statements of a file
+    /// without cases as its one case, `loads`.
+    pub(super) fn cases(
+        &mut self,
+        file: &ast::File,
+        scope: &LetScope<'_, '_>,
+        names: &Names<'_>,
+        built: Built<'_>,
+    ) -> Vec<Case> {
+        let mut cases = Vec::new();
+        let first_case = file.decls.iter().find_map(|d| match d {
+            Decl::Case(c) => Some(c.name.span),
+            _ => None,
+        });
+        let mut loose = Vec::new();
+        for d in &file.decls {
+            match d {
+                Decl::Case(c) => {
+                    let mut sustained = false;
+                    for f in &c.flags {
+                        sustained = f.name == "sustained";
+                    }
+                    let case = self.case(
+                        &c.name.name,
+                        sustained,
+                        &c.stmts.iter().collect::<Vec<_>>(),
+                        c.span,
+                        scope,
+                        names,
+                        built,
+                    );
+                    cases.push(case);
+                }
+                Decl::Stmt(s) => match first_case {
+                    Some(case) => self.errors.push(ModelError::LooseStatement {
+                        span: s.span(),
+                        case,
+                    }),
+                    None => loose.push(&**s),
+                },
+                _ => {}
+            }
+        }
+        if first_case.is_none() {
+            let case = self.case("loads", false, &loose, Span::new(0, 0), scope, names, built);
+            cases.push(case);
+        }
+        cases
+    }
+
+    /// The declared combinations, or one per case when none is declared.
+    pub(super) fn combinations(
+        &mut self,
+        file: &ast::File,
+        names: &Names<'_>,
+        cases: &[Case],
+    ) -> Vec<Combination> {
+        let mut combinations = Vec::new();
+        for d in &file.decls {
+            if let Decl::Combine(c) = d {
+                let mut terms: Vec<(usize, f64)> = Vec::new();
+                for t in &c.terms {
+                    if let Some(i) = self.ok(names.resolve(&t.case, NameKind::Case)) {
+                        if terms.iter().any(|(j, _)| *j == i) {
+                            self.errors.push(ModelError::CaseTwice {
+                                case: t.case.name.to_string(),
+                                combination: c.name.name.to_string(),
+                                span: t.span,
+                            });
+                        } else if self
+                            .ok(ModelError::guard(
+                                Quantity::number(t.factor),
+                                || format!("the factor of `{}`", t.case.name),
+                                t.span,
+                            ))
+                            .is_some()
+                        {
+                            terms.push((i, t.factor));
+                        }
+                    }
+                }
+                if !terms.is_empty() && terms.iter().all(|(_, f)| *f == 0.0) {
+                    self.errors.push(ModelError::ZeroCombination {
+                        combination: c.name.name.to_string(),
+                        span: c.span,
+                    });
+                }
+                combinations.push(Combination {
+                    name: c.name.name.to_string(),
+                    terms,
+                    declared: true,
+                    span: c.span,
+                });
+            }
+        }
+        if combinations.is_empty() {
+            for (i, c) in cases.iter().enumerate() {
+                combinations.push(Combination {
+                    name: c.name.clone(),
+                    terms: vec![(i, 1.0)],
+                    declared: false,
+                    span: c.span,
+                });
+            }
+        }
+        combinations
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn case(
+        &mut self,
+        name: &str,
+        sustained: bool,
+        stmts: &[&Stmt],
+        span: Span,
+        scope: &dyn Scope,
+        names: &Names<'_>,
+        built: Built<'_>,
+    ) -> Case {
+        let mut case = Case {
+            name: name.to_string(),
+            sustained,
+            loads: Vec::new(),
+            temperatures: Vec::new(),
+            strains: Vec::new(),
+            settlements: Vec::new(),
+            span,
+        };
+        let c = InCase {
+            name,
+            scope,
+            names,
+            built,
+        };
+        let mut seen = Seen::default();
+        for s in stmts {
+            match s {
+                Stmt::Load { node, force, span } => self.load(&c, node, force, *span, &mut case),
+                Stmt::Temperature { part, change, span } => {
+                    self.temperature(&c, part.as_ref(), change, *span, &mut seen, &mut case);
+                }
+                Stmt::Strain { part, value, span } => {
+                    self.strain(&c, part, value, *span, &mut seen, &mut case);
+                }
+                Stmt::Settle {
+                    node,
+                    axis,
+                    movement,
+                    span,
+                } => self.settle(&c, node, *axis, movement, *span, &mut seen, &mut case),
+            }
+        }
+        case
+    }
+
+    /// `load NODE = FORCE`.
+    fn load(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        node: &Ident,
+        force: &Coord,
+        span: Span,
+        out: &mut Case,
+    ) {
+        let Some(i) = self.ok(c.names.resolve(node, NameKind::Node)) else {
+            return;
+        };
+        let what = format!("the load on `{}`", node.name);
+        let f = match (c.built.kind, force) {
+            (Kind::Axial, Coord::Axial(e)) => c
+                .typed(e, Dimension::FORCE, &what, self)
+                .map(|q| [si_force(q), Force::default()]),
+            (Kind::Plane, Coord::Plane(xy, _)) => {
+                let [ex, ey] = &**xy;
+                let x = c.typed(ex, Dimension::FORCE, &what, self);
+                let y = c.typed(ey, Dimension::FORCE, &what, self);
+                x.zip(y).map(|(x, y)| [si_force(x), si_force(y)])
+            }
+            (Kind::Axial, Coord::Plane(_, sp)) => {
+                self.errors.push(ModelError::ModelKind {
+                    message: "an axial model takes a load as one force".into(),
+                    span: *sp,
+                    help: Some(format!("write `load {} = -95 kip`", node.name)),
+                });
+                None
+            }
+            (Kind::Plane, Coord::Axial(e)) => {
+                self.errors.push(ModelError::ModelKind {
+                    message: "a plane model takes a load as a pair (FX, FY)".into(),
+                    span: e.span,
+                    help: Some(format!("write `load {} = (0 kip, -12 kip)`", node.name)),
+                });
+                None
+            }
+        };
+        if let Some(force) = f {
+            out.loads.push(Load {
+                node: i,
+                force,
+                span,
+            });
+        }
+    }
+
+    /// `temperature [PART] = CHANGE`: every member it acts on needs an alpha.
+    fn temperature(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        part: Option<&Ident>,
+        change: &Expr,
+        span: Span,
+        seen: &mut Seen,
+        out: &mut Case,
+    ) {
+        let target = match part {
+            Some(id) => match c.part_of(id, self) {
+                Some(i) => Some(i),
+                None => return,
+            },
+            None => None,
+        };
+        if let (Some(i), Some(id)) = (target, part) {
+            if c.built.parts[i].material().is_none() {
+                self.errors.push(ModelError::SpringTemperature {
+                    part: id.name.to_string(),
+                    span,
+                });
+                return;
+            }
+        }
+        if let Some(first) = seen.temperature.get(&target) {
+            self.errors.push(ModelError::DuplicateInCase {
+                what: "a temperature change".into(),
+                case: c.name.to_string(),
+                span,
+                first: *first,
+            });
+            return;
+        }
+        seen.temperature.insert(target, span);
+        let Some(q) = c.typed(change, Dimension::TEMPERATURE, "a temperature change", self) else {
+            return;
+        };
+        // Every member the change acts on needs an alpha.
+        let affected: Vec<usize> = match target {
+            Some(i) => vec![i],
+            None => (0..c.built.parts.len()).collect(),
+        };
+        let mut reported: HashSet<usize> = HashSet::new();
+        for i in affected {
+            if let Some(m) = c.built.parts[i].material() {
+                if c.built.materials[m].alpha.is_none()
+                    && !reported.contains(&m)
+                    && !self.alpha_failed.contains(&c.built.materials[m].name)
+                {
+                    reported.insert(m);
+                    self.errors.push(ModelError::NoAlpha {
+                        part: c.built.parts[i].name.to_string(),
+                        material: c.built.materials[m].name.clone(),
+                        span,
+                        material_span: c.built.materials[m].span,
+                    });
+                }
+            }
+        }
+        out.temperatures.push(Temperature {
+            part: target,
+            change: TemperatureInterval::new::<kelvin>(q.value),
+            span,
+        });
+    }
+
+    /// `strain PART = VALUE`.
+    fn strain(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        part: &Ident,
+        value: &Expr,
+        span: Span,
+        seen: &mut Seen,
+        out: &mut Case,
+    ) {
+        let Some(i) = c.part_of(part, self) else {
+            return;
+        };
+        if let Some(first) = seen.strain.get(&i) {
+            self.errors.push(ModelError::DuplicateInCase {
+                what: format!("a free strain of `{}`", part.name),
+                case: c.name.to_string(),
+                span,
+                first: *first,
+            });
+            return;
+        }
+        seen.strain.insert(i, span);
+        if let Some(q) = c.typed(value, Dimension::NONE, "a free strain", self) {
+            out.strains.push(FreeStrain {
+                part: i,
+                strain: Ratio::new::<ratio>(q.value),
+                span,
+            });
+        }
+    }
+
+    /// `settle NODE [x|y] = MOVEMENT`: only of a held direction.
+    #[allow(clippy::too_many_arguments)]
+    fn settle(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        node: &Ident,
+        axis: Option<(Axis, Span)>,
+        movement: &Expr,
+        span: Span,
+        seen: &mut Seen,
+        out: &mut Case,
+    ) {
+        let Some(i) = self.ok(c.names.resolve(node, NameKind::Node)) else {
+            return;
+        };
+        let direction = match (c.built.kind, axis) {
+            (Kind::Axial, None) | (Kind::Plane, Some((Axis::X, _))) => 0,
+            (Kind::Plane, Some((Axis::Y, _))) => 1,
+            (Kind::Axial, Some((_, sp))) => {
+                self.errors.push(ModelError::ModelKind {
+                    message: "an axial model has one direction; `settle` takes no `x` or `y`"
+                        .into(),
+                    span: sp,
+                    help: Some(format!("write `settle {} = -0.1 in`", node.name)),
+                });
+                return;
+            }
+            (Kind::Plane, None) => {
+                self.errors.push(ModelError::ModelKind {
+                    message: "in a plane model `settle` needs a direction".into(),
+                    span: node.span,
+                    help: Some(format!("write `settle {} y = -0.1 in`", node.name)),
+                });
+                return;
+            }
+        };
+        if !c.built.nodes[i].fixed[direction] {
+            let dir = if c.built.kind == Kind::Plane {
+                if direction == 0 {
+                    " in x"
+                } else {
+                    " in y"
+                }
+            } else {
+                ""
+            };
+            self.errors.push(ModelError::SettleFree {
+                node: node.name.to_string(),
+                direction: dir.into(),
+                span,
+                help: Some(format!(
+                    "add `fix {}{}` for the support that moves",
+                    node.name,
+                    dir.replace(" in", "")
+                )),
+            });
+            return;
+        }
+        if let Some(first) = seen.settlement.get(&(i, direction)) {
+            self.errors.push(ModelError::DuplicateInCase {
+                what: format!("a movement of `{}`", node.name),
+                case: c.name.to_string(),
+                span,
+                first: *first,
+            });
+            return;
+        }
+        seen.settlement.insert((i, direction), span);
+        if let Some(q) = c.typed(movement, Dimension::LENGTH, "a support movement", self) {
+            out.settlements.push(Settlement {
+                node: i,
+                direction,
+                movement: si_length(q),
+                span,
+            });
+        }
+    }
+}

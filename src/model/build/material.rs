@@ -1,0 +1,209 @@
+//! The title block, materials and the `units` declaration.
+
+#![allow(clippy::wildcard_imports)] // the builder's shared imports and helpers
+
+use super::*;
+
+impl Builder {
+    /// The title block, the materials and the `units` declaration.
+    pub(super) fn title_materials_units(
+        &mut self,
+        file: &ast::File,
+        scope: &LetScope<'_, '_>,
+    ) -> (Title, Vec<Material>, UnitChoice) {
+        let mut title = Title::default();
+        let mut materials = Vec::new();
+        let mut units = UnitChoice::Auto;
+        for d in &file.decls {
+            match d {
+                Decl::Calc(b) => {
+                    let f = Fields::new(
+                        b,
+                        What {
+                            kind: "the title block",
+                            name: None,
+                        },
+                        Title::KEYS,
+                        &mut self.errors,
+                    );
+                    for key in Title::KEYS {
+                        if let Some(e) = f.map.get(key) {
+                            match &e.value {
+                                Value::Str(s) => title.fields.push((key, s.text.clone())),
+                                Value::Exprs(list) => self.errors.push(ModelError::Expected {
+                                    expected: format!("a quoted string for `{key}`"),
+                                    span: list[0].span.to(list[list.len() - 1].span),
+                                    found: "not a string".into(),
+                                    help: Some(format!("write `{key} = \"...\"`")),
+                                }),
+                            }
+                        }
+                    }
+                }
+                Decl::Material(nb) => materials.extend(self.material(nb, scope)),
+                Decl::Units(u) => units = self.units(u),
+                _ => {}
+            }
+        }
+        (title, materials, units)
+    }
+
+    pub(super) fn units(&mut self, u: &ast::Units) -> UnitChoice {
+        match u {
+            ast::Units::System(id) if id.name == "us" => UnitChoice::Us,
+            ast::Units::System(_) => UnitChoice::Si,
+            ast::Units::List(list) => {
+                let mut out: Vec<(String, Quantity)> = Vec::new();
+                for ue in list {
+                    if let Some(q) = self.ok(crate::model::eval::unit_value(ue)) {
+                        let text = ue
+                            .factors
+                            .iter()
+                            .enumerate()
+                            .map(|(i, f)| {
+                                let op = if i == 0 {
+                                    ""
+                                } else if f.divide {
+                                    "/"
+                                } else {
+                                    "*"
+                                };
+                                if f.power == 1 {
+                                    format!("{op}{}", f.name)
+                                } else {
+                                    format!("{op}{}^{}", f.name, f.power)
+                                }
+                            })
+                            .collect::<String>();
+                        if let Some((first, _)) = out.iter().find(|(_, o)| o.dim == q.dim) {
+                            self.errors.push(ModelError::SameKindUnits {
+                                first: first.clone(),
+                                second: text,
+                                kind: q.dim.describe(),
+                                span: ue.span,
+                            });
+                            continue;
+                        }
+                        out.push((text, q));
+                    }
+                }
+                UnitChoice::List(out)
+            }
+        }
+    }
+
+    pub(super) fn material(&mut self, nb: &ast::NamedBlock, scope: &dyn Scope) -> Option<Material> {
+        const KEYS: &[&str] = &[
+            "E",
+            "alpha",
+            "yield",
+            "yield_compression",
+            "allowable",
+            "allowable_tension",
+            "allowable_compression",
+            "creep",
+        ];
+        let what = What::named("material", &nb.name.name);
+        let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
+        let e = self.opt(f.quantity("E", Dimension::PRESSURE, scope));
+        if !f.has("E") {
+            self.errors.push(f.missing(
+                "E",
+                Some("give the modulus of elasticity, e.g. `E = 29000 ksi`".into()),
+            ));
+        }
+        let alpha = self
+            .opt(f.quantity("alpha", Dimension::PER_TEMPERATURE, scope))
+            .map(|q| TemperatureCoefficient::new::<per_kelvin>(q.value));
+        if alpha.is_none() && f.has("alpha") {
+            // its error is reported; a temperature change does not repeat it
+            self.alpha_failed.insert(nb.name.name.to_string());
+        }
+        let stress = |key: &str, b: &mut Self, strict: bool| {
+            let q = b.opt(f.quantity(key, Dimension::PRESSURE, scope))?;
+            if q.value < 0.0 || (strict && q.value == 0.0) {
+                let sp = f.map.get(key).map(|e| e.span).unwrap_or_default();
+                b.errors.push(ModelError::NotPositive {
+                    what: format!("`{key}` of {what}"),
+                    value: "zero or less".into(),
+                    span: sp,
+                    help: None,
+                });
+                return None;
+            }
+            Some(si_pressure(q))
+        };
+        let yield_strength = stress("yield", self, true);
+        let yield_compression = stress("yield_compression", self, true);
+        let allowable = stress("allowable", self, false);
+        let allowable_tension = stress("allowable_tension", self, false);
+        let allowable_compression = stress("allowable_compression", self, false);
+        let creep = self
+            .opt(f.quantity("creep", Dimension::NONE, scope))
+            .map(|q| q.value);
+        if let Some(c) = creep {
+            if c < 0.0 {
+                self.errors.push(ModelError::NotPositive {
+                    what: format!("`creep` of {what}"),
+                    value: format!("{c}"),
+                    span: f.map.get("creep").map(|e| e.span).unwrap_or_default(),
+                    help: Some("a creep coefficient is zero or more, typically 1.5 to 3".into()),
+                });
+            }
+        }
+        let mut e_sources = Vec::new();
+        if let Some(Ok(expr)) = f.expr("E") {
+            crate::model::eval::sources(expr, &mut e_sources);
+            let mut refs = Vec::new();
+            walk_names(expr, &mut refs);
+            for id in refs {
+                for s in self
+                    .let_sources
+                    .get(id.name.as_str())
+                    .cloned()
+                    .unwrap_or_default()
+                {
+                    if !e_sources.contains(&s) {
+                        e_sources.push(s);
+                    }
+                }
+            }
+        }
+        let e = e?;
+        if e.value <= 0.0 {
+            let sp = f.map.get("E").map(|x| x.span).unwrap_or_default();
+            self.errors.push(ModelError::NotPositive {
+                what: format!("`E` of {what}"),
+                value: "zero or less".into(),
+                span: sp,
+                help: Some("the modulus of elasticity is a positive pressure".into()),
+            });
+            return None;
+        }
+        // keys derived from other names, for the report's substitution
+        let mut derived = Vec::new();
+        for key in KEYS {
+            if let Some(Ok(e)) = f.expr(key) {
+                let mut named = false;
+                e.visit(&mut |x| named |= matches!(x.kind, ExprKind::Name(_)));
+                if named {
+                    derived.push((*key, e.clone()));
+                }
+            }
+        }
+        Some(Material {
+            derived,
+            name: nb.name.name.to_string(),
+            e: si_pressure(e),
+            alpha,
+            yield_strength,
+            yield_compression,
+            allowable,
+            allowable_tension,
+            allowable_compression,
+            creep,
+            e_sources,
+            span: nb.span,
+        })
+    }
+}
