@@ -8,6 +8,9 @@
 //! every stage are `miette` diagnostics that point at the offending span
 //! ([`diagnostic`]).
 
+// pest's derive without `std` names `::alloc` (see Cargo.toml).
+extern crate alloc;
+
 pub mod checks;
 pub mod diagnostic;
 pub mod model;

@@ -87,15 +87,36 @@ fn parse_chunks(
 /// One statement (`text[start..end]`) through pest and the lowering;
 /// `Ok(None)` for a statement that declares nothing.
 fn statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
-    BASE.with(|b| b.set(start));
-    let out = match CalcParser::parse(Rule::statement, &text[start..end]) {
-        Ok(mut pairs) => pairs.next().and_then(|stmt| {
-            stmt.into_inner()
-                .find(|p| p.as_rule() != Rule::EOI)
-                .map(decl)
-        }),
-        Err(e) => Some(Err(from_pest(&e, text, start))),
+    let body = &text[start..end];
+    let first = body.trim_start_matches([' ', '\t', '\r']);
+    let word = first.split(|c: char| !(c.is_ascii_alphanumeric() || c == '_')).next();
+    let shortcut = match word {
+        Some("node") => Some(Rule::node_statement),
+        Some("part") => Some(Rule::part_statement),
+        Some("let") => Some(Rule::let_statement),
+        _ => None,
     };
+    BASE.with(|b| b.set(start));
+    let mut out = None;
+    if let Some(rule) = shortcut {
+        if let Ok(mut pairs) = CalcParser::parse(rule, body) {
+            out = pairs.next().and_then(|stmt| {
+                stmt.into_inner()
+                    .find(|p| p.as_rule() != Rule::EOI)
+                    .map(decl)
+            });
+        }
+    }
+    if out.is_none() {
+        out = match CalcParser::parse(Rule::statement, body) {
+            Ok(mut pairs) => pairs.next().and_then(|stmt| {
+                stmt.into_inner()
+                    .find(|p| p.as_rule() != Rule::EOI)
+                    .map(decl)
+            }),
+            Err(e) => Some(Err(from_pest(&e, text, start))),
+        };
+    }
     BASE.with(|b| b.set(0));
     out.transpose()
 }
@@ -424,14 +445,34 @@ fn span(p: &Pair<'_, Rule>) -> Span {
     Span::new(base + s.start(), base + tight_end(p))
 }
 
+/// Where a pair's last token ends. A rule that ends in an optional or a
+/// repetition has skipped the blanks (and a comment) after its last token
+/// before the attempt failed; those are not part of it. Strings hold no
+/// line end, so the last line of the text starts outside any string.
 fn tight_end(p: &Pair<'_, Rule>) -> usize {
+    let s = p.as_span();
+    let text = s.as_str();
     if p.as_rule() == Rule::string {
-        return p.as_span().end();
+        return s.end();
     }
-    match p.clone().into_inner().last() {
-        Some(q) => tight_end(&q),
-        None => p.as_span().end(),
+    let line = text.rfind('\n').map_or(0, |i| i + 1);
+    let mut code = text.len();
+    let mut quoted = false;
+    let mut chars = text[line..].char_indices();
+    while let Some((i, c)) = chars.next() {
+        match c {
+            '"' => quoted = !quoted,
+            '\\' if quoted => {
+                chars.next();
+            }
+            '#' if !quoted => {
+                code = line + i;
+                break;
+            }
+            _ => {}
+        }
     }
+    s.start() + text[..code].trim_end_matches([' ', '\t', '\r']).len()
 }
 
 fn ident(p: &Pair<'_, Rule>) -> Ident {
