@@ -31,8 +31,13 @@ fn parse_with(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
         return Err(pre);
     }
     // Large files are parsed on every core; statements are independent.
+    // They differ in length (a file's nodes come before its longer parts),
+    // so the text is cut into many runs for the pool to balance.
     let total = chunks.len();
-    let runs = crate::parallel::runs_for(total, 2000);
+    let runs = match crate::parallel::runs_for(total, 2000) {
+        1 => 1,
+        cores => cores * 16,
+    };
     let parts = crate::parallel::in_runs(&chunks, runs, |k, group| {
         // the first list has room for all: the others are moved onto it
         // without growing it
@@ -440,9 +445,13 @@ fn from_pest(e: &pest::error::Error<Rule>, text: &str, base: usize) -> SyntaxErr
 /// optional part that then did not match; those are left out, so that the
 /// spans equal the hand-written parser's.)
 fn span(p: &Pair<'_, Rule>) -> Span {
-    let s = p.as_span();
-    let base = BASE.with(std::cell::Cell::get);
-    Span::new(base + s.start(), base + tight_end(p))
+    let base = base();
+    Span::new(base + p.as_span().start(), base + tight_end(p))
+}
+
+/// Where the statement being lowered starts in the file.
+fn base() -> usize {
+    BASE.with(std::cell::Cell::get)
 }
 
 /// Where a pair's last token ends. A rule that ends in an optional or a
@@ -456,6 +465,9 @@ fn tight_end(p: &Pair<'_, Rule>) -> usize {
         return s.end();
     }
     let line = text.rfind('\n').map_or(0, |i| i + 1);
+    if !text[line..].contains('#') {
+        return s.start() + text.trim_end_matches([' ', '\t', '\r']).len();
+    }
     let mut code = text.len();
     let mut quoted = false;
     let mut chars = text[line..].char_indices();
@@ -907,11 +919,14 @@ fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
 }
 
 fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
-    let sp = span(&p);
+    // Most levels of an expression hold one operand and need no span of
+    // their own: it is worked out only where it is used.
+    let at = p.clone();
+    let sp = || span(&at);
     match p.as_rule() {
         Rule::expr => {
             let mut it = parts(p);
-            let first = expr(need(it.next(), sp)?)?;
+            let first = expr(need(it.next(), sp())?)?;
             let mut rest = Vec::new();
             while let Some(op) = it.next() {
                 let op = if op.as_str() == "+" {
@@ -919,13 +934,13 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                 } else {
                     AddOp::Sub
                 };
-                rest.push((op, expr(need(it.next(), sp)?)?));
+                rest.push((op, expr(need(it.next(), sp())?)?));
             }
-            Ok(flat(first, rest, sp, ExprKind::Sum))
+            Ok(flat(first, rest, ExprKind::Sum))
         }
         Rule::term => {
             let mut it = parts(p);
-            let first = expr(need(it.next(), sp)?)?;
+            let first = expr(need(it.next(), sp())?)?;
             let mut rest = Vec::new();
             while let Some(op) = it.next() {
                 let op = if op.as_str() == "*" {
@@ -933,14 +948,14 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                 } else {
                     MulOp::Div
                 };
-                rest.push((op, expr(need(it.next(), sp)?)?));
+                rest.push((op, expr(need(it.next(), sp())?)?));
             }
-            Ok(flat(first, rest, sp, ExprKind::Product))
+            Ok(flat(first, rest, ExprKind::Product))
         }
         Rule::power => {
             let mut operands = parts(p).map(expr).collect::<Result<Vec<_>>>()?;
             // right-associative: a ^ b ^ c = a ^ (b ^ c)
-            let mut acc = operands.pop().ok_or_else(|| internal(sp))?;
+            let mut acc = operands.pop().ok_or_else(|| internal(sp()))?;
             while let Some(base) = operands.pop() {
                 let s = base.span.to(acc.span);
                 acc = Expr {
@@ -960,9 +975,9 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                     atom = Some(expr(q)?);
                 }
             }
-            let mut e = atom.ok_or_else(|| internal(sp))?;
+            let mut e = atom.ok_or_else(|| internal(sp()))?;
             if negs % 2 == 1 {
-                let span = Span::new(sp.start(), e.span.end());
+                let span = Span::new(at.as_span().start() + base(), e.span.end());
                 e = Expr {
                     kind: ExprKind::Neg(Box::new(e)),
                     span,
@@ -971,15 +986,15 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             Ok(e)
         }
         Rule::paren => {
-            let inner = expr(need(parts(p).next(), sp)?)?;
+            let inner = expr(need(parts(p).next(), sp())?)?;
             Ok(Expr {
                 kind: inner.kind,
-                span: sp,
+                span: sp(),
             })
         }
         Rule::quantity => {
             let mut it = parts(p);
-            let num = need(it.next(), sp)?;
+            let num = need(it.next(), sp())?;
             let value = number(&num)?;
             let Some(u) = it.next() else {
                 return Ok(Expr {
@@ -988,15 +1003,15 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                 });
             };
             let u = unit_expr(u)?;
-            quantity_with_unit(value, sp.start(), u).map_err(|f| not_a_unit(&f))
+            quantity_with_unit(value, at.as_span().start() + base(), u).map_err(|f| not_a_unit(&f))
         }
         Rule::word => {
             let mut it = parts(p);
-            let id = ident(&need(it.next(), sp)?);
+            let id = ident(&need(it.next(), sp())?);
             match it.next() {
                 None => Ok(word_expr(id.name, id.span)),
                 Some(q) if q.as_rule() == Rule::field => {
-                    let f = ident(&need(parts(q).next(), sp)?);
+                    let f = ident(&need(parts(q).next(), sp())?);
                     let span = id.span.to(f.span);
                     Ok(Expr {
                         kind: ExprKind::Field(Box::new([id, f])),
@@ -1032,14 +1047,13 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
                 }
             }
         }
-        _ => Err(internal(sp)),
+        _ => Err(internal(sp())),
     }
 }
 
 fn flat<O>(
     first: Expr,
     rest: Vec<(O, Expr)>,
-    sp: Span,
     make: fn(Box<Expr>, Vec<(O, Expr)>) -> ExprKind,
 ) -> Expr {
     if rest.is_empty() {
@@ -1047,7 +1061,7 @@ fn flat<O>(
     } else {
         // The span runs from the first operand to the last, so that trailing
         // blanks and comments are never part of it.
-        let span = rest.last().map_or(sp, |(_, e)| first.span.to(e.span));
+        let span = rest.last().map_or(first.span, |(_, e)| first.span.to(e.span));
         Expr {
             kind: make(Box::new(first), rest),
             span,
