@@ -1,0 +1,611 @@
+//! One combination: its loads, the solved system, each part's force and
+//! stress with their equations, equilibrium at the nodes, and its checks.
+
+#![allow(clippy::wildcard_imports)] // the report's shared imports and helpers
+
+use super::*;
+
+/// For each node, the parts meeting there: (part, sign, direction); a part
+/// in tension pulls its end A toward B (+ĉ) and its end B toward A (−ĉ).
+pub(super) fn incidence(model: &Model) -> Vec<Vec<(usize, f64, [f64; 2])>> {
+    let mut out = vec![Vec::new(); model.nodes.len()];
+    for (i, p) in model.parts.iter().enumerate() {
+        let dir = model.direction(i);
+        out[p.ends[0]].push((i, 1.0, dir));
+        out[p.ends[1]].push((i, -1.0, dir));
+    }
+    out
+}
+
+#[allow(clippy::too_many_lines)]
+pub(super) fn combination(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    solution: &Solution,
+    ci: usize,
+    incidence: &[Vec<(usize, f64, [f64; 2])>],
+) {
+    let r = &solution.combinations[ci];
+    f.scales.set(Scales::of(r));
+    combination_body(doc, f, model, r, ci, incidence);
+    f.scales.set(Scales::default());
+}
+
+pub(super) fn combination_body(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    r: &crate::solve::CombinationResult,
+    ci: usize,
+    incidence: &[Vec<(usize, f64, [f64; 2])>],
+) {
+    let combo = &model.combinations[ci];
+    doc.h(
+        2,
+        &format!(
+            "Combination {}",
+            crate::report::table::combination_heading(model, ci, true)
+        ),
+    );
+    let nd = model.kind.dofs();
+    let axis = ["x", "y"];
+    // Loads on each node component.
+    let mut loads = vec![[0.0f64; 2]; model.nodes.len()];
+    for &(case, factor) in &combo.terms {
+        for l in &model.cases[case].loads {
+            for d in 0..nd {
+                loads[l.node][d] += factor * l.force[d].value;
+            }
+        }
+    }
+    let mut in_body = vec![false; model.nodes.len()];
+    for n in model
+        .rigids
+        .iter()
+        .flat_map(|b| &b.nodes)
+        .chain(model.ties.iter().flat_map(|t| &t.nodes))
+    {
+        in_body[*n] = true;
+    }
+
+    doc.h(3, "Equilibrium");
+    let mut first_equation = true;
+    for (n, node) in model.nodes.iter().enumerate() {
+        if in_body[n] {
+            continue;
+        }
+        for d in 0..nd {
+            if node.fixed[d] {
+                continue;
+            }
+            let terms = &incidence[n];
+            let mut sym = Vec::new();
+            let mut num = Vec::new();
+            for (i, sign, dir) in terms {
+                let c = sign * dir[d];
+                if c == 0.0 {
+                    continue;
+                }
+                let name = &model.parts[*i].name;
+                let force = r.parts[*i].force.value;
+                if model.kind == Kind::Axial {
+                    sym.push(format!("{}N({name})", if c > 0.0 { "+ " } else { "- " }));
+                    num.push(format!(
+                        "{}{}",
+                        if c > 0.0 { "+ " } else { "- " },
+                        f.force_t(force)
+                    ));
+                } else {
+                    sym.push(format!("+ N({name})·c{}({name})", axis[d]));
+                    num.push(format!("+ {} · {}", f.force_t(force), f.plain(c)));
+                }
+            }
+            if loads[n][d] != 0.0 {
+                sym.push(format!("+ P{}", if nd == 2 { axis[d] } else { "" }));
+                num.push(format!("+ {}", f.force_t(loads[n][d])));
+            }
+            if num.is_empty() {
+                continue;
+            }
+            let clean = |v: Vec<String>| {
+                let s = v.join(" ");
+                s.strip_prefix("+ ").map_or(s.clone(), str::to_string)
+            };
+            let label = if nd == 2 {
+                format!("ΣF{} at `{}`", axis[d], node.name)
+            } else {
+                format!("ΣF at `{}`", node.name)
+            };
+            if first_equation {
+                doc.p("At each free node the part forces (N, tension positive, pulling the node toward the part's other end) and the loads (P) balance:");
+                first_equation = false;
+            }
+            doc.eq(&format!(
+                "{label}: {} = {} = {}",
+                clean(sym),
+                clean(num),
+                f.force(0.0)
+            ));
+        }
+    }
+    if !first_equation {
+        doc.end_list();
+    }
+    for b in &model.rigids {
+        if model.kind != Kind::Plane {
+            continue;
+        }
+        let x0 = model.nodes[b.nodes[0]].x.value;
+        let y0 = model.nodes[b.nodes[0]].y.value;
+        // Net force on each member from parts, loads and reactions.
+        let mut fx = Vec::new();
+        let mut moment_terms = Vec::new();
+        let mut fsum = [Vec::new(), Vec::new()];
+        for &n in &b.nodes {
+            let mut net = [loads[n][0], loads[n][1]];
+            for &(i, sign, dir) in &incidence[n] {
+                for d in 0..2 {
+                    net[d] += sign * dir[d] * r.parts[i].force.value;
+                }
+            }
+            for d in 0..2 {
+                net[d] += r.nodes[n].reaction[d].value;
+            }
+            fx.push((n, net));
+        }
+        for (n, net) in &fx {
+            for d in 0..2 {
+                if net[d] != 0.0 {
+                    fsum[d].push(f.force_t(net[d]));
+                }
+            }
+            let (dx, dy) = (model.nodes[*n].x.value - x0, model.nodes[*n].y.value - y0);
+            if dx != 0.0 && net[1] != 0.0 {
+                moment_terms.push(format!("{} · {}", f.small_t(dx), f.force_t(net[1])));
+            }
+            if dy != 0.0 && net[0] != 0.0 {
+                moment_terms.push(format!("- {} · {}", f.small_t(dy), f.force_t(net[0])));
+            }
+        }
+        doc.p(&format!(
+            "Rigid body `{}`: the net forces on its nodes (parts, loads and reactions) balance in both directions and in moment about `{}`:",
+            b.name,
+            model.nodes[b.nodes[0]].name
+        ));
+        for d in 0..2 {
+            if fsum[d].is_empty() {
+                // Said rather than left out, so that the reader sees both
+                // directions were looked at.
+                doc.eq(&format!(
+                    "ΣF{} = {}: no net force in {} on any of its nodes",
+                    axis[d],
+                    f.force(0.0),
+                    axis[d]
+                ));
+            } else {
+                doc.eq(&format!(
+                    "ΣF{} = {} = {}",
+                    axis[d],
+                    fsum[d].join(" + "),
+                    f.force(0.0)
+                ));
+            }
+        }
+        if !moment_terms.is_empty() {
+            let joined = moment_terms.join(" + ").replace("+ - ", "- ");
+            doc.eq(&format!(
+                "ΣM = Σ (Δx·Fy − Δy·Fx) = {joined} = 0 {}·{}",
+                f.d.force.name, f.d.small.name
+            ));
+        }
+        doc.end_list();
+    }
+
+    doc.h(3, "Compatibility");
+    // Parts that span the same two nodes share one elongation.
+    let mut groups: Vec<(usize, usize, Vec<usize>)> = Vec::new();
+    let mut group_of: std::collections::HashMap<(usize, usize), usize> =
+        std::collections::HashMap::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
+        match group_of.get(&key) {
+            Some(&g) => groups[g].2.push(i),
+            None => {
+                group_of.insert(key, groups.len());
+                groups.push((key.0, key.1, vec![i]));
+            }
+        }
+    }
+    doc.p(match model.kind {
+        Kind::Axial => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ, with ĉ = +1 when B lies further along the axis than A and −1 when it lies back:",
+        Kind::Plane => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:",
+    });
+    for p in model.parts.iter().enumerate() {
+        let (i, p) = p;
+        let (a, b) = (p.ends[0], p.ends[1]);
+        let (na, nb) = (&model.nodes[a].name, &model.nodes[b].name);
+        let ua = &r.nodes[a].displacement;
+        let ub = &r.nodes[b].displacement;
+        match model.kind {
+            // ĉ is +1 or −1 on the axis: the end further along comes first
+            Kind::Axial if model.direction(i)[0] > 0.0 => doc.eq(&format!(
+                "δ({}) = u({nb}) - u({na}) = {} - {} = {}",
+                p.name,
+                f.small_t(ub[0].value),
+                f.small_t(ua[0].value),
+                f.small(r.parts[i].elongation.value)
+            )),
+            Kind::Axial => doc.eq(&format!(
+                "δ({}) = u({na}) - u({nb}) = {} - {} = {}",
+                p.name,
+                f.small_t(ua[0].value),
+                f.small_t(ub[0].value),
+                f.small(r.parts[i].elongation.value)
+            )),
+            Kind::Plane => {
+                let (ax, ay) = (model.nodes[a].x.value, model.nodes[a].y.value);
+                let (bx, by) = (model.nodes[b].x.value, model.nodes[b].y.value);
+                let l = (bx - ax).hypot(by - ay);
+                let (cx, cy) = ((bx - ax) / l, (by - ay) / l);
+                doc.eq(&format!(
+                    "δ({}) = (u({nb}) - u({na}))·cx + (v({nb}) - v({na}))·cy = ({} - {}) · {} + ({} - {}) · {} = {}",
+                    p.name,
+                    f.small_t(ub[0].value),
+                    f.small_t(ua[0].value),
+                    f.plain(cx),
+                    f.small_t(ub[1].value),
+                    f.small_t(ua[1].value),
+                    f.plain(cy),
+                    f.small(r.parts[i].elongation.value)
+                ));
+            }
+        }
+    }
+    doc.end_list();
+    for (_, _, g) in groups.iter().filter(|g| g.2.len() > 1) {
+        let names: Vec<String> = g
+            .iter()
+            .map(|&i| format!("δ({})", model.parts[i].name))
+            .collect();
+        doc.p(&format!(
+            "Parts spanning the same two nodes share one elongation: {} = {}.",
+            names.join(" = "),
+            f.small(r.parts[g[0]].elongation.value)
+        ));
+    }
+    if model.kind == Kind::Plane {
+        for (k, b) in model.rigids.iter().enumerate() {
+            let n0 = b.nodes[0];
+            let theta = r.rotations[k];
+            doc.p(&format!(
+                "Rigid body `{}` rotates θ = {} rad about `{}`; each of its nodes moves with it, v = v({}) + θ·Δx and u = u({}) − θ·Δy:",
+                b.name,
+                f.n(theta),
+                model.nodes[n0].name,
+                model.nodes[n0].name,
+                model.nodes[n0].name
+            ));
+            for &n in &b.nodes[1..] {
+                let dx = model.nodes[n].x.value - model.nodes[n0].x.value;
+                let dy = model.nodes[n].y.value - model.nodes[n0].y.value;
+                doc.eq(&format!(
+                    "v({}) = {} + {} · {} = {}",
+                    model.nodes[n].name,
+                    f.small_t(r.nodes[n0].displacement[1].value),
+                    f.plain_rad(theta),
+                    f.small_t(dx),
+                    f.small(r.nodes[n].displacement[1].value)
+                ));
+                if dy != 0.0 {
+                    doc.eq(&format!(
+                        "u({}) = {} - {} · {} = {}",
+                        model.nodes[n].name,
+                        f.small_t(r.nodes[n0].displacement[0].value),
+                        f.plain_rad(theta),
+                        f.small_t(dy),
+                        f.small(r.nodes[n].displacement[0].value)
+                    ));
+                }
+            }
+            doc.end_list();
+        }
+    }
+
+    doc.h(3, "Part forces and stresses");
+    // each term's temperature change and free strain on every part, found
+    // once (not searched for each part)
+    let np = model.parts.len();
+    let on_part: Vec<_> = combo
+        .terms
+        .iter()
+        .map(|&(case, _)| {
+            let c = &model.cases[case];
+            let t = if c.temperatures.is_empty() {
+                Vec::new()
+            } else {
+                c.temperature_by_part(np)
+            };
+            let s = if c.strains.is_empty() {
+                Vec::new()
+            } else {
+                c.strain_by_part(np)
+            };
+            (t, s)
+        })
+        .collect();
+    for (i, p) in model.parts.iter().enumerate() {
+        let pr = &r.parts[i];
+        let k = p.stiffness(&model.materials).value;
+        let free = pr.free_elongation.value;
+        let _ = writeln!(doc.out, "**{}**\n", p.name);
+        // Free elongation from its sources.
+        let mut sources = Vec::new();
+        let mut num = Vec::new();
+        if p.misfit.value != 0.0 {
+            sources.push("misfit".to_string());
+            num.push(f.small_t(p.misfit.value));
+        }
+        if let Some(m) = p.material() {
+            let mat = &model.materials[m];
+            for (&(_, factor), (temps, strains)) in combo.terms.iter().zip(&on_part) {
+                let t = temps.get(i).copied().flatten();
+                if let (Some(t), Some(alpha)) = (t, mat.alpha) {
+                    sources.push(if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor}·α·ΔT·L")
+                    } else {
+                        "α·ΔT·L".into()
+                    });
+                    let fac = if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor} · ")
+                    } else {
+                        String::new()
+                    };
+                    num.push(format!(
+                        "{fac}{} · {} · {}",
+                        f.alpha(alpha.value),
+                        f.temp(t.change.value),
+                        f.with(p.length.value, &f.d.small)
+                    ));
+                }
+                if let Some(s) = strains.get(i).copied().flatten() {
+                    let fac = if (factor - 1.0).abs() > 0.0 {
+                        format!("{factor} · ")
+                    } else {
+                        String::new()
+                    };
+                    sources.push(if fac.is_empty() {
+                        "ε·L".into()
+                    } else {
+                        format!("{factor}·ε·L")
+                    });
+                    num.push(format!(
+                        "{fac}{} · {}",
+                        f.microstrain(s.strain.value),
+                        f.with(p.length.value, &f.d.small)
+                    ));
+                }
+            }
+        }
+        if !sources.is_empty() {
+            doc.eq(&format!(
+                "δ₀ = {} = {} = {}",
+                sources.join(" + "),
+                num.join(" + "),
+                f.small(free)
+            ));
+        }
+        match pr.state {
+            PartState::Slack => {
+                let gap = if p.slack.value > 0.0 {
+                    format!("within its gap of {}", f.small(p.slack.value))
+                } else {
+                    format!("in the sense it cannot carry ({} only)", p.carries.name())
+                };
+                let _ = writeln!(
+                    doc.out,
+                    "- N = 0 {}: the part is slack; its free movement δ − δ₀ of {} is {gap}",
+                    f.d.force.name,
+                    f.small(pr.elongation.value - free)
+                );
+            }
+            PartState::Elastic => {
+                let offset = match p.carries {
+                    _ if p.slack.value == 0.0 => 0.0,
+                    Carries::Tension => p.slack.value,
+                    Carries::Compression => -p.slack.value,
+                    Carries::Both => {
+                        if pr.force.value >= 0.0 {
+                            p.slack.value
+                        } else {
+                            -p.slack.value
+                        }
+                    }
+                };
+                if offset == 0.0 {
+                    doc.eq(&format!(
+                        "N = k·(δ − δ₀) = {} · ({} - {}) = {}",
+                        f.stiffness(k),
+                        f.small_t(pr.elongation.value),
+                        f.small_t(free),
+                        f.force(pr.force.value)
+                    ));
+                } else {
+                    doc.eq(&format!(
+                        "N = k·(δ − δ₀ − gap) = {} · ({} - {} - {}) = {}",
+                        f.stiffness(k),
+                        f.small_t(pr.elongation.value),
+                        f.small_t(free),
+                        f.small_t(offset),
+                        f.force(pr.force.value)
+                    ));
+                }
+                if let (Some(area), Some(stress)) = (p.area(), pr.stress) {
+                    doc.eq(&format!(
+                        "σ = N / A = {} / {} = {}",
+                        f.force_t(pr.force.value),
+                        f.area(area.value),
+                        f.stress(stress.value)
+                    ));
+                    let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
+                    let extra = if offset == 0.0 {
+                        String::new()
+                    } else {
+                        format!(" + {}", f.small_t(offset))
+                    };
+                    doc.eq(&format!(
+                        "δ = N·L / (E·A) + δ₀{} = {} · {} / ({} · {}) + {}{extra} = {}",
+                        if offset == 0.0 { "" } else { " + gap" },
+                        f.force_t(pr.force.value),
+                        f.with(p.length.value, &f.d.small),
+                        f.stress(e),
+                        f.area(area.value),
+                        f.small_t(free),
+                        f.small(pr.elongation.value)
+                    ));
+                }
+            }
+        }
+        doc.end_list();
+    }
+
+    // Closed-form share for a pure parallel group.
+    for (a, b, g) in groups.iter().filter(|g| g.2.len() > 1) {
+        if model.kind != Kind::Axial {
+            continue;
+        }
+        let (fixed, free_node) = if model.nodes[*a].fixed[0] {
+            (*a, *b)
+        } else {
+            (*b, *a)
+        };
+        let only = incidence[free_node].len() == g.len();
+        let pure = model.nodes[fixed].fixed[0]
+            && !model.nodes[free_node].fixed[0]
+            && !in_body[free_node]
+            && only
+            && g.iter().all(|&i| {
+                r.parts[i].free_elongation.value == 0.0
+                    && r.parts[i].state == PartState::Elastic
+                    && model.parts[i].slack.value == 0.0
+            })
+            && loads[free_node][0] != 0.0
+            && r.nodes[fixed].displacement[0].value == 0.0;
+        if !pure {
+            continue;
+        }
+        let p_load = loads[free_node][0];
+        // Sign: the load pushes the free node; parts from fixed to free elongate with it.
+        let ks: Vec<f64> = g
+            .iter()
+            .map(|&i| model.parts[i].stiffness(&model.materials).value)
+            .collect();
+        let sum: f64 = ks.iter().sum();
+        doc.p(&format!(
+            "The parts between `{}` and `{}` act in parallel: each takes the load in proportion to its stiffness, F(i) = P·k(i) / Σk:",
+            model.nodes[fixed].name, model.nodes[free_node].name
+        ));
+        // A large bundle states Σk once instead of in every line.
+        let ksum = if ks.len() <= 8 {
+            ks.iter()
+                .map(|k| f.stiffness(*k))
+                .collect::<Vec<_>>()
+                .join(" + ")
+        } else {
+            doc.eq(&format!(
+                "Σk = {} (the {} parts' k summed)",
+                f.stiffness(sum),
+                ks.len()
+            ));
+            f.stiffness(sum)
+        };
+        for (j, &i) in g.iter().enumerate() {
+            // a load along the axis pulls a part whose far end lies further
+            // along it, and pushes one whose far end lies back toward it
+            let toward = if model.parts[i].ends[1] == free_node {
+                1.0
+            } else {
+                -1.0
+            };
+            let sign = toward * model.direction(i)[0];
+            let share = sign * p_load * ks[j] / sum;
+            doc.eq(&format!(
+                "F({}) = P·k({}) / Σk = {}{} · {} / ({ksum}) = {}",
+                model.parts[i].name,
+                model.parts[i].name,
+                if sign < 0.0 { "-" } else { "" },
+                f.force_t(p_load),
+                f.stiffness(ks[j]),
+                f.force(share)
+            ));
+        }
+        doc.end_list();
+    }
+
+    doc.h(3, "Reactions");
+    let mut rows = Vec::new();
+    let mut sum_r = [Vec::new(), Vec::new()];
+    let mut sum_p = [Vec::new(), Vec::new()];
+    for (n, node) in model.nodes.iter().enumerate() {
+        for d in 0..nd {
+            if loads[n][d] != 0.0 {
+                sum_p[d].push(f.force_t(loads[n][d]));
+            }
+        }
+        if !node.fixed.iter().take(nd).any(|x| *x) {
+            continue;
+        }
+        let mut row = vec![format!("`{}`", node.name)];
+        for d in 0..nd {
+            if node.fixed[d] {
+                row.push(f.force(r.nodes[n].reaction[d].value));
+                if r.nodes[n].reaction[d].value != 0.0 {
+                    sum_r[d].push(f.force_t(r.nodes[n].reaction[d].value));
+                }
+            } else {
+                row.push("—".into());
+            }
+        }
+        rows.push(row);
+    }
+    if nd == 1 {
+        doc.table(&["Node", "R"], &rows, &[1]);
+    } else {
+        doc.table(&["Node", "Rx", "Ry"], &rows, &[1, 2]);
+    }
+    doc.p("Overall equilibrium, reactions and loads together:");
+    for d in 0..nd {
+        let mut all: Vec<String> = sum_r[d].clone();
+        all.extend(sum_p[d].iter().cloned());
+        if all.is_empty() {
+            all.push(f.force(0.0));
+        }
+        let label = if nd == 2 {
+            format!("ΣR{} + ΣP{}", axis[d], axis[d])
+        } else {
+            "ΣR + ΣP".into()
+        };
+        doc.eq(&format!("{label} = {} = {}", all.join(" + "), f.force(0.0)));
+    }
+    doc.end_list();
+    doc.p(&format!(
+        "Largest out-of-balance force computed from the unrounded part forces, loads and reactions: {} (largest force in the combination {}).",
+        if r.equilibrium_residual.value == 0.0 {
+            format!("0 {}", f.d.force.name)
+        } else {
+            format!("{:.1e} {}", f.d.force.value(r.equilibrium_residual.value), f.d.force.name)
+        },
+        f.force(r.force_scale.value)
+    ));
+}
+
+impl Fmt<'_> {
+    /// A strain in microstrain, in parentheses when negative.
+    pub(super) fn microstrain(&self, v: f64) -> String {
+        bracket_negative(format!("{} µε", self.n(v * 1e6)))
+    }
+
+    pub(super) fn plain_rad(&self, v: f64) -> String {
+        bracket_negative(format!("{} rad", self.n(v)))
+    }
+}

@@ -1,0 +1,328 @@
+//! The inputs section: title, materials, nodes, parts, lets and cases.
+
+#![allow(clippy::wildcard_imports)] // the report's shared imports and helpers
+
+use super::*;
+
+pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
+    doc.h(2, "Inputs");
+    // each let's value as shown, found by name once
+    let shown = |l: &crate::model::LetValue| {
+        if l.value.dim == Dimension::LENGTH {
+            f.length(l.value.value)
+        } else {
+            f.d.quantity(l.value)
+        }
+    };
+    let values: std::collections::HashMap<&str, String> = model
+        .lets
+        .iter()
+        .map(|l| (l.name.as_str(), shown(l)))
+        .collect();
+    if !model.lets.is_empty() {
+        doc.h(3, "Design quantities");
+        let with_sources = model.lets.iter().any(|l| !l.sources.is_empty());
+        let rows: Vec<Vec<String>> = model
+            .lets
+            .iter()
+            .map(|l| {
+                let expr = source.slice(l.expr.span).trim().replace('\n', " ");
+                let value = shown(l);
+                // a value derived from others: its expression with their
+                // values substituted, once
+                let expr = if crate::report::substitute::uses_names(&l.expr) {
+                    let with = crate::report::substitute::substituted(&l.expr, source, &|n| {
+                        values.get(n).cloned()
+                    });
+                    format!("{} = {}", code(&expr), code(&with))
+                } else {
+                    code(&expr)
+                };
+                let mut row = vec![text(&l.name), expr, value];
+                if with_sources {
+                    row.push(if l.sources.is_empty() {
+                        "—".into()
+                    } else {
+                        l.sources.join("; ")
+                    });
+                }
+                row
+            })
+            .collect();
+        if with_sources {
+            doc.table(&["Name", "Expression", "Value", "Source"], &rows, &[2]);
+        } else {
+            doc.table(&["Name", "Expression", "Value"], &rows, &[2]);
+        }
+    }
+    doc.h(3, "Materials");
+    let rows: Vec<Vec<String>> = model
+        .materials
+        .iter()
+        .map(|m| {
+            let opt =
+                |p: Option<uom::si::f64::Pressure>| p.map_or("—".into(), |p| f.stress(p.value));
+            let allow = match (
+                m.allowable_tension.or(m.allowable),
+                m.allowable_compression.or(m.allowable),
+            ) {
+                (None, None) => "—".to_string(),
+                (t, c) if t == c => opt(t),
+                (Some(t), None) => format!("{} in tension", f.stress(t.value)),
+                (None, Some(c)) => format!("{} in compression", f.stress(c.value)),
+                (t, c) => format!("{} in tension, {} in compression", opt(t), opt(c)),
+            };
+            let e = if m.e_sources.is_empty() {
+                f.stress(m.e.value)
+            } else {
+                format!("{} ({})", f.stress(m.e.value), m.e_sources.join("; "))
+            };
+            vec![
+                text(&m.name),
+                e,
+                m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
+                opt(m.yield_strength),
+                allow,
+            ]
+        })
+        .collect();
+    doc.table(
+        &["Material", "E", "α", "Yield", "Allowable"],
+        &rows,
+        &[1, 2, 3],
+    );
+    // values derived from other names, substituted once
+    let mut any = false;
+    for m in &model.materials {
+        for (key, e) in &m.derived {
+            let with = crate::report::substitute::substituted(e, source, &|n| values.get(n).cloned());
+            let value = match *key {
+                "E" => f.stress(m.e.value),
+                "alpha" => m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
+                "creep" => m.creep.map_or("—".into(), |c| f.n(c)),
+                _ => [
+                    ("yield", m.yield_strength),
+                    ("yield_compression", m.yield_compression),
+                    ("allowable", m.allowable),
+                    ("allowable_tension", m.allowable_tension),
+                    ("allowable_compression", m.allowable_compression),
+                ]
+                .iter()
+                .find(|(k, _)| k == key)
+                .and_then(|(_, v)| *v)
+                .map_or("—".into(), |v| f.stress(v.value)),
+            };
+            if !any {
+                doc.p("Material values derived from other quantities, as written and with their values substituted:");
+                any = true;
+            }
+            doc.eq(&format!(
+                "{key}({}): {} = {} = {value}",
+                text(&m.name),
+                code(source.slice(e.span).trim()),
+                code(&with)
+            ));
+        }
+    }
+    if any {
+        doc.end_list();
+    }
+
+    doc.h(3, "Nodes and supports");
+    let rows: Vec<Vec<String>> = model
+        .nodes
+        .iter()
+        .map(|n| {
+            let at = match model.kind {
+                Kind::Axial => f.length(n.x.value),
+                Kind::Plane => format!("({}, {})", f.length(n.x.value), f.length(n.y.value)),
+            };
+            let sup = match (model.kind, n.fixed) {
+                (Kind::Axial, [true, _]) | (Kind::Plane, [true, true]) => "fixed",
+                (Kind::Plane, [true, false]) => "fixed in x (roller)",
+                (Kind::Plane, [false, true]) => "fixed in y (roller)",
+                _ => "free",
+            };
+            vec![text(&n.name), at, sup.to_string()]
+        })
+        .collect();
+    doc.table(&["Node", "Position", "Support"], &rows, &[1]);
+    for r in &model.rigids {
+        let names: Vec<String> = r
+            .nodes
+            .iter()
+            .map(|&n| format!("`{}`", model.nodes[n].name))
+            .collect();
+        doc.p(&format!(
+            "Rigid body `{}`: nodes {} move as one rigid body{}.",
+            r.name,
+            names.join(", "),
+            if model.kind == Kind::Plane {
+                format!(
+                    " (two translations and a small rotation θ about `{}`)",
+                    model.nodes[r.nodes[0]].name
+                )
+            } else {
+                String::new()
+            }
+        ));
+    }
+    for t in &model.ties {
+        let names: Vec<String> = t
+            .nodes
+            .iter()
+            .map(|&n| format!("`{}`", model.nodes[n].name))
+            .collect();
+        doc.p(&format!("Tie: nodes {} move together.", names.join(", ")));
+    }
+
+    doc.h(3, "Parts");
+    let rows: Vec<Vec<String>> = model
+        .parts
+        .iter()
+        .map(|p| {
+            let ends = format!(
+                "`{}` → `{}`",
+                model.nodes[p.ends[0]].name, model.nodes[p.ends[1]].name
+            );
+            let (mat, area) = match &p.law {
+                Law::Member {
+                    material,
+                    area,
+                    section,
+                    ..
+                } => (
+                    text(&model.materials[*material].name),
+                    match section {
+                        Some(s) => format!("{} ({s})", f.area(area.value)),
+                        None => f.area(area.value),
+                    },
+                ),
+                Law::Spring { .. } => ("spring".into(), "—".into()),
+            };
+            let mut notes = Vec::new();
+            if p.carries != Carries::Both {
+                notes.push(format!("{} only", p.carries.name()));
+            }
+            if p.slack.value > 0.0 {
+                notes.push(format!("gap {}", f.small(p.slack.value)));
+            }
+            if p.misfit.value != 0.0 {
+                notes.push(format!("misfit {}", f.small(p.misfit.value)));
+            }
+            vec![
+                text(&p.name),
+                ends,
+                mat,
+                area,
+                f.length(p.length.value),
+                f.stiffness(p.stiffness(&model.materials).value),
+                if notes.is_empty() {
+                    "—".into()
+                } else {
+                    notes.join(", ")
+                },
+            ]
+        })
+        .collect();
+    doc.table(
+        &["Part", "Ends", "Material", "A", "L", "k", "Notes"],
+        &rows,
+        &[3, 4, 5],
+    );
+    doc.p("Axial stiffness of each part:");
+    for p in &model.parts {
+        let k = p.stiffness(&model.materials).value;
+        match &p.law {
+            Law::Member { material, area, .. } => {
+                let e = model.materials[*material].e.value;
+                doc.eq(&format!(
+                    "k({}) = E·A / L = {} · {} / {} = {}",
+                    p.name,
+                    f.stress(e),
+                    f.area(area.value),
+                    f.with(p.length.value, &f.d.small),
+                    f.stiffness(k)
+                ));
+            }
+            Law::Spring { .. } => doc.eq(&format!(
+                "k({}) = {} (spring, as given)",
+                p.name,
+                f.stiffness(k)
+            )),
+        }
+    }
+    doc.end_list();
+
+    doc.h(3, "Load cases and combinations");
+    let mut rows = Vec::new();
+    for c in &model.cases {
+        let mut parts: Vec<String> = Vec::new();
+        for l in &c.loads {
+            let node = &model.nodes[l.node].name;
+            parts.push(match model.kind {
+                Kind::Axial => format!("load `{node}` {}", f.force(l.force[0].value)),
+                Kind::Plane => format!(
+                    "load `{node}` ({}, {})",
+                    f.force(l.force[0].value),
+                    f.force(l.force[1].value)
+                ),
+            });
+        }
+        for t in &c.temperatures {
+            let on = t.part.map_or("all parts".to_string(), |i| {
+                format!("`{}`", model.parts[i].name)
+            });
+            parts.push(format!(
+                "ΔT {} on {on}",
+                f.temp(t.change.value).trim_matches(['(', ')'])
+            ));
+        }
+        for s in &c.strains {
+            parts.push(format!(
+                "free strain {} µε on `{}`",
+                f.n(s.strain.value * 1e6),
+                model.parts[s.part].name
+            ));
+        }
+        for s in &c.settlements {
+            let dir = if model.kind == Kind::Plane {
+                if s.direction == 0 {
+                    " x"
+                } else {
+                    " y"
+                }
+            } else {
+                ""
+            };
+            parts.push(format!(
+                "`{}`{dir} moves {}",
+                model.nodes[s.node].name,
+                f.small(s.movement.value)
+            ));
+        }
+        rows.push(vec![
+            format!(
+                "`{}`{}",
+                c.name,
+                if c.sustained { " (sustained)" } else { "" }
+            ),
+            if parts.is_empty() {
+                "no loads (misfits only)".into()
+            } else {
+                parts.join("; ")
+            },
+        ]);
+    }
+    doc.table(&["Case", "Actions"], &rows, &[]);
+    let rows: Vec<Vec<String>> = (0..model.combinations.len())
+        .map(|i| {
+            vec![
+                format!("`{}`", model.combinations[i].name),
+                combination_text(model, i),
+            ]
+        })
+        .collect();
+    doc.table(&["Combination", "Definition"], &rows, &[]);
+    doc.p("Every combination is solved directly with its factored actions (never by adding case results), so parts that go slack behave right; misfits act in every combination at full value.");
+}

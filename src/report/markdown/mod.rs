@@ -1,0 +1,469 @@
+//! The Markdown calculation: every input, every substituted equation, the
+//! checks. Equations are plain Unicode text (σ, δ, Σ, ², ·) so they read the
+//! same on a code host, in the HTML, in a terminal and in a diff:
+//! `symbols = numbers with units = result`.
+
+use std::fmt::Write as _;
+
+use crate::report::display::{number, utilization, Display, Scales, Shown};
+use crate::report::table::combination_text;
+use crate::checks::Origin;
+use crate::model::{Carries, Kind, Law, Model};
+use crate::solve::{PartState, Solution};
+use crate::source::Source;
+use crate::units::Dimension;
+
+mod capacity;
+mod combination;
+mod inputs;
+mod long_term;
+mod stability;
+
+use capacity::capacity_section;
+use combination::{combination, incidence};
+use long_term::long_term_section;
+use stability::buckling_section;
+
+/// The cautions every report carries.
+pub const CAUTIONS: &[&str] = &[
+    "This calculation was prepared with tandem, a design aid. Its results must be checked by a qualified engineer before they are relied on; local codes and licensed practice govern.",
+    "The model is linear-elastic and small-displacement; parts are pin-ended axial members or springs, and parts that share nodes are taken as perfectly bonded.",
+    "Checks are only those written in the calc file and the material allowables it gives; they do not replace the checks the governing code requires.",
+];
+
+struct Doc {
+    out: String,
+}
+
+impl Doc {
+    fn h(&mut self, level: usize, text: &str) {
+        let _ = write!(self.out, "\n{} {}\n\n", "#".repeat(level), text);
+    }
+    fn p(&mut self, text: &str) {
+        let _ = write!(self.out, "{text}\n\n");
+    }
+    fn eq(&mut self, text: &str) {
+        let _ = writeln!(self.out, "- {text}");
+    }
+    fn end_list(&mut self) {
+        self.out.push('\n');
+    }
+    fn table(&mut self, head: &[&str], rows: &[Vec<String>], right: &[usize]) {
+        let cell = |s: &str| s.replace('|', "\\|");
+        let _ = writeln!(
+            self.out,
+            "| {} |",
+            head.iter().map(|h| cell(h)).collect::<Vec<_>>().join(" | ")
+        );
+        let _ = writeln!(
+            self.out,
+            "|{}|",
+            (0..head.len())
+                .map(|i| if right.contains(&i) { "---:" } else { "---" })
+                .collect::<Vec<_>>()
+                .join("|")
+        );
+        for r in rows {
+            let _ = writeln!(
+                self.out,
+                "| {} |",
+                r.iter().map(|c| cell(c)).collect::<Vec<_>>().join(" | ")
+            );
+        }
+        self.out.push('\n');
+    }
+}
+
+/// Formatting helpers bound to one display.
+struct Fmt<'a> {
+    d: &'a Display,
+    /// The scales of the combination being written (round-off prints as 0).
+    scales: std::cell::Cell<Scales>,
+}
+
+impl Fmt<'_> {
+    fn n(&self, v: f64) -> String {
+        number(v, self.d.digits)
+    }
+    fn with(&self, si: f64, u: &Shown) -> String {
+        format!("{} {}", self.n(u.value(si)), u.name)
+    }
+    /// A value as it stands inside a sum or product: negatives in parentheses.
+    fn term(&self, si: f64, u: &Shown) -> String {
+        bracket_negative(self.with(si, u))
+    }
+    fn force(&self, si: f64) -> String {
+        self.with(self.scales.get().force(si), &self.d.force)
+    }
+    fn force_t(&self, si: f64) -> String {
+        self.term(self.scales.get().force(si), &self.d.force)
+    }
+    fn stress(&self, si: f64) -> String {
+        self.with(self.scales.get().stress(si), &self.d.stress)
+    }
+    fn small(&self, si: f64) -> String {
+        self.with(self.scales.get().small(si), &self.d.small)
+    }
+    fn small_t(&self, si: f64) -> String {
+        self.term(self.scales.get().small(si), &self.d.small)
+    }
+    fn length(&self, si: f64) -> String {
+        self.with(si, &self.d.length)
+    }
+    fn area(&self, si: f64) -> String {
+        self.with(si, &self.d.area)
+    }
+    fn stiffness(&self, si: f64) -> String {
+        self.with(si, &self.d.stiffness)
+    }
+    fn temp(&self, si: f64) -> String {
+        self.term(si, &self.d.temperature)
+    }
+    fn alpha(&self, si: f64) -> String {
+        let t = &self.d.temperature;
+        format!("{:.3e}/{}", si * t.factor, degree(&t.name))
+    }
+    fn plain(&self, v: f64) -> String {
+        bracket_negative(self.n(v))
+    }
+}
+
+/// User text (a name, a label, a title field) as Markdown that shows it as
+/// written: the characters Markdown would read as markup are escaped, so
+/// `0.6*fy*phi` keeps its signs and raw HTML never passes into the page.
+fn text(s: &str) -> String {
+    let mut out = String::with_capacity(s.len() + 8);
+    for c in s.chars() {
+        match c {
+            '\\' | '`' | '*' | '_' | '<' | '>' | '[' | ']' | '~' | '#' | '&' => {
+                out.push('\\');
+                out.push(c);
+            }
+            '\n' | '\r' => out.push(' '),
+            _ => out.push(c),
+        }
+    }
+    out
+}
+
+/// User text as a code span, with a fence longer than any run of
+/// backticks inside it.
+fn code(s: &str) -> String {
+    let s = s.replace(['\n', '\r'], " ");
+    let mut longest = 0;
+    let mut run = 0;
+    for c in s.chars() {
+        if c == '`' {
+            run += 1;
+            longest = longest.max(run);
+        } else {
+            run = 0;
+        }
+    }
+    let fence = "`".repeat(longest + 1);
+    let pad = if s.starts_with('`') || s.ends_with('`') {
+        " "
+    } else {
+        ""
+    };
+    format!("{fence}{pad}{s}{pad}{fence}")
+}
+
+/// A negative value in parentheses, so `a - (-b)` reads unambiguously.
+fn bracket_negative(s: String) -> String {
+    if s.starts_with('-') {
+        format!("({s})")
+    } else {
+        s
+    }
+}
+
+fn degree(name: &str) -> String {
+    match name {
+        "degF" => "°F".into(),
+        "degC" => "°C".into(),
+        other => other.to_string(),
+    }
+}
+
+/// The status-line outcome of `n` governing checks of which `fails` fail,
+/// in plain English ("both checks pass", "1 of 3 checks fails").
+fn checks_outcome(n: usize, fails: usize) -> String {
+    match (n, fails) {
+        (1, 0) => "the one check passes".to_string(),
+        (2, 0) => "both checks pass".to_string(),
+        (n, 0) => format!("all {n} checks pass"),
+        (1, _) => "**the one check fails**".to_string(),
+        (2, 2) => "**both checks fail**".to_string(),
+        (n, f) if f == n => format!("**all {n} checks fail**"),
+        (n, 1) => format!("**1 of {n} checks fails**"),
+        (n, f) => format!("**{f} of {n} checks fail**"),
+    }
+}
+
+/// Write the whole calculation for an analysed file.
+#[allow(clippy::too_many_lines)]
+pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
+    let f = Fmt {
+        d: display,
+        scales: std::cell::Cell::default(),
+    };
+    // Room for the whole document up front: grown by doubling, a report of
+    // hundreds of MiB would be copied and its fresh pages touched again at
+    // each step. About 700 bytes a part or node in each combination is an
+    // upper bound for the benchmark assemblies (610 MiB for 10^6 parts and
+    // 10^6 nodes, one combination). Memory reserved and never written costs
+    // nothing on the usual systems; if the reservation is refused, the
+    // string grows as it is written.
+    let mut doc = Doc { out: String::new() };
+    let per_combination = 700 * (model.parts.len() + model.nodes.len());
+    let estimate = 64 * 1024 + per_combination * (solution.combinations.len() + 1);
+    let _ = doc.out.try_reserve(estimate);
+    let title = model
+        .title
+        .get("title")
+        .unwrap_or("Load-sharing calculation");
+    let _ = write!(doc.out, "# {}\n\n", text(title));
+    let mut rows = Vec::new();
+    for key in crate::model::Title::KEYS.iter().skip(1) {
+        if let Some(v) = model.title.get(key) {
+            let mut k = (*key).to_string();
+            if let Some(c) = k.get_mut(0..1) {
+                c.make_ascii_uppercase();
+            }
+            rows.push(vec![k, text(v)]);
+        }
+    }
+    rows.push(vec!["Calc file".into(), code(&source.name)]);
+    doc.table(&["Item", "Value"], &rows, &[]);
+
+    // Status line.
+    let governing = checks.governing();
+    let fails = checks.failures();
+    let status = if governing.is_empty() {
+        "no checks are written in this calc".to_string()
+    } else {
+        checks_outcome(governing.len(), fails)
+    };
+    let highest = checks.highest().map_or(String::new(), |o| {
+        format!(
+            "; highest utilization {} ({}, combination `{}`)",
+            utilization(o.utilization),
+            text(&o.label),
+            solution.combinations[o.combination].name
+        )
+    });
+    let long = match &a.long_term_checks {
+        Some((_, c)) => format!(
+            "; {} in the long-term state",
+            checks_outcome(c.governing().len(), c.failures())
+        ),
+        None => String::new(),
+    };
+    doc.p(&format!("**Status:** {status}{highest}{long}."));
+    if !a.left_out.is_empty() {
+        doc.p(&format!(
+            "**Incomplete:** {}; this calculation is not complete and does not stand as a design check.",
+            crate::report::left_out(&a.left_out)
+        ));
+    }
+
+    // Summary.
+    doc.h(2, "Summary");
+    if !governing.is_empty() {
+        let rows: Vec<Vec<String>> = governing
+            .iter()
+            .map(|o| {
+                vec![
+                    text(&o.label),
+                    format!("`{}`", solution.combinations[o.combination].name),
+                    utilization(o.utilization),
+                    if o.pass {
+                        "pass".into()
+                    } else {
+                        "**FAIL**".into()
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &["Check", "Governing combination", "Utilization", "Result"],
+            &rows,
+            &[2],
+        );
+    }
+    let mut rows = Vec::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let (mut fmax, mut cf) = (0.0f64, 0usize);
+        for (k, c) in solution.combinations.iter().enumerate() {
+            let v = c.parts[i].force.value;
+            // a tie within round-off keeps the first combination
+            if crate::checks::exceeds(v.abs(), fmax.abs()) {
+                fmax = v;
+                cf = k;
+            }
+        }
+        let smax = solution.combinations[cf].parts[i].stress.map(|s| s.value);
+        rows.push(vec![
+            text(&p.name),
+            f.force(fmax),
+            smax.map_or("—".into(), |s| f.stress(s)),
+            format!("`{}`", solution.combinations[cf].name),
+        ]);
+    }
+    doc.p("Largest force in each part over all combinations (tension positive):");
+    doc.table(&["Part", "Force", "Stress", "Combination"], &rows, &[1, 2]);
+    for w in &solution.warnings {
+        doc.p(&format!("**Warning:** {w}."));
+    }
+    for b in &a.buckling {
+        for w in b.warnings(model) {
+            doc.p(&format!("**Warning:** {w}."));
+        }
+    }
+    for (k, pi, ratio) in &checks.yielded {
+        doc.p(&format!(
+            "**Warning:** in combination `{}` part `{}` is stressed to {} × its yield strength; elastic results are not valid beyond yield.",
+            solution.combinations[*k].name,
+            model.parts[*pi].name,
+            number(*ratio, 3)
+        ));
+    }
+
+    doc.h(2, "Cautions");
+    for c in CAUTIONS {
+        doc.eq(c);
+    }
+    doc.end_list();
+
+    doc.h(2, "Method and sign convention");
+    doc.p(&format!(
+        "Where several parts share a load, statics alone cannot split it among them; the calculation therefore joins three sets of equations. Each part obeys Hooke's law, N = k·(δ − δ₀), with k = E·A/L and δ₀ the elongation it would take free of force (misfit, temperature α·ΔT·L, free strain ε·L). Compatibility requires the parts' elongations to follow from the displacements of the nodes they share{}. Equilibrium holds at every free node. The three are solved together by the direct stiffness method for every load combination; supports, ties and rigid bodies are eliminated exactly.",
+        if model.rigids.is_empty() { "" } else { " and from the small rigid-body motions of the rigid bodies" }
+    ));
+    doc.p(&match model.kind {
+        Kind::Axial => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along the axis (toward increasing position).".to_string(),
+        Kind::Plane => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along +x and +y; rotations are positive counter-clockwise.".to_string(),
+    });
+    doc.p(&format!(
+        "Values are shown to {} significant figures; each equation is written in symbols, then with its numbers and units substituted, then its result.",
+        display.digits
+    ));
+
+    inputs::section(&mut doc, &f, source, model);
+
+    let incidence = incidence(model);
+    for ci in 0..solution.combinations.len() {
+        combination(&mut doc, &f, model, solution, ci, &incidence);
+    }
+
+    capacity_section(&mut doc, &f, a);
+    long_term_section(&mut doc, &f, a);
+    buckling_section(&mut doc, &f, a);
+
+    doc.h(2, "Design checks");
+    if checks.outcomes.is_empty() {
+        doc.p("The calc file writes no checks and its materials give no allowable stresses.");
+    } else {
+        let gov: std::collections::HashSet<usize> =
+            checks.governing_indices().into_iter().collect();
+        let rows: Vec<Vec<String>> = checks
+            .outcomes
+            .iter()
+            .enumerate()
+            .map(|(k, o)| {
+                let is_gov = gov.contains(&k);
+                vec![
+                    text(&o.label),
+                    if is_gov {
+                        format!("`{}` (governs)", solution.combinations[o.combination].name)
+                    } else {
+                        format!("`{}`", solution.combinations[o.combination].name)
+                    },
+                    display.quantity(o.written().0),
+                    format!("{} {}", o.op.symbol(), display.quantity(o.written().1)),
+                    utilization(o.utilization),
+                    if o.pass {
+                        "pass".into()
+                    } else {
+                        "**FAIL**".into()
+                    },
+                ]
+            })
+            .collect();
+        doc.table(
+            &[
+                "Check",
+                "Combination",
+                "Value",
+                "Limit",
+                "Utilization",
+                "Result",
+            ],
+            &rows,
+            &[2, 3, 4],
+        );
+        let lines: Vec<String> = model
+            .checks
+            .iter()
+            .map(|c| {
+                let mut applies = String::new();
+                if let Some((var, member)) = &c.member {
+                    applies.push_str(&format!(" (`{var}` = `{member}`)"));
+                }
+                if c.applies != crate::model::Applies::default() {
+                    applies.push_str(&format!(" (applies to {})", c.applies.describe(model)));
+                }
+                format!(
+                    "\"{}\"{applies}: {} {} {}",
+                    text(&c.label),
+                    code(source.slice(c.lhs.span).trim()),
+                    c.op.symbol(),
+                    code(source.slice(c.rhs.span).trim())
+                )
+            })
+            .collect();
+        if !lines.is_empty() {
+            doc.p("As written in the calc file (utilization is demand over capacity: the left side over the right for `<=`, the right side over the left for `>=`):");
+            for l in lines {
+                doc.eq(&l);
+            }
+            doc.end_list();
+        }
+        if checks
+            .outcomes
+            .iter()
+            .any(|o| matches!(o.origin, Origin::Allowable(_)))
+        {
+            doc.p("Allowable-stress checks compare each part's stress in its sense (tension or compression) with its material's allowable for that sense.");
+        }
+        if checks
+            .outcomes
+            .iter()
+            .any(|o| matches!(o.origin, Origin::Buckling(_)))
+        {
+            doc.p("Euler-load checks compare the compression in each part (or parallel group) with a `buckling_length` against its Euler load P_e times its `euler_fraction` (see Stability).");
+        }
+    }
+    doc.out.trim_end().to_string() + "\n"
+}
+
+#[cfg(test)]
+mod tests {
+    use super::checks_outcome;
+
+    #[test]
+    fn the_status_line_counts_checks_in_plain_english() {
+        // Agreement of number in English (common practice): one check
+        // passes, two checks pass.
+        assert_eq!(checks_outcome(1, 0), "the one check passes");
+        assert_eq!(checks_outcome(2, 0), "both checks pass");
+        assert_eq!(checks_outcome(5, 0), "all 5 checks pass");
+        assert_eq!(checks_outcome(1, 1), "**the one check fails**");
+        assert_eq!(checks_outcome(2, 1), "**1 of 2 checks fails**");
+        assert_eq!(checks_outcome(2, 2), "**both checks fail**");
+        assert_eq!(checks_outcome(4, 4), "**all 4 checks fail**");
+        assert_eq!(checks_outcome(4, 3), "**3 of 4 checks fail**");
+    }
+}
