@@ -94,7 +94,9 @@ fn parse_chunks(
 fn statement(text: &str, start: usize, end: usize) -> Result<Option<Decl>> {
     let body = &text[start..end];
     let first = body.trim_start_matches([' ', '\t', '\r']);
-    let word = first.split(|c: char| !(c.is_ascii_alphanumeric() || c == '_')).next();
+    let word = first
+        .split(|c: char| !(c.is_ascii_alphanumeric() || c == '_'))
+        .next();
     let shortcut = match word {
         Some("node") => Some(Rule::node_statement),
         Some("part") => Some(Rule::part_statement),
@@ -1061,7 +1063,9 @@ fn flat<O>(
     } else {
         // The span runs from the first operand to the last, so that trailing
         // blanks and comments are never part of it.
-        let span = rest.last().map_or(first.span, |(_, e)| first.span.to(e.span));
+        let span = rest
+            .last()
+            .map_or(first.span, |(_, e)| first.span.to(e.span));
         Expr {
             kind: make(Box::new(first), rest),
             span,

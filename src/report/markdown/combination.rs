@@ -49,7 +49,6 @@ pub(super) fn combination_body(
         ),
     );
     let nd = model.kind.dofs();
-    let axis = ["x", "y"];
     // Loads on each node component.
     let mut loads = vec![[0.0f64; 2]; model.nodes.len()];
     for &(case, factor) in &combo.terms {
@@ -68,7 +67,73 @@ pub(super) fn combination_body(
     {
         in_body[*n] = true;
     }
+    let groups = parallel_groups(model);
+    let c = Combo {
+        f,
+        groups: &groups,
+        model,
+        r,
+        ci,
+        incidence,
+        loads: &loads,
+        in_body: &in_body,
+        nd,
+    };
+    equilibrium(doc, &c);
+    compatibility(doc, &c);
+    part_forces(doc, &c);
+    parallel_share(doc, &c);
+    reactions(doc, &c);
+}
 
+/// What every section of a combination reads.
+#[derive(Clone, Copy)]
+struct Combo<'a> {
+    f: &'a Fmt<'a>,
+    model: &'a Model,
+    r: &'a crate::solve::CombinationResult,
+    ci: usize,
+    incidence: &'a [Vec<(usize, f64, [f64; 2])>],
+    /// The combined load on each node component.
+    loads: &'a [[f64; 2]],
+    /// Whether each node belongs to a rigid body or a tie.
+    in_body: &'a [bool],
+    nd: usize,
+    /// Parts that span the same two nodes (and share one elongation).
+    groups: &'a [(usize, usize, Vec<usize>)],
+}
+
+/// The parts that span each pair of nodes, in the order first met.
+fn parallel_groups(model: &Model) -> Vec<(usize, usize, Vec<usize>)> {
+    let mut groups: Vec<(usize, usize, Vec<usize>)> = Vec::new();
+    let mut group_of: std::collections::HashMap<(usize, usize), usize> =
+        std::collections::HashMap::new();
+    for (i, p) in model.parts.iter().enumerate() {
+        let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
+        match group_of.get(&key) {
+            Some(&g) => groups[g].2.push(i),
+            None => {
+                group_of.insert(key, groups.len());
+                groups.push((key.0, key.1, vec![i]));
+            }
+        }
+    }
+    groups
+}
+
+/// Equilibrium at every free node component, with its numbers.
+fn equilibrium(doc: &mut Doc, c: &Combo<'_>) {
+    let Combo {
+        f,
+        model,
+        r,
+        incidence,
+        loads,
+        in_body,
+        nd,
+        ..
+    } = *c;
+    let axis = ["x", "y"];
     doc.h(3, "Equilibrium");
     let mut first_equation = true;
     for (n, node) in model.nodes.iter().enumerate() {
@@ -201,22 +266,18 @@ pub(super) fn combination_body(
         }
         doc.end_list();
     }
+}
 
+/// Compatibility: the elongation of each part from its ends' movements.
+fn compatibility(doc: &mut Doc, c: &Combo<'_>) {
+    let Combo {
+        f,
+        groups,
+        model,
+        r,
+        ..
+    } = *c;
     doc.h(3, "Compatibility");
-    // Parts that span the same two nodes share one elongation.
-    let mut groups: Vec<(usize, usize, Vec<usize>)> = Vec::new();
-    let mut group_of: std::collections::HashMap<(usize, usize), usize> =
-        std::collections::HashMap::new();
-    for (i, p) in model.parts.iter().enumerate() {
-        let key = (p.ends[0].min(p.ends[1]), p.ends[0].max(p.ends[1]));
-        match group_of.get(&key) {
-            Some(&g) => groups[g].2.push(i),
-            None => {
-                group_of.insert(key, groups.len());
-                groups.push((key.0, key.1, vec![i]));
-            }
-        }
-    }
     doc.p(match model.kind {
         Kind::Axial => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ, with ĉ = +1 when B lies further along the axis than A and −1 when it lies back:",
         Kind::Plane => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ with ĉ the unit vector from A to B:",
@@ -311,11 +372,18 @@ pub(super) fn combination_body(
             doc.end_list();
         }
     }
+}
 
+/// Each part's force and stress from its law, with its free elongation.
+fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
+    let Combo {
+        f, model, r, ci, ..
+    } = *c;
     doc.h(3, "Part forces and stresses");
     // each term's temperature change and free strain on every part, found
     // once (not searched for each part)
     let np = model.parts.len();
+    let combo = &model.combinations[ci];
     let on_part: Vec<_> = combo
         .terms
         .iter()
@@ -468,7 +536,20 @@ pub(super) fn combination_body(
         }
         doc.end_list();
     }
+}
 
+/// The closed-form share of a pure parallel group, F(i) = P·k(i) / Σk.
+fn parallel_share(doc: &mut Doc, c: &Combo<'_>) {
+    let Combo {
+        f,
+        groups,
+        model,
+        r,
+        incidence,
+        loads,
+        in_body,
+        ..
+    } = *c;
     // Closed-form share for a pure parallel group.
     for (a, b, g) in groups.iter().filter(|g| g.2.len() > 1) {
         if model.kind != Kind::Axial {
@@ -541,7 +622,19 @@ pub(super) fn combination_body(
         }
         doc.end_list();
     }
+}
 
+/// The reactions, and overall equilibrium of reactions and loads.
+fn reactions(doc: &mut Doc, c: &Combo<'_>) {
+    let Combo {
+        f,
+        model,
+        r,
+        loads,
+        nd,
+        ..
+    } = *c;
+    let axis = ["x", "y"];
     doc.h(3, "Reactions");
     let mut rows = Vec::new();
     let mut sum_r = [Vec::new(), Vec::new()];

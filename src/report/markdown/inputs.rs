@@ -7,18 +7,35 @@ use super::*;
 pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model) {
     doc.h(2, "Inputs");
     // each let's value as shown, found by name once
-    let shown = |l: &crate::model::LetValue| {
-        if l.value.dim == Dimension::LENGTH {
-            f.length(l.value.value)
-        } else {
-            f.d.quantity(l.value)
-        }
-    };
     let values: std::collections::HashMap<&str, String> = model
         .lets
         .iter()
-        .map(|l| (l.name.as_str(), shown(l)))
+        .map(|l| (l.name.as_str(), shown(f, l)))
         .collect();
+    design_quantities(doc, f, source, model, &values);
+    materials(doc, f, source, model, &values);
+    nodes(doc, f, model);
+    parts(doc, f, model);
+    cases(doc, f, model);
+}
+
+/// A `let`'s value as the report shows it.
+fn shown(f: &Fmt<'_>, l: &crate::model::LetValue) -> String {
+    if l.value.dim == Dimension::LENGTH {
+        f.length(l.value.value)
+    } else {
+        f.d.quantity(l.value)
+    }
+}
+
+/// The `let`s, with the expressions of those derived from other names.
+fn design_quantities(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    source: &Source,
+    model: &Model,
+    values: &std::collections::HashMap<&str, String>,
+) {
     if !model.lets.is_empty() {
         doc.h(3, "Design quantities");
         let with_sources = model.lets.iter().any(|l| !l.sources.is_empty());
@@ -27,7 +44,7 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
             .iter()
             .map(|l| {
                 let expr = source.slice(l.expr.span).trim().replace('\n', " ");
-                let value = shown(l);
+                let value = shown(f, l);
                 // a value derived from others: its expression with their
                 // values substituted, once
                 let expr = if crate::report::substitute::uses_names(&l.expr) {
@@ -55,6 +72,16 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
             doc.table(&["Name", "Expression", "Value"], &rows, &[2]);
         }
     }
+}
+
+/// The materials, and their values derived from other names.
+fn materials(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    source: &Source,
+    model: &Model,
+    values: &std::collections::HashMap<&str, String>,
+) {
     doc.h(3, "Materials");
     let rows: Vec<Vec<String>> = model
         .materials
@@ -95,7 +122,8 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
     let mut any = false;
     for m in &model.materials {
         for (key, e) in &m.derived {
-            let with = crate::report::substitute::substituted(e, source, &|n| values.get(n).cloned());
+            let with =
+                crate::report::substitute::substituted(e, source, &|n| values.get(n).cloned());
             let value = match *key {
                 "E" => f.stress(m.e.value),
                 "alpha" => m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
@@ -127,7 +155,10 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
     if any {
         doc.end_list();
     }
+}
 
+/// Nodes, supports, rigid bodies and ties.
+fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
     doc.h(3, "Nodes and supports");
     let rows: Vec<Vec<String>> = model
         .nodes
@@ -175,7 +206,10 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
             .collect();
         doc.p(&format!("Tie: nodes {} move together.", names.join(", ")));
     }
+}
 
+/// Parts: law, geometry, stiffness and limits.
+fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
     doc.h(3, "Parts");
     let rows: Vec<Vec<String>> = model
         .parts
@@ -253,7 +287,10 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
         }
     }
     doc.end_list();
+}
 
+/// Load cases and combinations.
+fn cases(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
     doc.h(3, "Load cases and combinations");
     let mut rows = Vec::new();
     for c in &model.cases {

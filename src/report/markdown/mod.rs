@@ -5,10 +5,10 @@
 
 use std::fmt::Write as _;
 
-use crate::report::display::{number, utilization, Display, Scales, Shown};
-use crate::report::table::combination_text;
 use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
+use crate::report::display::{number, utilization, Display, Scales, Shown};
+use crate::report::table::combination_text;
 use crate::solve::{PartState, Solution};
 use crate::source::Source;
 use crate::units::Dimension;
@@ -204,7 +204,7 @@ fn checks_outcome(n: usize, fails: usize) -> String {
 /// Write the whole calculation for an analysed file.
 #[allow(clippy::too_many_lines)]
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
-    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
+    let (model, solution) = (&a.model, &a.solution);
     let f = Fmt {
         d: display,
         scales: std::cell::Cell::default(),
@@ -220,6 +220,23 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     let per_combination = 700 * (model.parts.len() + model.nodes.len());
     let estimate = 64 * 1024 + per_combination * (solution.combinations.len() + 1);
     let _ = doc.out.try_reserve(estimate);
+    title_block(&mut doc, source, model);
+    status_and_summary(&mut doc, &f, a);
+    method(&mut doc, model, display);
+    inputs::section(&mut doc, &f, source, model);
+    let incidence = incidence(model);
+    for ci in 0..solution.combinations.len() {
+        combination(&mut doc, &f, model, solution, ci, &incidence);
+    }
+    capacity_section(&mut doc, &f, a);
+    long_term_section(&mut doc, &f, a);
+    buckling_section(&mut doc, &f, a);
+    design_checks(&mut doc, &f, source, a);
+    doc.out.trim_end().to_string() + "\n"
+}
+
+/// The title and the title block's table.
+fn title_block(doc: &mut Doc, source: &Source, model: &Model) {
     let title = model
         .title
         .get("title")
@@ -237,7 +254,11 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     }
     rows.push(vec!["Calc file".into(), code(&source.name)]);
     doc.table(&["Item", "Value"], &rows, &[]);
+}
 
+/// The status line and the summary of every combination.
+fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
+    let (model, solution, checks) = (&a.model, &a.solution, &a.checks);
     // Status line.
     let governing = checks.governing();
     let fails = checks.failures();
@@ -330,7 +351,10 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             number(*ratio, 3)
         ));
     }
+}
 
+/// The cautions, the method and the sign convention.
+fn method(doc: &mut Doc, model: &Model, display: &Display) {
     doc.h(2, "Cautions");
     for c in CAUTIONS {
         doc.eq(c);
@@ -350,18 +374,11 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
         "Values are shown to {} significant figures; each equation is written in symbols, then with its numbers and units substituted, then its result.",
         display.digits
     ));
+}
 
-    inputs::section(&mut doc, &f, source, model);
-
-    let incidence = incidence(model);
-    for ci in 0..solution.combinations.len() {
-        combination(&mut doc, &f, model, solution, ci, &incidence);
-    }
-
-    capacity_section(&mut doc, &f, a);
-    long_term_section(&mut doc, &f, a);
-    buckling_section(&mut doc, &f, a);
-
+/// Every check's outcome, and the checks as written.
+fn design_checks(doc: &mut Doc, f: &Fmt<'_>, source: &Source, a: &crate::Analysis) {
+    let (model, solution, checks, display) = (&a.model, &a.solution, &a.checks, f.d);
     doc.h(2, "Design checks");
     if checks.outcomes.is_empty() {
         doc.p("The calc file writes no checks and its materials give no allowable stresses.");
@@ -446,7 +463,6 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
             doc.p("Euler-load checks compare the compression in each part (or parallel group) with a `buckling_length` against its Euler load P_e times its `euler_fraction` (see Stability).");
         }
     }
-    doc.out.trim_end().to_string() + "\n"
 }
 
 #[cfg(test)]
