@@ -10,9 +10,7 @@ use crate::syntax::ast::{Compare, ExprKind, Ident};
 use crate::units::{Dimension, Quantity};
 use std::collections::{HashMap, HashSet};
 
-/// Names a check may use for the load factors of its combination's
-/// capacity path: λ at first yield and at the plastic limit.
-pub const LOAD_FACTORS: &[&str] = &["yield_factor", "limit_factor"];
+pub use crate::model::LOAD_FACTORS;
 
 /// Where a check comes from.
 #[derive(Clone, Debug, PartialEq)]
@@ -576,8 +574,8 @@ impl Buckling {
             if s > self.slenderness_limit {
                 w.push(format!(
                     "{what} has KL/r = {} above the limit {}",
-                    crate::report::number(s, 4),
-                    crate::report::number(self.slenderness_limit, 4)
+                    crate::words::number(s, 4),
+                    crate::words::number(self.slenderness_limit, 4)
                 ));
             }
         }

@@ -51,8 +51,7 @@ impl From<ModelError> for Error {
     }
 }
 
-/// At most this many diagnostics are drawn; the count of the rest follows.
-pub const MAX_SHOWN: usize = 50;
+pub use crate::words::MAX_SHOWN;
 
 /// Render diagnostics against their source, without colour unless asked,
 /// wrapped at `width` columns: the first [`MAX_SHOWN`], then how many more.

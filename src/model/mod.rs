@@ -451,28 +451,11 @@ impl Model {
     }
 }
 
-/// A "did you mean `x`?" hint for a misspelled name, when one is close.
-pub(crate) fn did_you_mean<'a>(
-    name: &str,
-    candidates: impl IntoIterator<Item = &'a str>,
-) -> Option<String> {
-    let mut best: Option<(f64, &str)> = None;
-    let slack = (name.len() / 3).max(2);
-    for c in candidates {
-        // Names much longer or shorter are neither typos nor close.
-        if c.len().abs_diff(name.len()) > slack {
-            continue;
-        }
-        let score = strsim::jaro_winkler(name, c);
-        // An edit or two is a typo only in a name long enough to carry it.
-        let close = name.len() >= 3
-            && strsim::damerau_levenshtein(name, c) <= (name.len().max(c.len()) / 3).max(1);
-        if ((score > 0.85 && name.len() >= 2) || close) && best.is_none_or(|(s, _)| score > s) {
-            best = Some((score, c));
-        }
-    }
-    best.map(|(_, c)| format!("did you mean `{c}`?"))
-}
+pub(crate) use crate::words::did_you_mean;
+
+/// Names a check may use for the load factors of its combination's
+/// capacity path: λ at first yield and at the plastic limit.
+pub const LOAD_FACTORS: &[&str] = &["yield_factor", "limit_factor"];
 
 /// `2 parts, 1 node, ...`
 #[must_use]

@@ -353,7 +353,7 @@ fn keyword_hint(word: &str) -> Option<String> {
                 "let", "material", "node", "part", "case", "combine", "check", "fix", "tie",
                 "rigid", "units", "calc", "load", "temperature", "strain", "settle",
             ];
-            crate::model::did_you_mean(&w, KEYWORDS.iter().copied())
+            crate::words::did_you_mean(&w, KEYWORDS.iter().copied())
         }
     }
 }
@@ -1181,7 +1181,7 @@ fn not_a_unit(f: &UnitFactor) -> SyntaxError {
     }
     let help = match (
         crate::units::temperature_hint(&f.name),
-        crate::model::did_you_mean(&f.name, names),
+        crate::words::did_you_mean(&f.name, names),
     ) {
         (Some(h), _) => h.to_string(),
         (None, Some(s)) => format!("{s} To multiply by a value, write `* {}`", f.name),

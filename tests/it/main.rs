@@ -1,5 +1,6 @@
 //! The integration tests, one crate (one link) with a module per subject.
 
+mod architecture;
 mod capacity;
 mod checks;
 mod cli;

@@ -22,7 +22,7 @@ impl Scope for CheckScope<'_, '_> {
     fn name(&self, id: &Ident) -> Result<Quantity, ModelError> {
         // the load factors of the capacity path, unless a `let` takes the name
         if self.lets.names.get(&id.name).is_none()
-            && crate::checks::LOAD_FACTORS.contains(&id.name.as_str())
+            && crate::model::LOAD_FACTORS.contains(&id.name.as_str())
         {
             return Ok(Quantity::number(1.0));
         }

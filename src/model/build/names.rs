@@ -290,7 +290,7 @@ impl Builder {
             hasher,
             number,
             file,
-            suggestions: std::sync::atomic::AtomicUsize::new(crate::diagnostic::MAX_SHOWN),
+            suggestions: std::sync::atomic::AtomicUsize::new(crate::words::MAX_SHOWN),
         }
     }
 }
