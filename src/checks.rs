@@ -61,6 +61,18 @@ pub struct Checks {
 }
 
 impl Checks {
+    /// A warning for each part stressed beyond its yield strength.
+    pub fn beyond_yield(&self, model: &Model, solution: &Solution) -> Vec<crate::warning::Warning> {
+        self.yielded
+            .iter()
+            .map(|&(k, pi, ratio)| crate::warning::Warning::BeyondYield {
+                combination: solution.combinations[k].name.clone(),
+                part: model.parts[pi].name.to_string(),
+                ratio,
+            })
+            .collect()
+    }
+
     /// Each check's governing outcome (highest utilization, failures first).
     pub fn governing(&self) -> Vec<&Outcome> {
         self.governing_indices()
@@ -567,16 +579,15 @@ impl Buckling {
 
     /// Warnings for this part or group (the slenderness limit; compression
     /// past the Euler load is a failing check, see [`evaluate`]).
-    pub fn warnings(&self, model: &Model) -> Vec<String> {
-        let what = self.what(model);
+    pub fn warnings(&self, model: &Model) -> Vec<crate::warning::Warning> {
         let mut w = Vec::new();
         if let Some(s) = self.slenderness() {
             if s > self.slenderness_limit {
-                w.push(format!(
-                    "{what} has KL/r = {} above the limit {}",
-                    crate::words::number(s, 4),
-                    crate::words::number(self.slenderness_limit, 4)
-                ));
+                w.push(crate::warning::Warning::Slender {
+                    what: self.what(model),
+                    slenderness: s,
+                    limit: self.slenderness_limit,
+                });
             }
         }
         w

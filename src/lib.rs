@@ -22,6 +22,7 @@ pub mod solve;
 pub mod source;
 pub mod syntax;
 pub mod units;
+pub mod warning;
 pub mod words;
 
 use std::path::Path;

@@ -27,7 +27,7 @@ pub struct Document<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     long_term_checks: Option<Vec<LongTermCheck<'a>>>,
     buckling: Vec<Buckling<'a>>,
-    warnings: &'a [String],
+    warnings: Vec<crate::warning::Json>,
     /// Combinations that could not be solved or checked (then the calc
     /// has errors and exits 2).
     #[serde(skip_serializing_if = "<[String]>::is_empty")]
@@ -264,7 +264,7 @@ struct Buckling<'a> {
     euler_load_N: f64,
     max_compression_N: f64,
     combination: &'a str,
-    warnings: Vec<String>,
+    warnings: Vec<crate::warning::Json>,
 }
 
 /// The JSON document for a solved file.
@@ -413,7 +413,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
             euler_load_N: b.euler,
             max_compression_N: b.compression,
             combination: &combos[b.combination].name,
-            warnings: b.warnings(model),
+            warnings: b.warnings(model).into_iter().map(Into::into).collect(),
         })
         .collect();
     Document {
@@ -431,7 +431,13 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
         long_term,
         long_term_checks,
         buckling,
-        warnings: &solution.warnings,
+        warnings: solution
+            .warnings
+            .iter()
+            .cloned()
+            .chain(checks.beyond_yield(model, solution))
+            .map(Into::into)
+            .collect(),
         left_out: &a.left_out,
     }
 }

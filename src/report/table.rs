@@ -190,13 +190,8 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             d.force.name
         ));
     }
-    for (k, pi, ratio) in &checks.yielded {
-        out.push_str(&format!(
-            "\nwarning: in {} part {} is stressed to {} × its yield strength; elastic results are not valid beyond yield\n",
-            solution.combinations[*k].name,
-            model.parts[*pi].name,
-            number(*ratio, 3)
-        ));
+    for w in checks.beyond_yield(model, solution) {
+        out.push_str(&format!("\nwarning: {w}\n"));
     }
     let first_note = a.capacity.first().and_then(|c| c.note.clone());
     let same_note = first_note.is_some()

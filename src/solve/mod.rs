@@ -68,10 +68,7 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
         (lo.min(k), hi.max(k))
     });
     if kmax > 1e12 * kmin {
-        warnings.push(format!(
-            "part stiffnesses differ by a factor of {:.1e}; results may lose precision",
-            kmax / kmin
-        ));
+        warnings.push(crate::warning::Warning::StiffnessSpread { ratio: kmax / kmin });
     }
     let initial: Vec<Mode> = model
         .parts

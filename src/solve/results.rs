@@ -149,7 +149,7 @@ pub struct CombinationResult {
 pub struct Solution {
     pub unknowns: usize,
     pub combinations: Vec<CombinationResult>,
-    pub warnings: Vec<String>,
+    pub warnings: Vec<crate::warning::Warning>,
 }
 
 pub(super) struct ResultInputs<'a> {

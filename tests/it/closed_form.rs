@@ -345,7 +345,9 @@ load c = 1 kip
 ";
     let (_, s) = solve(text);
     assert!(
-        s.warnings.iter().any(|w| w.contains("differ by a factor")),
+        s.warnings
+            .iter()
+            .any(|w| w.to_string().contains("differ by a factor")),
         "{:?}",
         s.warnings
     );

@@ -461,3 +461,35 @@ fn derived_material_values_show_their_numbers() {
         "{md}"
     );
 }
+
+/// A warning is worded once: the JSON carries its code and raw values beside
+/// the sentence, and the Markdown and the text tables print that sentence.
+/// Stress over yield: 200 kN on 400 mm² is 500 MPa, twice a 250 MPa yield
+/// (hand arithmetic).
+#[test]
+fn warnings_are_worded_once_and_carry_their_values() {
+    let text = "material steel { E = 200 GPa; yield = 250 MPa }
+node a at 0 m
+node b at 1 m
+fix a
+part rod { material = steel; area = 400 mm^2; ends = a, b }
+load b = 200 kN
+";
+    let src = tandem::source::Source::new("yield.tandem", text);
+    let a = tandem::analyse(&src).expect("analyses");
+    let json = tandem::report::json::solution_json("yield", &a);
+    let w = &json["warnings"][0];
+    assert_eq!(w["code"], "beyond_yield");
+    assert_eq!(w["part"], "rod");
+    assert!((w["ratio"].as_f64().expect("ratio") - 2.0).abs() < 1e-12);
+    let sentence = w["message"].as_str().expect("message");
+    assert_eq!(
+        sentence,
+        "in combination `loads` part `rod` is stressed to 2.00 × its yield strength; elastic results are not valid beyond yield"
+    );
+    let display = tandem::report::Display::for_model(&a.model, 3);
+    let md = tandem::report::markdown::report(&src, &a, &display);
+    assert!(md.contains(&format!("**Warning:** {sentence}.")), "{md}");
+    let table = tandem::report::table::solve_text(&a, &display);
+    assert!(table.contains(&format!("warning: {sentence}\n")), "{table}");
+}

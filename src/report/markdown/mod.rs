@@ -343,13 +343,8 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
             doc.p(&format!("**Warning:** {w}."));
         }
     }
-    for (k, pi, ratio) in &checks.yielded {
-        doc.p(&format!(
-            "**Warning:** in combination `{}` part `{}` is stressed to {} × its yield strength; elastic results are not valid beyond yield.",
-            solution.combinations[*k].name,
-            model.parts[*pi].name,
-            number(*ratio, 3)
-        ));
+    for w in checks.beyond_yield(model, solution) {
+        doc.p(&format!("**Warning:** {w}."));
     }
 }
 
