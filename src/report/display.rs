@@ -251,6 +251,27 @@ pub fn utilization(u: Option<f64>) -> String {
     }
 }
 
+/// A check's value and limit as a table shows them, `value` and `<= limit`:
+/// the line reads true exactly when the check passes.
+pub fn written(o: &crate::checks::Outcome, d: &Display) -> [String; 2] {
+    let (value, limit) = o.written();
+    [
+        d.quantity(value),
+        format!("{} {}", o.op.symbol(), d.quantity(limit)),
+    ]
+}
+
+/// A check's result cell: `pass`, or a failure marked for the eye
+/// (`**FAIL**` in Markdown, `FAIL` in plain text).
+pub fn verdict(pass: bool, markdown: bool) -> String {
+    match (pass, markdown) {
+        (true, _) => "pass",
+        (false, true) => "**FAIL**",
+        (false, false) => "FAIL",
+    }
+    .into()
+}
+
 /// Values of one kind below this fraction of the largest of that kind in
 /// their combination are round-off and print as 0 in text and Markdown
 /// (JSON keeps the raw value). The same relative 1e-9 as the band within

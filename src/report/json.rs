@@ -177,12 +177,30 @@ struct CheckOutcome<'a> {
     #[serde(skip_serializing_if = "Option::is_none")]
     under: Option<Under<'a>>,
     combination: &'a str,
+    #[serde(flatten)]
+    verdict: Verdict,
+    governing: bool,
+}
+
+/// A check's numbers and result, in every list of checks.
+#[derive(Serialize)]
+struct Verdict {
     demand: f64,
     capacity: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     utilization: Option<f64>,
     pass: bool,
-    governing: bool,
+}
+
+impl From<&crate::checks::Outcome> for Verdict {
+    fn from(o: &crate::checks::Outcome) -> Self {
+        Verdict {
+            demand: o.demand.value,
+            capacity: o.capacity.value,
+            utilization: o.utilization,
+            pass: o.pass,
+        }
+    }
 }
 
 #[derive(Serialize)]
@@ -246,11 +264,8 @@ struct LongTermPart<'a> {
 struct LongTermCheck<'a> {
     label: &'a str,
     combination: &'a str,
-    demand: f64,
-    capacity: f64,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    utilization: Option<f64>,
-    pass: bool,
+    #[serde(flatten)]
+    verdict: Verdict,
 }
 
 #[derive(Serialize)]
@@ -310,10 +325,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
                 Origin::Buckling(_) => "buckling",
             },
             combination: &combos[o.combination].name,
-            demand: o.demand.value,
-            capacity: o.capacity.value,
-            utilization: o.utilization,
-            pass: o.pass,
+            verdict: o.into(),
             governing: is_gov,
         })
         .collect();
@@ -391,10 +403,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
             .map(|o| LongTermCheck {
                 label: &o.label,
                 combination: &lt.combinations[o.combination].name,
-                demand: o.demand.value,
-                capacity: o.capacity.value,
-                utilization: o.utilization,
-                pass: o.pass,
+                verdict: o.into(),
             })
             .collect()
     });

@@ -276,10 +276,10 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             rows.push(vec![
                 o.label.clone(),
                 solution.combinations[o.combination].name.clone(),
-                d.quantity(o.written().0),
-                format!("{} {}", o.op.symbol(), d.quantity(o.written().1)),
+                super::display::written(o, d)[0].clone(),
+                super::display::written(o, d)[1].clone(),
                 super::utilization(o.utilization),
-                if o.pass { "pass" } else { "FAIL" }.to_string(),
+                super::display::verdict(o.pass, false),
             ]);
         }
         out.push_str(&aligned(&rows, &[0, 1, 5], "  "));
@@ -306,7 +306,7 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
                 o.label.clone(),
                 lt.combinations[o.combination].name.clone(),
                 super::utilization(o.utilization),
-                if o.pass { "pass" } else { "FAIL" }.to_string(),
+                super::display::verdict(o.pass, false),
             ]);
         }
         out.push_str(&aligned(&rows, &[0, 1, 3], "  "));

@@ -926,34 +926,18 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
     let at = p.clone();
     let sp = || span(&at);
     match p.as_rule() {
-        Rule::expr => {
-            let mut it = parts(p);
-            let first = expr(need(it.next(), sp())?)?;
-            let mut rest = Vec::new();
-            while let Some(op) = it.next() {
-                let op = if op.as_str() == "+" {
-                    AddOp::Add
-                } else {
-                    AddOp::Sub
-                };
-                rest.push((op, expr(need(it.next(), sp())?)?));
-            }
-            Ok(flat(first, rest, ExprKind::Sum))
-        }
-        Rule::term => {
-            let mut it = parts(p);
-            let first = expr(need(it.next(), sp())?)?;
-            let mut rest = Vec::new();
-            while let Some(op) = it.next() {
-                let op = if op.as_str() == "*" {
-                    MulOp::Mul
-                } else {
-                    MulOp::Div
-                };
-                rest.push((op, expr(need(it.next(), sp())?)?));
-            }
-            Ok(flat(first, rest, ExprKind::Product))
-        }
+        Rule::expr => chain(
+            p,
+            sp,
+            |op| if op == "+" { AddOp::Add } else { AddOp::Sub },
+            ExprKind::Sum,
+        ),
+        Rule::term => chain(
+            p,
+            sp,
+            |op| if op == "*" { MulOp::Mul } else { MulOp::Div },
+            ExprKind::Product,
+        ),
         Rule::power => {
             let mut operands = parts(p).map(expr).collect::<Result<Vec<_>>>()?;
             // right-associative: a ^ b ^ c = a ^ (b ^ c)
@@ -1051,6 +1035,23 @@ fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
         }
         _ => Err(internal(sp())),
     }
+}
+
+/// `a op b op c ...` (a sum or a product): its operands and operators, as
+/// one flat node.
+fn chain<O>(
+    p: Pair<'_, Rule>,
+    sp: impl Fn() -> Span,
+    op_of: fn(&str) -> O,
+    make: fn(Box<Expr>, Vec<(O, Expr)>) -> ExprKind,
+) -> Result<Expr> {
+    let mut it = parts(p);
+    let first = expr(need(it.next(), sp())?)?;
+    let mut rest = Vec::new();
+    while let Some(op) = it.next() {
+        rest.push((op_of(op.as_str()), expr(need(it.next(), sp())?)?));
+    }
+    Ok(flat(first, rest, make))
 }
 
 fn flat<O>(

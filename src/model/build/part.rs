@@ -94,7 +94,12 @@ impl Builder {
         let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
         let before = self.errors.len();
         let ends = self.part_ends(&f, nb, names);
-        let law = self.part_law(&f, what, scope, names, material_at);
+        // a spring (`stiffness`), or a member (material and area or section)
+        let law = if f.has("stiffness") {
+            self.spring_law(&f, what, scope)
+        } else {
+            self.member_law(&f, what, scope, names, material_at)
+        };
         let PartLimits {
             misfit,
             slack,
@@ -212,23 +217,6 @@ impl Builder {
             }
         }
         ends
-    }
-
-    /// The part's law: a spring (`stiffness`) or a member (material and
-    /// area or section).
-    fn part_law(
-        &mut self,
-        f: &Fields<'_>,
-        what: What<'_>,
-        scope: &dyn Scope,
-        names: &Names<'_>,
-        material_at: &[Option<usize>],
-    ) -> Option<Law> {
-        if f.has("stiffness") {
-            self.spring_law(f, what, scope)
-        } else {
-            self.member_law(f, what, scope, names, material_at)
-        }
     }
 
     fn spring_law(&mut self, f: &Fields<'_>, what: What<'_>, scope: &dyn Scope) -> Option<Law> {

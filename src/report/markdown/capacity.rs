@@ -20,21 +20,18 @@ pub(super) fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
         let Some(fy) = mat.yield_strength else {
             continue;
         };
-        doc.eq(&format!(
-            "F_y({}) = f_y · A = {} · {} = {}",
-            p.name,
-            f.stress(fy.value),
-            f.area(area.value),
-            f.force(fy.value * area.value)
-        ));
-        if let Some(fyc) = mat.yield_compression {
+        let mut yield_force = |force: &str, strength: &str, fy: f64| {
             doc.eq(&format!(
-                "F_y,c({}) = f_y,c · A = {} · {} = {}",
+                "{force}({}) = {strength} · A = {} · {} = {}",
                 p.name,
-                f.stress(fyc.value),
+                f.stress(fy),
                 f.area(area.value),
-                f.force(fyc.value * area.value)
+                f.force(fy * area.value)
             ));
+        };
+        yield_force("F_y", "f_y", fy.value);
+        if let Some(fyc) = mat.yield_compression {
+            yield_force("F_y,c", "f_y,c", fyc.value);
         }
     }
     doc.end_list();

@@ -85,14 +85,10 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
                 vec![
                     text(&o.label),
                     format!("`{}`", lt.combinations[o.combination].name),
-                    f.d.quantity(o.written().0),
-                    format!("{} {}", o.op.symbol(), f.d.quantity(o.written().1)),
+                    written(o, f.d)[0].clone(),
+                    written(o, f.d)[1].clone(),
                     utilization(o.utilization),
-                    if o.pass {
-                        "pass".into()
-                    } else {
-                        "**FAIL**".into()
-                    },
+                    verdict(o.pass, true),
                 ]
             })
             .collect();

@@ -7,7 +7,7 @@ use std::fmt::Write as _;
 
 use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
-use crate::report::display::{number, utilization, Display, Scales, Shown};
+use crate::report::display::{number, utilization, verdict, written, Display, Scales, Shown};
 use crate::report::table::combination_text;
 use crate::solve::{PartState, Solution};
 use crate::source::Source;
@@ -300,11 +300,7 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
                     text(&o.label),
                     format!("`{}`", solution.combinations[o.combination].name),
                     utilization(o.utilization),
-                    if o.pass {
-                        "pass".into()
-                    } else {
-                        "**FAIL**".into()
-                    },
+                    verdict(o.pass, true),
                 ]
             })
             .collect();
@@ -393,14 +389,10 @@ fn design_checks(doc: &mut Doc, f: &Fmt<'_>, source: &Source, a: &crate::Analysi
                     } else {
                         format!("`{}`", solution.combinations[o.combination].name)
                     },
-                    display.quantity(o.written().0),
-                    format!("{} {}", o.op.symbol(), display.quantity(o.written().1)),
+                    written(o, display)[0].clone(),
+                    written(o, display)[1].clone(),
                     utilization(o.utilization),
-                    if o.pass {
-                        "pass".into()
-                    } else {
-                        "**FAIL**".into()
-                    },
+                    verdict(o.pass, true),
                 ]
             })
             .collect();
