@@ -189,7 +189,7 @@ fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
                 return bad();
             }
         };
-        out!("{}", tandem::report::table::solve_text(&a, &d));
+        out!("{}", tandem::report::text::solve_text(&a, &d));
     }
     if incomplete {
         bad()

@@ -83,7 +83,7 @@ impl Serialize for Parts<'_> {
                     force_N: pr.force.value,
                     stress_Pa: pr.stress.map(|s| s.value),
                     strain: pr.strain,
-                    strain_from_force: super::table::force_strain(self.0, p, pr),
+                    strain_from_force: super::text::force_strain(self.0, p, pr),
                     elongation_m: pr.elongation.value,
                     state: pr.state.name(),
                 }),

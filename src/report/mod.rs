@@ -5,7 +5,7 @@ pub mod display;
 pub mod json;
 pub mod markdown;
 pub mod substitute;
-pub mod table;
+pub mod text;
 
 pub use display::{number, utilization, Display};
 

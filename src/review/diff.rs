@@ -5,7 +5,7 @@ use serde_json::{json, Value};
 
 use crate::model::{Kind, Law, Model};
 use crate::report::display::{number, Display};
-use crate::report::table::combination_text;
+use crate::report::text::combination_text;
 use crate::solve::Solution;
 use crate::source::Source;
 use crate::units::{Dimension, Quantity};

@@ -423,7 +423,7 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
         r.extend(s.shown.iter().map(show));
         rows.push(r);
     }
-    let mut out = crate::report::table::aligned(&rows, &[], "");
+    let mut out = crate::report::text::aligned(&rows, &[], "");
     match seek {
         Some(Seek::Found {
             crossings,

@@ -10,6 +10,7 @@
 
 mod actions;
 mod active_set;
+pub mod buckling;
 pub mod capacity;
 mod dofs;
 mod error;

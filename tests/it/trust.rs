@@ -490,6 +490,6 @@ load b = 200 kN
     let display = tandem::report::Display::for_model(&a.model, 3);
     let md = tandem::report::markdown::report(&src, &a, &display);
     assert!(md.contains(&format!("**Warning:** {sentence}.")), "{md}");
-    let table = tandem::report::table::solve_text(&a, &display);
+    let table = tandem::report::text::solve_text(&a, &display);
     assert!(table.contains(&format!("warning: {sentence}\n")), "{table}");
 }

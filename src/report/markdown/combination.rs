@@ -45,7 +45,7 @@ pub(super) fn combination_body(
         2,
         &format!(
             "Combination {}",
-            crate::report::table::combination_heading(model, ci, true)
+            crate::report::text::combination_heading(model, ci, true)
         ),
     );
     let nd = model.kind.dofs();

@@ -8,7 +8,7 @@ use std::fmt::Write as _;
 use crate::checks::Origin;
 use crate::model::{Carries, Kind, Law, Model};
 use crate::report::display::{number, utilization, verdict, written, Display, Scales, Shown};
-use crate::report::table::combination_text;
+use crate::report::text::combination_text;
 use crate::solve::{PartState, Solution};
 use crate::source::Source;
 use crate::units::Dimension;

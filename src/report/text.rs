@@ -104,95 +104,120 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         out.push_str(&format!("warning: {w}\n"));
     }
     for (ci, r) in solution.combinations.iter().enumerate() {
-        let sc = Scales::of(r);
-        out.push_str(&format!(
-            "\ncombination {}\n",
-            combination_heading(model, ci, false)
-        ));
-        let mut rows = vec![vec![
-            "part".to_string(),
-            format!("force ({})", d.force.name),
-            format!("stress ({})", d.stress.name),
-            "total strain (µε)".to_string(),
-            "strain from force σ/E (µε)".to_string(),
-            format!("elongation ({})", d.small.name),
-            "state".to_string(),
-        ]];
-        for (p, pr) in model.parts.iter().zip(&r.parts) {
-            rows.push(vec![
-                p.name.to_string(),
-                number(d.force.value(sc.force(pr.force.value)), d.digits),
-                pr.stress.map_or("—".into(), |s| {
-                    number(d.stress.value(sc.stress(s.value)), d.digits)
-                }),
-                number(sc.strain(pr.strain) * 1e6, d.digits),
-                force_strain(model, p, pr)
-                    .map_or("—".into(), |e| number(sc.strain(e) * 1e6, d.digits)),
-                number(d.small.value(sc.small(pr.elongation.value)), d.digits),
-                pr.state.name().to_string(),
-            ]);
-        }
-        out.push_str(&aligned(&rows, &[0, 6], "  "));
-        let mut rows = match model.kind {
-            Kind::Axial => vec![vec![
-                "node".to_string(),
-                format!("displacement ({})", d.small.name),
-                format!("reaction ({})", d.force.name),
-            ]],
-            Kind::Plane => vec![vec![
-                "node".to_string(),
-                format!("dx ({})", d.small.name),
-                format!("dy ({})", d.small.name),
-                format!("rx ({})", d.force.name),
-                format!("ry ({})", d.force.name),
-            ]],
-        };
-        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
-            let react = |k: usize| {
-                if n.fixed[k] {
-                    number(d.force.value(sc.force(nr.reaction[k].value)), d.digits)
-                } else {
-                    "—".to_string()
-                }
-            };
-            let mut row = vec![
-                n.name.to_string(),
-                number(d.small.value(sc.small(nr.displacement[0].value)), d.digits),
-            ];
-            if model.kind == Kind::Plane {
-                row.push(number(
-                    d.small.value(sc.small(nr.displacement[1].value)),
-                    d.digits,
-                ));
-                row.push(react(0));
-                row.push(react(1));
-            } else {
-                row.push(react(0));
-            }
-            rows.push(row);
-        }
-        out.push('\n');
-        out.push_str(&aligned(&rows, &[0], "  "));
-        for (k, rb) in model.rigids.iter().enumerate() {
-            if model.kind == Kind::Plane {
-                out.push_str(&format!(
-                    "  rigid body {} rotates {} rad\n",
-                    rb.name,
-                    number(r.rotations[k], d.digits)
-                ));
-            }
-        }
-        out.push_str(&format!(
-            "  equilibrium residual {} {} (largest force {} {})\n",
-            number(d.force.value(r.equilibrium_residual.value), 2),
-            d.force.name,
-            number(d.force.value(r.force_scale.value), d.digits),
-            d.force.name
-        ));
+        combination_tables(&mut out, model, ci, r, d);
     }
     for w in checks.beyond_yield(model, solution) {
         out.push_str(&format!("\nwarning: {w}\n"));
     }
+    capacity_lines(&mut out, a, d);
+    long_term_lines(&mut out, a, d);
+    for b in &a.buckling {
+        for w in b.warnings(model) {
+            out.push_str(&format!("\nwarning: {w}\n"));
+        }
+    }
+    check_tables(&mut out, a, d);
+    out
+}
+
+/// One combination's tables: parts, nodes, and its equilibrium residual.
+fn combination_tables(
+    out: &mut String,
+    model: &Model,
+    ci: usize,
+    r: &crate::solve::CombinationResult,
+    d: &Display,
+) {
+    let sc = Scales::of(r);
+    out.push_str(&format!(
+        "\ncombination {}\n",
+        combination_heading(model, ci, false)
+    ));
+    let mut rows = vec![vec![
+        "part".to_string(),
+        format!("force ({})", d.force.name),
+        format!("stress ({})", d.stress.name),
+        "total strain (µε)".to_string(),
+        "strain from force σ/E (µε)".to_string(),
+        format!("elongation ({})", d.small.name),
+        "state".to_string(),
+    ]];
+    for (p, pr) in model.parts.iter().zip(&r.parts) {
+        rows.push(vec![
+            p.name.to_string(),
+            number(d.force.value(sc.force(pr.force.value)), d.digits),
+            pr.stress.map_or("—".into(), |s| {
+                number(d.stress.value(sc.stress(s.value)), d.digits)
+            }),
+            number(sc.strain(pr.strain) * 1e6, d.digits),
+            force_strain(model, p, pr)
+                .map_or("—".into(), |e| number(sc.strain(e) * 1e6, d.digits)),
+            number(d.small.value(sc.small(pr.elongation.value)), d.digits),
+            pr.state.name().to_string(),
+        ]);
+    }
+    out.push_str(&aligned(&rows, &[0, 6], "  "));
+    let mut rows = match model.kind {
+        Kind::Axial => vec![vec![
+            "node".to_string(),
+            format!("displacement ({})", d.small.name),
+            format!("reaction ({})", d.force.name),
+        ]],
+        Kind::Plane => vec![vec![
+            "node".to_string(),
+            format!("dx ({})", d.small.name),
+            format!("dy ({})", d.small.name),
+            format!("rx ({})", d.force.name),
+            format!("ry ({})", d.force.name),
+        ]],
+    };
+    for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+        let react = |k: usize| {
+            if n.fixed[k] {
+                number(d.force.value(sc.force(nr.reaction[k].value)), d.digits)
+            } else {
+                "—".to_string()
+            }
+        };
+        let mut row = vec![
+            n.name.to_string(),
+            number(d.small.value(sc.small(nr.displacement[0].value)), d.digits),
+        ];
+        if model.kind == Kind::Plane {
+            row.push(number(
+                d.small.value(sc.small(nr.displacement[1].value)),
+                d.digits,
+            ));
+            row.push(react(0));
+            row.push(react(1));
+        } else {
+            row.push(react(0));
+        }
+        rows.push(row);
+    }
+    out.push('\n');
+    out.push_str(&aligned(&rows, &[0], "  "));
+    for (k, rb) in model.rigids.iter().enumerate() {
+        if model.kind == Kind::Plane {
+            out.push_str(&format!(
+                "  rigid body {} rotates {} rad\n",
+                rb.name,
+                number(r.rotations[k], d.digits)
+            ));
+        }
+    }
+    out.push_str(&format!(
+        "  equilibrium residual {} {} (largest force {} {})\n",
+        number(d.force.value(r.equilibrium_residual.value), 2),
+        d.force.name,
+        number(d.force.value(r.force_scale.value), d.digits),
+        d.force.name
+    ));
+}
+
+/// The load factors at first yield and at the plastic limit.
+fn capacity_lines(out: &mut String, a: &crate::Analysis, d: &Display) {
+    let solution = &a.solution;
     let first_note = a.capacity.first().and_then(|c| c.note.clone());
     let same_note = first_note.is_some()
         && a.capacity
@@ -218,6 +243,11 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             _ => {}
         }
     }
+}
+
+/// The long-term results of every combination with sustained loads.
+fn long_term_lines(out: &mut String, a: &crate::Analysis, d: &Display) {
+    let (model, solution) = (&a.model, &a.solution);
     for l in &a.long_term {
         let short = &solution.combinations[l.combination];
         match &l.result {
@@ -257,11 +287,11 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
             }
         }
     }
-    for b in &a.buckling {
-        for w in b.warnings(model) {
-            out.push_str(&format!("\nwarning: {w}\n"));
-        }
-    }
+}
+
+/// The checks (governing combination), and the long-term checks.
+fn check_tables(out: &mut String, a: &crate::Analysis, d: &Display) {
+    let (solution, checks) = (&a.solution, &a.checks);
     if !checks.outcomes.is_empty() {
         out.push_str("\nchecks (governing combination)\n");
         let mut rows = vec![vec![
@@ -311,5 +341,4 @@ pub fn solve_text(a: &crate::Analysis, d: &Display) -> String {
         }
         out.push_str(&aligned(&rows, &[0, 1, 3], "  "));
     }
-    out
 }
