@@ -6,6 +6,7 @@ mod build;
 mod error;
 pub mod eval;
 pub mod range;
+pub mod results;
 
 pub use build::{build, build_with, solver_depends_on, Limits};
 pub use error::ModelError;

@@ -324,3 +324,33 @@ fn the_plot_keeps_stretches_off_the_scale() {
     let svg = tandem::review::sweep::plot(&table, &d).expect("plot");
     assert!(svg.contains("off the scale"), "{svg}");
 }
+
+/// `--show` takes every result a check can name (one table of result
+/// fields): a part's length, and a node's reaction. The plate's length is
+/// its ends' distance, 100 in (the file's geometry).
+#[test]
+fn show_takes_every_result_a_check_can_name() {
+    let out = tandem(&[
+        "sweep",
+        "tests/sweep/plate.tandem",
+        "--vary",
+        "t=0.5 in..1 in",
+        "--steps",
+        "2",
+        "--show",
+        "plate.length,a.reaction",
+        "--json",
+    ]);
+    assert_eq!(
+        out.status.code(),
+        Some(0),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        text.contains("plate.length") && text.contains("a.reaction"),
+        "{text}"
+    );
+    assert!(text.contains("2.54"), "100 in is 2.54 m: {text}");
+}

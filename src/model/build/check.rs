@@ -31,12 +31,12 @@ impl Scope for CheckScope<'_, '_> {
 
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
         let (on, fields) = match self.lets.names.get(&object.name) {
-            Some((NameKind::Part, _, _)) => ("part", PART_FIELDS),
+            Some((NameKind::Part, _, _)) => ("part", crate::model::results::PART_RESULTS),
             Some((NameKind::Node, _, _)) => (
                 "node",
                 match self.kind {
-                    Kind::Axial => AXIAL_NODE_FIELDS,
-                    Kind::Plane => PLANE_NODE_FIELDS,
+                    Kind::Axial => crate::model::results::AXIAL_NODE_RESULTS,
+                    Kind::Plane => crate::model::results::PLANE_NODE_RESULTS,
                 },
             ),
             Some((k, _, _)) => {

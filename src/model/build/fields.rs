@@ -5,29 +5,6 @@
 
 use super::*;
 
-/// Results a check may use, and their dimensions.
-pub(crate) const PART_FIELDS: &[(&str, Dimension)] = &[
-    ("force", Dimension::FORCE),
-    ("stress", Dimension::PRESSURE),
-    ("strain", Dimension::NONE),
-    ("elongation", Dimension::LENGTH),
-    ("length", Dimension::LENGTH),
-    ("euler_load", Dimension::FORCE),
-    ("slenderness", Dimension::NONE),
-];
-
-pub(crate) const AXIAL_NODE_FIELDS: &[(&str, Dimension)] = &[
-    ("displacement", Dimension::LENGTH),
-    ("reaction", Dimension::FORCE),
-];
-
-pub(crate) const PLANE_NODE_FIELDS: &[(&str, Dimension)] = &[
-    ("dx", Dimension::LENGTH),
-    ("dy", Dimension::LENGTH),
-    ("rx", Dimension::FORCE),
-    ("ry", Dimension::FORCE),
-];
-
 /// What a block declares, for messages (`part \`p1\``); written out only
 /// when a message needs it, not once per part.
 #[derive(Clone, Copy)]

@@ -39,10 +39,7 @@ mod part;
 
 // What the stages share (the files below see it through `use super::*`).
 use check::CheckScope;
-use fields::{
-    example_for, si_force, si_length, si_pressure, typed, Fields, What, AXIAL_NODE_FIELDS,
-    PART_FIELDS, PLANE_NODE_FIELDS,
-};
+use fields::{example_for, si_force, si_length, si_pressure, typed, Fields, What};
 use lets::{unit_usage, walk_names, LetScope};
 use names::{NameKind, Names};
 
