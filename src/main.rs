@@ -97,7 +97,7 @@ fn main() -> ExitCode {
             show,
         } => diff(&old, &new, min_change, json, &show),
         Command::Functions => {
-            out!("{}", tandem::model::eval::listing());
+            out!("{}", tandem::model::functions::listing());
             ExitCode::SUCCESS
         }
         Command::Units => {

@@ -5,6 +5,7 @@
 mod build;
 mod error;
 pub mod eval;
+pub mod functions;
 pub mod range;
 pub mod results;
 

@@ -118,7 +118,7 @@ fn section_areas() {
 
 #[test]
 fn section_second_moments() {
-    use tandem::model::eval::{circle, hollow_rect, ishape, rect, ring};
+    use tandem::model::functions::{circle, hollow_rect, ishape, rect, ring};
     let pi = std::f64::consts::PI;
     assert!(rel(circle(2.0).ix, pi / 4.0) < 1e-15); // pi d^4 / 64, d = 2
     assert!(rel(ring(2.0, 0.5).ix, pi * (16.0 - 1.0) / 64.0) < 1e-15);

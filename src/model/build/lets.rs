@@ -273,7 +273,7 @@ impl Builder {
         let mut srcs: Vec<Vec<&'static str>> = vec![Vec::new(); n];
         for &i in &order_copy {
             let mut s = Vec::new();
-            crate::model::eval::sources(&lets[i].value, &mut s);
+            crate::model::functions::sources(&lets[i].value, &mut s);
             for &j in &deps[i] {
                 if j != i {
                     for x in srcs[j].clone() {

@@ -153,7 +153,7 @@ impl Builder {
         }
         let mut e_sources = Vec::new();
         if let Some(Ok(expr)) = f.expr("E") {
-            crate::model::eval::sources(expr, &mut e_sources);
+            crate::model::functions::sources(expr, &mut e_sources);
             let mut refs = Vec::new();
             walk_names(expr, &mut refs);
             for id in refs {

@@ -17,7 +17,7 @@ use uom::si::surface_tension::newton_per_meter;
 use uom::si::temperature_coefficient::per_kelvin;
 use uom::si::temperature_interval::kelvin;
 
-use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS, FUNCTIONS};
+use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS};
 use super::{
     did_you_mean, range, Applies, Carries, Case, Check, Combination, FreeStrain, Kind, Law,
     LetValue, Load, Material, Model, ModelError, Node, Part, Rigid, Settlement, State, Stiffness,

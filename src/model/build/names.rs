@@ -247,8 +247,8 @@ pub(super) fn reserved(name: &str) -> Option<&'static str> {
         for u in crate::units::units() {
             m.entry(u.name).or_insert("a unit");
         }
-        for f in FUNCTIONS {
-            m.entry(*f).or_insert("a function");
+        for f in crate::model::functions::names() {
+            m.entry(f).or_insert("a function");
         }
         for c in CONSTANTS {
             m.entry(*c).or_insert("a constant");
