@@ -183,14 +183,70 @@ pub enum ModelError {
         first_span: Span,
     },
 
-    #[error("{message}")]
-    #[diagnostic(code(tandem::model::plane_only))]
-    ModelKind {
-        message: String,
+    #[error("an axial model has one direction; `{statement}` takes no `x` or `y`")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("write `{statement} {node}{example}`")
+    )]
+    AxialDirection {
+        /// `fix` or `settle`.
+        statement: &'static str,
+        node: String,
+        /// What follows the node in the example (` = -0.1 in` for `settle`).
+        example: &'static str,
         #[label("here")]
         span: Span,
-        #[help]
-        help: Option<String>,
+    },
+
+    #[error("an axial model takes a load as one force")]
+    #[diagnostic(code(tandem::model::plane_only), help("write `load {node} = -95 kip`"))]
+    AxialLoad {
+        node: String,
+        #[label("here")]
+        span: Span,
+    },
+
+    #[error("a plane model takes a load as a pair (FX, FY)")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("write `load {node} = (0 kip, -12 kip)`")
+    )]
+    PlaneLoad {
+        node: String,
+        #[label("here")]
+        span: Span,
+    },
+
+    #[error("in a plane model `settle` needs a direction")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("write `settle {node} y = -0.1 in`")
+    )]
+    SettleDirection {
+        node: String,
+        #[label("here")]
+        span: Span,
+    },
+
+    #[error("node `{node}` is tied to itself")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("a tie joins different nodes, e.g. `tie a, b`")
+    )]
+    TiedToItself {
+        node: String,
+        #[label("here")]
+        span: Span,
+    },
+
+    #[error("in a plane model a tie joins nodes at one position")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("to join separated points, list them in a `rigid` body; a tie is a pin between nodes that coincide")
+    )]
+    TieApart {
+        #[label("here")]
+        span: Span,
     },
 
     #[error("part `{part}` has both ends at node `{node}`")]
@@ -305,15 +361,20 @@ pub enum ModelError {
         span: Span,
     },
 
-    #[error("`settle` moves a support, but node `{node}` is not fixed{direction}")]
-    #[diagnostic(code(tandem::support::settle))]
+    #[error(
+        "`settle` moves a support, but node `{node}` is not fixed{}",
+        in_axis(axis)
+    )]
+    #[diagnostic(
+        code(tandem::support::settle),
+        help("add `fix {node}{axis}` for the support that moves")
+    )]
     SettleFree {
         node: String,
-        direction: String,
+        /// ` x` or ` y` in a plane model, empty in an axial one.
+        axis: &'static str,
         #[label("no support here")]
         span: Span,
-        #[help]
-        help: Option<String>,
     },
 
     #[error("{what} is given twice in case `{case}`")]
@@ -430,7 +491,7 @@ pub enum ModelError {
         #[label("in this file")]
         span: Span,
         #[help]
-        help: Option<String>,
+        help: Option<&'static str>,
     },
 
     #[error("`{name}` depends on itself")]
@@ -454,7 +515,7 @@ pub enum ModelError {
         #[label("limit passed here")]
         span: Span,
         #[help]
-        help: Option<String>,
+        help: Option<&'static str>,
     },
 }
 
@@ -500,3 +561,67 @@ impl ModelError {
 }
 
 const POISON: &str = "\u{0}poisoned";
+
+/// ` in x` for the axis ` x` (empty for an axial model's one direction).
+fn in_axis(axis: &str) -> String {
+    if axis.is_empty() {
+        String::new()
+    } else {
+        format!(" in{axis}")
+    }
+}
+
+impl ModelError {
+    /// A file without any of `what` (`nodes`, `parts`).
+    #[must_use]
+    pub fn empty(what: &'static str, span: Span) -> Self {
+        let help = match what {
+            "nodes" => Some("declare the points parts connect, e.g. `node base at 0 ft`"),
+            "parts" => Some("declare the parts that share the load with `part NAME { ... }`"),
+            _ => None,
+        };
+        ModelError::Empty { what, span, help }
+    }
+
+    /// More of `what` than a file may have.
+    #[must_use]
+    pub fn too_many(what: &'static str, count: usize, limit: usize, span: Span) -> Self {
+        let help = match what {
+            "declarations" => Some("split the calc into smaller files"),
+            "characters in a name" => Some(
+                "use a shorter name; the title block and comments can carry a longer description",
+            ),
+            _ => None,
+        };
+        ModelError::TooMany {
+            what,
+            count,
+            limit,
+            span,
+            help,
+        }
+    }
+
+    /// A block without a key it needs, with how to give that key.
+    #[must_use]
+    pub fn missing_key(block: String, key: &'static str, span: Span) -> Self {
+        let help = match key {
+            "E" => Some("give the modulus of elasticity, e.g. `E = 29000 ksi`"),
+            "nodes" => Some("list the nodes that move together, e.g. `nodes = a, b, c`"),
+            "ends" => Some("give the two nodes it spans, e.g. `ends = base, cap`"),
+            "material" => Some(
+                "name a declared material, e.g. `material = steel`, or give `stiffness` for a spring",
+            ),
+            "area" => {
+                Some("give `area = 11.9 in^2`, `area = circle(d = 10 in)` or `section = ...`")
+            }
+            _ => None,
+        };
+        ModelError::MissingKey {
+            block,
+            key,
+            span,
+            help: help.map(str::to_string),
+        }
+    }
+}

@@ -212,18 +212,16 @@ impl Builder {
                 x.zip(y).map(|(x, y)| [si_force(x), si_force(y)])
             }
             (Kind::Axial, Coord::Plane(_, sp)) => {
-                self.errors.push(ModelError::ModelKind {
-                    message: "an axial model takes a load as one force".into(),
+                self.errors.push(ModelError::AxialLoad {
+                    node: node.name.to_string(),
                     span: *sp,
-                    help: Some(format!("write `load {} = -95 kip`", node.name)),
                 });
                 None
             }
             (Kind::Plane, Coord::Axial(e)) => {
-                self.errors.push(ModelError::ModelKind {
-                    message: "a plane model takes a load as a pair (FX, FY)".into(),
+                self.errors.push(ModelError::PlaneLoad {
+                    node: node.name.to_string(),
                     span: e.span,
-                    help: Some(format!("write `load {} = (0 kip, -12 kip)`", node.name)),
                 });
                 None
             }
@@ -356,42 +354,32 @@ impl Builder {
             (Kind::Axial, None) | (Kind::Plane, Some((Axis::X, _))) => 0,
             (Kind::Plane, Some((Axis::Y, _))) => 1,
             (Kind::Axial, Some((_, sp))) => {
-                self.errors.push(ModelError::ModelKind {
-                    message: "an axial model has one direction; `settle` takes no `x` or `y`"
-                        .into(),
+                self.errors.push(ModelError::AxialDirection {
+                    statement: "settle",
+                    node: node.name.to_string(),
+                    example: " = -0.1 in",
                     span: sp,
-                    help: Some(format!("write `settle {} = -0.1 in`", node.name)),
                 });
                 return;
             }
             (Kind::Plane, None) => {
-                self.errors.push(ModelError::ModelKind {
-                    message: "in a plane model `settle` needs a direction".into(),
+                self.errors.push(ModelError::SettleDirection {
+                    node: node.name.to_string(),
                     span: node.span,
-                    help: Some(format!("write `settle {} y = -0.1 in`", node.name)),
                 });
                 return;
             }
         };
         if !c.built.nodes[i].fixed[direction] {
-            let dir = if c.built.kind == Kind::Plane {
-                if direction == 0 {
-                    " in x"
-                } else {
-                    " in y"
-                }
-            } else {
-                ""
+            let axis = match (c.built.kind, direction) {
+                (Kind::Axial, _) => "",
+                (Kind::Plane, 0) => " x",
+                (Kind::Plane, _) => " y",
             };
             self.errors.push(ModelError::SettleFree {
                 node: node.name.to_string(),
-                direction: dir.into(),
+                axis,
                 span,
-                help: Some(format!(
-                    "add `fix {}{}` for the support that moves",
-                    node.name,
-                    dir.replace(" in", "")
-                )),
             });
             return;
         }

@@ -133,13 +133,8 @@ impl<'a> Fields<'a> {
         self.map.contains_key(key)
     }
 
-    pub(super) fn missing(&self, key: &'static str, help: Option<String>) -> ModelError {
-        ModelError::MissingKey {
-            block: self.block.to_string(),
-            key,
-            span: self.span,
-            help,
-        }
+    pub(super) fn missing(&self, key: &'static str) -> ModelError {
+        ModelError::missing_key(self.block.to_string(), key, self.span)
     }
 
     /// The single expression of a key.

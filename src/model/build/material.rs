@@ -107,10 +107,7 @@ impl Builder {
         let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
         let e = self.opt(f.quantity("E", Dimension::PRESSURE, scope));
         if !f.has("E") {
-            self.errors.push(f.missing(
-                "E",
-                Some("give the modulus of elasticity, e.g. `E = 29000 ksi`".into()),
-            ));
+            self.errors.push(f.missing("E"));
         }
         let alpha = self
             .opt(f.quantity("alpha", Dimension::PER_TEMPERATURE, scope))

@@ -179,13 +179,12 @@ impl Builder {
     /// The stages of a build, in the order each needs the last.
     fn run(mut self, file: &ast::File) -> Result<Model, Vec<ModelError>> {
         if file.decls.len() > self.limits.max_declarations {
-            self.errors.push(ModelError::TooMany {
-                what: "declarations",
-                count: file.decls.len(),
-                limit: self.limits.max_declarations,
-                span: Span::new(0, 0),
-                help: Some("split the calc into smaller files".into()),
-            });
+            self.errors.push(ModelError::too_many(
+                "declarations",
+                file.decls.len(),
+                self.limits.max_declarations,
+                Span::new(0, 0),
+            ));
             return Err(self.errors);
         }
         let names = self.register(file);
@@ -246,11 +245,8 @@ impl Builder {
             &combinations,
         );
         if parts.is_empty() && self.errors.is_empty() {
-            self.errors.push(ModelError::Empty {
-                what: "parts",
-                span: Span::new(0, 0),
-                help: Some("declare the parts that share the load with `part NAME { ... }`".into()),
-            });
+            self.errors
+                .push(ModelError::empty("parts", Span::new(0, 0)));
         }
         if !self.errors.is_empty() {
             return Err(self.errors);

@@ -178,13 +178,15 @@ pub(super) fn fill_shard(
             continue;
         }
         if id.name.len() > limits.max_name_len {
-            errors.push((i, ModelError::TooMany {
-                what: "characters in a name",
-                count: id.name.len(),
-                limit: limits.max_name_len,
-                span: id.span,
-                help: Some("use a shorter name; the title block and comments can carry a longer description".into()),
-            }));
+            errors.push((
+                i,
+                ModelError::too_many(
+                    "characters in a name",
+                    id.name.len(),
+                    limits.max_name_len,
+                    id.span,
+                ),
+            ));
         }
         if let Some(what) = reserved(&id.name) {
             errors.push((

@@ -34,11 +34,8 @@ impl Builder {
             if !self.errors.is_empty() {
                 return None;
             }
-            self.errors.push(ModelError::Empty {
-                what: "nodes",
-                span: Span::new(0, 0),
-                help: Some("declare the points parts connect, e.g. `node base at 0 ft`".into()),
-            });
+            self.errors
+                .push(ModelError::empty("nodes", Span::new(0, 0)));
             return None;
         };
         Some((nodes, kind))
@@ -59,12 +56,14 @@ impl Builder {
                         continue;
                     };
                     match (kind, s.axis) {
-                        (Kind::Axial, Some((_, sp))) => self.errors.push(ModelError::ModelKind {
-                            message: "an axial model has one direction; `fix` takes no `x` or `y`"
-                                .into(),
-                            span: sp,
-                            help: Some(format!("write `fix {}`", s.node.name)),
-                        }),
+                        (Kind::Axial, Some((_, sp))) => {
+                            self.errors.push(ModelError::AxialDirection {
+                                statement: "fix",
+                                node: s.node.name.to_string(),
+                                example: "",
+                                span: sp,
+                            });
+                        }
                         (_, None) => nodes[i].fixed = [true, kind == Kind::Plane],
                         (Kind::Plane, Some((Axis::X, _))) => nodes[i].fixed[0] = true,
                         (Kind::Plane, Some((Axis::Y, _))) => nodes[i].fixed[1] = true,
@@ -92,15 +91,7 @@ impl Builder {
                     let f = Fields::new(&nb.block, what, &["nodes"], &mut self.errors);
                     let Some(list) = self.opt(f.names("nodes")) else {
                         if !f.has("nodes") {
-                            self.errors.push(
-                                f.missing(
-                                    "nodes",
-                                    Some(
-                                        "list the nodes that move together, e.g. `nodes = a, b, c`"
-                                            .into(),
-                                    ),
-                                ),
-                            );
+                            self.errors.push(f.missing("nodes"));
                         }
                         continue;
                     };
@@ -169,17 +160,12 @@ impl Builder {
                             .find(|(_, &i)| !seen.insert(i))
                             .map(|(id, _)| id);
                         if let Some(id) = twice {
-                            self.errors.push(ModelError::ModelKind {
-                                message: format!("node `{}` is tied to itself", id.name),
+                            self.errors.push(ModelError::TiedToItself {
+                                node: id.name.to_string(),
                                 span: id.span,
-                                help: Some("a tie joins different nodes, e.g. `tie a, b`".into()),
                             });
                         } else if apart {
-                            self.errors.push(ModelError::ModelKind {
-                                message: "in a plane model a tie joins nodes at one position".into(),
-                                span: t.span,
-                                help: Some("to join separated points, list them in a `rigid` body; a tie is a pin between nodes that coincide".into()),
-                            });
+                            self.errors.push(ModelError::TieApart { span: t.span });
                         } else {
                             ties.push(Tie {
                                 nodes: idx,

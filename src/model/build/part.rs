@@ -209,10 +209,7 @@ impl Builder {
             }),
             None => {
                 if !f.has("ends") {
-                    self.errors.push(f.missing(
-                        "ends",
-                        Some("give the two nodes it spans, e.g. `ends = base, cap`".into()),
-                    ));
+                    self.errors.push(f.missing("ends"));
                 }
             }
         }
@@ -262,10 +259,7 @@ impl Builder {
     ) -> Option<Law> {
         let material = match f.map.get("material") {
             None => {
-                self.errors.push(f.missing(
-                    "material",
-                    Some("name a declared material, e.g. `material = steel`, or give `stiffness` for a spring".into()),
-                ));
+                self.errors.push(f.missing("material"));
                 None
             }
             Some(_) => match self.opt(f.names("material")) {
@@ -345,12 +339,7 @@ impl Builder {
             inertia = Some(q.value);
         }
         if area.is_none() && !f.has("area") && !f.has("section") {
-            self.errors.push(f.missing(
-                "area",
-                Some(
-                    "give `area = 11.9 in^2`, `area = circle(d = 10 in)` or `section = ...`".into(),
-                ),
-            ));
+            self.errors.push(f.missing("area"));
         }
         match (material, area) {
             (Some(m), Some(a)) if a > 0.0 => Some(Law::Member {
