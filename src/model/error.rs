@@ -602,6 +602,28 @@ impl ModelError {
         }
     }
 
+    /// Two keys of a block that exclude each other, with which to keep.
+    #[must_use]
+    pub fn conflict(key: &str, other: &'static str, block: String, span: Span) -> Self {
+        let help = match (key, other) {
+            (_, "stiffness") => {
+                Some("a spring takes `stiffness` alone; a member takes `material` and `area`")
+            }
+            ("section", "area") => Some("`section` gives the area; drop `area`"),
+            ("buckling_length", "buckling_factor") => Some(
+                "give the effective length K·L as `buckling_length`, or K alone as `buckling_factor`",
+            ),
+            _ => None,
+        };
+        ModelError::Conflict {
+            key: key.to_string(),
+            other: other.to_string(),
+            block,
+            span,
+            help: help.map(str::to_string),
+        }
+    }
+
     /// A block without a key it needs, with how to give that key.
     #[must_use]
     pub fn missing_key(block: String, key: &'static str, span: Span) -> Self {

@@ -493,3 +493,33 @@ load b = 200 kN
     let table = tandem::report::text::solve_text(&a, &display);
     assert!(table.contains(&format!("warning: {sentence}\n")), "{table}");
 }
+
+/// Keys that exclude each other are refused with the key to keep, worded in
+/// the model's error table (one wording for each pair).
+#[test]
+fn conflicting_keys_say_which_to_keep() {
+    let cases = [
+        (
+            "part p { stiffness = 100 kip/in; material = s; area = 1 in^2; ends = a, b }",
+            "a spring takes `stiffness` alone",
+        ),
+        (
+            "part p { material = s; area = 1 in^2; section = circle(d = 1 in); ends = a, b }",
+            "`section` gives the area; drop `area`",
+        ),
+        (
+            "part p { material = s; section = circle(d = 1 in); buckling_length = 10 ft; buckling_factor = 1; ends = a, b }",
+            "K alone as `buckling_factor`",
+        ),
+    ];
+    for (part, help) in cases {
+        let text = format!(
+            "material s {{ E = 29000 ksi }}\nnode a at 0 ft\nnode b at 10 ft\nfix a\n{part}\nload b = 1 kip\n"
+        );
+        let src = tandem::source::Source::new("conflict.tandem", text);
+        let errors = tandem::check(&src).expect_err("refused");
+        let shown = tandem::diagnostic::render(&errors, &src, 200, false);
+        assert!(shown.contains("cannot both be given"), "{shown}");
+        assert!(shown.contains(help), "{shown}");
+    }
+}

@@ -219,16 +219,12 @@ impl Builder {
     fn spring_law(&mut self, f: &Fields<'_>, what: What<'_>, scope: &dyn Scope) -> Option<Law> {
         for other in ["material", "area", "section", "inertia"] {
             if let Some(e) = f.map.get(other) {
-                self.errors.push(ModelError::Conflict {
-                    key: other.into(),
-                    other: "stiffness".into(),
-                    block: what.to_string(),
-                    span: e.key.span,
-                    help: Some(
-                        "a spring takes `stiffness` alone; a member takes `material` and `area`"
-                            .into(),
-                    ),
-                });
+                self.errors.push(ModelError::conflict(
+                    other,
+                    "stiffness",
+                    what.to_string(),
+                    e.key.span,
+                ));
             }
         }
         let k = self.opt(f.quantity("stiffness", Dimension::STIFFNESS, scope));
@@ -281,13 +277,12 @@ impl Builder {
             },
         };
         if let (Some(a), Some(s)) = (f.map.get("area"), f.map.get("section")) {
-            self.errors.push(ModelError::Conflict {
-                key: "section".into(),
-                other: "area".into(),
-                block: what.to_string(),
-                span: s.key.span.to(a.key.span),
-                help: Some("`section` gives the area; drop `area`".into()),
-            });
+            self.errors.push(ModelError::conflict(
+                "section",
+                "area",
+                what.to_string(),
+                s.key.span.to(a.key.span),
+            ));
         }
         let mut area = None;
         let mut inertia = None;
@@ -429,13 +424,12 @@ impl Builder {
             .has("buckling_factor")
             .then(|| ratio_key("buckling_factor", 1.0, self));
         if let (Some(_), Some(e)) = (buckling_factor, f.map.get("buckling_length")) {
-            self.errors.push(ModelError::Conflict {
-                key: "buckling_length".into(),
-                other: "buckling_factor".into(),
-                block: what.to_string(),
-                span: e.key.span,
-                help: Some("give the effective length K·L as `buckling_length`, or K alone as `buckling_factor`".into()),
-            });
+            self.errors.push(ModelError::conflict(
+                "buckling_length",
+                "buckling_factor",
+                what.to_string(),
+                e.key.span,
+            ));
         }
         if (buckling_length.is_some() || buckling_factor.is_some())
             && !matches!(
