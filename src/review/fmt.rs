@@ -105,6 +105,19 @@ struct Item {
     row: Option<(&'static str, Line)>,
 }
 
+impl Item {
+    /// A one-line declaration of a run kind.
+    fn one(run: &'static str, line: Line) -> Item {
+        Item {
+            run: Some(run),
+            lines: vec![line],
+            body: 0..0,
+            blank_before: false,
+            row: None,
+        }
+    }
+}
+
 fn fold(s: &str) -> String {
     s.split_whitespace().collect::<Vec<_>>().join(" ")
 }
@@ -243,13 +256,6 @@ impl Ctx<'_> {
     }
 
     fn item(&self, d: &Decl) -> Item {
-        let one = |run: &'static str, line: Line| Item {
-            run: Some(run),
-            lines: vec![line],
-            body: 0..0,
-            blank_before: false,
-            row: None,
-        };
         match d {
             Decl::Calc(b) => self.block("calc {}", "calc", b.span.start(), b),
             Decl::Material(nb) => self.block(
@@ -270,7 +276,7 @@ impl Ctx<'_> {
                 nb.span.start(),
                 &nb.block,
             ),
-            Decl::Let(l) => one(
+            Decl::Let(l) => Item::one(
                 "let",
                 self.single(
                     format!("let {}", l.name.name),
@@ -281,7 +287,7 @@ impl Ctx<'_> {
             ),
             Decl::Node(n) => {
                 let (c, end) = self.coord(&n.at);
-                one(
+                Item::one(
                     "node",
                     self.single(
                         format!("node {}", n.name.name),
@@ -306,7 +312,7 @@ impl Ctx<'_> {
                     .map_or(start, |s| s.axis.map_or(s.node.span.end(), |a| a.1.end()));
                 // the keyword sits just before the first support
                 let kw = self.text[..start].rfind("fix").unwrap_or(start);
-                one(
+                Item::one(
                     "fix",
                     self.single(format!("fix {}", text.join(", ")), String::new(), kw, end),
                 )
@@ -314,7 +320,7 @@ impl Ctx<'_> {
             Decl::Tie(t) => {
                 let names: Vec<&str> = t.nodes.iter().map(|n| n.name.as_str()).collect();
                 let end = t.nodes.last().map_or(t.span.start(), |n| n.span.end());
-                one(
+                Item::one(
                     "tie",
                     self.single(
                         format!("tie {}", names.join(", ")),
@@ -327,7 +333,7 @@ impl Ctx<'_> {
             Decl::Group(g) => {
                 let names: Vec<&str> = g.members.iter().map(|n| n.name.as_str()).collect();
                 let end = g.members.last().map_or(g.span.end(), |n| n.span.end());
-                one(
+                Item::one(
                     "group",
                     self.single(
                         format!("group {}", g.name.name),
@@ -344,7 +350,7 @@ impl Ctx<'_> {
                     .find('=')
                     .map_or(c.name.span.end(), |i| c.name.span.end() + i + 1);
                 let terms = self.slice(Span::new(eq, end));
-                one(
+                Item::one(
                     "combine",
                     self.single(
                         format!("combine {}", c.name.name),
@@ -354,44 +360,7 @@ impl Ctx<'_> {
                     ),
                 )
             }
-            Decl::Check(c) => {
-                let op = match c.op {
-                    Compare::Le => "<=",
-                    Compare::Lt => "<",
-                    Compare::Ge => ">=",
-                    Compare::Gt => ">",
-                };
-                let mut head = format!("check {}", self.slice(c.label.span));
-                if let Some(e) = &c.each {
-                    head.push_str(&format!(" for {} in {}", e.var.name, e.group.name));
-                }
-                if let Some(u) = &c.under {
-                    head.push_str(" under");
-                    let names: Vec<&str> = u.names.iter().map(|n| n.name.as_str()).collect();
-                    if !names.is_empty() {
-                        head.push(' ');
-                        head.push_str(&names.join(", "));
-                    }
-                    match u.state {
-                        Some((crate::syntax::ast::State::Short, _)) => head.push_str(" short_term"),
-                        Some((crate::syntax::ast::State::Long, _)) => head.push_str(" long_term"),
-                        None => {}
-                    }
-                }
-                one(
-                    "check",
-                    self.single(
-                        head,
-                        format!(
-                            ": {} {op} {}",
-                            self.slice(c.lhs.span),
-                            self.slice(c.rhs.span)
-                        ),
-                        c.span.start(),
-                        c.rhs.span.end(),
-                    ),
-                )
-            }
+            Decl::Check(c) => self.check_item(c),
             Decl::Units(u) => {
                 let (text, end) = match u {
                     ast::Units::System(id) => (id.name.to_string(), id.span.end()),
@@ -404,49 +373,93 @@ impl Ctx<'_> {
                     ),
                 };
                 let start = self.text[..end].rfind("units").unwrap_or(0);
-                one(
+                Item::one(
                     "units",
                     self.single(format!("units {text}"), String::new(), start, end),
                 )
             }
-            Decl::Stmt(s) => one("stmt", self.stmt(s)),
-            Decl::Case(c) => {
-                let flags: String = c
-                    .flags
-                    .iter()
-                    .fold(String::new(), |acc, f| acc + " " + &f.name);
-                let header = format!("case {}{flags}", c.name.name);
-                let body_open = c.stmts.first().map_or(c.span.end(), |s| s.span().start());
-                let open = self.text[c.name.span.end()..body_open]
-                    .find('{')
-                    .map_or(c.name.span.end(), |i| c.name.span.end() + i);
-                let close = self.text[..c.span.end()].rfind('}').unwrap_or(c.span.end());
-                let has_comment_inside = self.text[open..close].contains('#');
-                if c.stmts.len() <= 1 && !has_comment_inside {
-                    let inner = c.stmts.first().map(|s| {
-                        let l = self.stmt(s);
-                        format!("{} {}", l.left, l.right)
-                    });
-                    let code = match inner {
-                        Some(s) => format!("{{ {s} }}"),
-                        None => "{ }".to_string(),
-                    };
-                    return one("case", self.single(header, code, c.span.start(), close + 1));
-                }
-                let mut lines = vec![Line {
-                    left: format!("{header} {{"),
-                    anchor: c.span.start(),
-                    ends_on: self.line(open),
-                    ..Line::default()
-                }];
-                for s in &c.stmts {
-                    let mut l = self.stmt(s);
-                    l.indent = 2;
-                    lines.push(l);
-                }
-                self.closed(lines, close)
+            Decl::Stmt(s) => Item::one("stmt", self.stmt(s)),
+            Decl::Case(c) => self.case_item(c),
+        }
+    }
+
+    /// `check "LABEL" [for X in G] [under ...]: LHS OP RHS` on one line.
+    fn check_item(&self, c: &ast::Check) -> Item {
+        let op = match c.op {
+            Compare::Le => "<=",
+            Compare::Lt => "<",
+            Compare::Ge => ">=",
+            Compare::Gt => ">",
+        };
+        let mut head = format!("check {}", self.slice(c.label.span));
+        if let Some(e) = &c.each {
+            head.push_str(&format!(" for {} in {}", e.var.name, e.group.name));
+        }
+        if let Some(u) = &c.under {
+            head.push_str(" under");
+            let names: Vec<&str> = u.names.iter().map(|n| n.name.as_str()).collect();
+            if !names.is_empty() {
+                head.push(' ');
+                head.push_str(&names.join(", "));
+            }
+            match u.state {
+                Some((crate::syntax::ast::State::Short, _)) => head.push_str(" short_term"),
+                Some((crate::syntax::ast::State::Long, _)) => head.push_str(" long_term"),
+                None => {}
             }
         }
+        Item::one(
+            "check",
+            self.single(
+                head,
+                format!(
+                    ": {} {op} {}",
+                    self.slice(c.lhs.span),
+                    self.slice(c.rhs.span)
+                ),
+                c.span.start(),
+                c.rhs.span.end(),
+            ),
+        )
+    }
+
+    /// A case: on one line when it has at most one statement and no
+    /// comment inside, else a block.
+    fn case_item(&self, c: &ast::Case) -> Item {
+        let flags: String = c
+            .flags
+            .iter()
+            .fold(String::new(), |acc, f| acc + " " + &f.name);
+        let header = format!("case {}{flags}", c.name.name);
+        let body_open = c.stmts.first().map_or(c.span.end(), |s| s.span().start());
+        let open = self.text[c.name.span.end()..body_open]
+            .find('{')
+            .map_or(c.name.span.end(), |i| c.name.span.end() + i);
+        let close = self.text[..c.span.end()].rfind('}').unwrap_or(c.span.end());
+        let has_comment_inside = self.text[open..close].contains('#');
+        if c.stmts.len() <= 1 && !has_comment_inside {
+            let inner = c.stmts.first().map(|s| {
+                let l = self.stmt(s);
+                format!("{} {}", l.left, l.right)
+            });
+            let code = match inner {
+                Some(s) => format!("{{ {s} }}"),
+                None => "{ }".to_string(),
+            };
+            return Item::one("case", self.single(header, code, c.span.start(), close + 1));
+        }
+        let mut lines = vec![Line {
+            left: format!("{header} {{"),
+            anchor: c.span.start(),
+            ends_on: self.line(open),
+            ..Line::default()
+        }];
+        for s in &c.stmts {
+            let mut l = self.stmt(s);
+            l.indent = 2;
+            lines.push(l);
+        }
+        self.closed(lines, close)
     }
 }
 
