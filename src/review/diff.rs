@@ -327,6 +327,31 @@ pub fn diff(
     display: &Display,
     min_change_percent: f64,
 ) -> Diff {
+    let (inputs, added, removed) = input_changes(old_src, old, new_src, new, display);
+    let changes = result_changes(old, new, min_change_percent);
+    let checks = check_changes(old, new, min_change_percent);
+    Diff {
+        old_name: old_src.name.clone(),
+        new_name: new_src.name.clone(),
+        inputs,
+        added,
+        removed,
+        results: changes,
+        checks,
+        governing: [governing(old), governing(new)],
+        min_change: min_change_percent,
+    }
+}
+
+/// The inputs that changed, as named facts: (changed and renamed,
+/// declarations added, declarations removed).
+fn input_changes(
+    old_src: &Source,
+    old: &Analysis,
+    new_src: &Source,
+    new: &Analysis,
+    display: &Display,
+) -> (Vec<InputChange>, Vec<String>, Vec<String>) {
     let fo = facts(&old.model, old_src, display);
     let fnew = facts(&new.model, new_src, display);
     let old_map: std::collections::HashMap<&str, &str> =
@@ -425,7 +450,11 @@ pub fn diff(
         .map(|(c, _)| c)
         .collect();
     inputs.extend(renamed);
+    (inputs, added, removed)
+}
 
+/// The results that changed by more than `min_change_percent`.
+fn result_changes(old: &Analysis, new: &Analysis, min_change_percent: f64) -> Vec<ResultChange> {
     let ro = results(&old.model, &old.solution);
     let rn = results(&new.model, &new.solution);
     let ro_map: std::collections::HashMap<(&str, &str), Quantity> = ro
@@ -465,7 +494,12 @@ pub fn diff(
             });
         }
     }
+    changes
+}
 
+/// The checks whose result or utilization changed (or that are in one
+/// revision only): pass → fail first, then other flips.
+fn check_changes(old: &Analysis, new: &Analysis, min_change_percent: f64) -> Vec<CheckChange> {
     let co = check_table(old);
     let cn = check_table(new);
     let co_map: std::collections::HashMap<(&str, &str), (Option<f64>, bool)> = co
@@ -512,17 +546,7 @@ pub fn diff(
     }
     // pass -> fail first, then other flips, then the rest
     checks.sort_by_key(|c| (!c.newly_fails(), !c.flipped()));
-    Diff {
-        old_name: old_src.name.clone(),
-        new_name: new_src.name.clone(),
-        inputs,
-        added,
-        removed,
-        results: changes,
-        checks,
-        governing: [governing(old), governing(new)],
-        min_change: min_change_percent,
-    }
+    checks
 }
 
 fn status(s: Option<(Option<f64>, bool)>) -> String {
