@@ -100,14 +100,7 @@ impl Builder {
         } else {
             self.member_law(&f, what, scope, names, material_at)
         };
-        let PartLimits {
-            misfit,
-            slack,
-            buckling_length,
-            buckling_factor,
-            slenderness_limit,
-            euler_fraction,
-        } = self.part_limits(&f, what, scope, nb, law.as_ref());
+        let limits = self.part_limits(&f, what, scope, nb, law.as_ref());
         let carries = self.part_carries(&f);
         let ends = ends?;
         let law = law?;
@@ -146,13 +139,16 @@ impl Builder {
             ends,
             law,
             length: Length::new::<meter>(length),
-            misfit,
+            misfit: limits.misfit,
             carries,
-            slack,
-            buckling_length: buckling_length
-                .or_else(|| buckling_factor.map(|k| Length::new::<meter>(k * length))),
-            slenderness_limit,
-            euler_fraction,
+            slack: limits.slack,
+            buckling_length: limits.buckling_length.or_else(|| {
+                limits
+                    .buckling_factor
+                    .map(|k| Length::new::<meter>(k * length))
+            }),
+            slenderness_limit: limits.slenderness_limit,
+            euler_fraction: limits.euler_fraction,
             span: nb.span,
         };
         let k = part.stiffness(materials).value;
