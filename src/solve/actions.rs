@@ -20,6 +20,95 @@ pub(crate) struct Actions {
     pub f_loads: Vec<f64>,
 }
 
+/// One source of a part's free elongation δ₀, with its numbers, so that the
+/// report shows exactly what the solver added.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum FreeSource {
+    /// The part's `misfit`.
+    Misfit(f64),
+    /// factor · α · ΔT · L of a case's temperature change.
+    Thermal {
+        factor: f64,
+        alpha: f64,
+        change: f64,
+        length: f64,
+    },
+    /// factor · ε · L of a case's free strain.
+    Strain {
+        factor: f64,
+        strain: f64,
+        length: f64,
+    },
+}
+
+impl FreeSource {
+    /// Its contribution to δ₀ (m).
+    pub fn value(&self) -> f64 {
+        match *self {
+            FreeSource::Misfit(m) => m,
+            FreeSource::Thermal {
+                factor,
+                alpha,
+                change,
+                length,
+            } => factor * alpha * change * length,
+            FreeSource::Strain {
+                factor,
+                strain,
+                length,
+            } => factor * strain * length,
+        }
+    }
+}
+
+/// Every source of free elongation of the factored cases `terms`, as
+/// (part, source), by part; each part's in the order they add up: its
+/// misfit, then each case's temperature and free strain.
+pub fn free_sources(model: &Model, terms: &[(usize, f64)]) -> Vec<(usize, FreeSource)> {
+    let mut out: Vec<(usize, FreeSource)> = model
+        .parts
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| p.misfit.value != 0.0)
+        .map(|(i, p)| (i, FreeSource::Misfit(p.misfit.value)))
+        .collect();
+    for &(ci, factor) in terms {
+        let case = &model.cases[ci];
+        if !case.temperatures.is_empty() {
+            let on_part = case.temperature_by_part(model.parts.len());
+            for ((i, p), t) in model.parts.iter().enumerate().zip(on_part) {
+                let (Some(t), Some(m)) = (t, p.material()) else {
+                    continue;
+                };
+                if let Some(alpha) = model.materials[m].alpha {
+                    out.push((
+                        i,
+                        FreeSource::Thermal {
+                            factor,
+                            alpha: alpha.value,
+                            change: t.change.value,
+                            length: p.length.value,
+                        },
+                    ));
+                }
+            }
+        }
+        for s in &case.strains {
+            out.push((
+                s.part,
+                FreeSource::Strain {
+                    factor,
+                    strain: s.strain.value,
+                    length: model.parts[s.part].length.value,
+                },
+            ));
+        }
+    }
+    // stable: each part's sources keep the order they add up in
+    out.sort_by_key(|(i, _)| *i);
+    out
+}
+
 /// Which actions of the cases to take.
 #[derive(Clone, Copy, PartialEq, Eq)]
 pub(crate) struct Take {
@@ -52,9 +141,13 @@ impl System<'_> {
         let mut u0 = vec![0.0; nn * nd];
         let mut loads = vec![0.0; nn * nd];
         let mut free = vec![0.0; model.parts.len()];
-        if take.misfit {
-            for (i, p) in model.parts.iter().enumerate() {
-                free[i] = p.misfit.value;
+        for (i, source) in free_sources(model, terms) {
+            let wanted = match source {
+                FreeSource::Misfit(_) => take.misfit,
+                FreeSource::Thermal { .. } | FreeSource::Strain { .. } => take.strains,
+            };
+            if wanted {
+                free[i] += source.value();
             }
         }
         let mut moved: std::collections::HashMap<(usize, usize), f64> =
@@ -72,25 +165,6 @@ impl System<'_> {
                         loads[l.node * nd + d] += factor * l.force[d].value;
                     }
                 }
-            }
-            if !take.strains {
-                continue;
-            }
-            let on_part = if case.temperatures.is_empty() {
-                Vec::new()
-            } else {
-                case.temperature_by_part(model.parts.len())
-            };
-            for ((i, p), t) in model.parts.iter().enumerate().zip(on_part) {
-                let Some(m) = p.material() else { continue };
-                if let Some(t) = t {
-                    if let Some(alpha) = model.materials[m].alpha {
-                        free[i] += factor * alpha.value * t.change.value * p.length.value;
-                    }
-                }
-            }
-            for s in &case.strains {
-                free[s.part] += factor * s.strain.value * model.parts[s.part].length.value;
             }
         }
         for (&(node, d), &v) in &moved {

@@ -26,6 +26,7 @@ pub use results::{
     verified, CombinationResult, NodeResult, PartResult, PartState, Solution, EQUILIBRIUM_TOLERANCE,
 };
 
+pub use actions::{free_sources, FreeSource};
 pub(crate) use actions::{Actions, Take};
 pub(crate) use system::System;
 

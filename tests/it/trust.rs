@@ -523,3 +523,33 @@ fn conflicting_keys_say_which_to_keep() {
         assert!(shown.contains(help), "{shown}");
     }
 }
+
+/// The report shows the free elongation the solver used, source by source:
+/// misfit, then α·ΔT·L, then ε·L (the solver hands its sources over; the
+/// report does not find them again).
+#[test]
+fn free_elongation_is_reported_from_the_solvers_own_sources() {
+    let text = "material steel { E = 200 GPa; alpha = 12e-6/degC }
+node a at 0 m
+node b at 2 m
+fix a
+fix b
+part rod { material = steel; area = 100 mm^2; ends = a, b; misfit = 0.1 mm }
+case heat { temperature rod = 10 degC; strain rod = 0.0001 }
+";
+    let src = tandem::source::Source::new("free.tandem", text);
+    let a = tandem::analyse(&src).expect("analyses");
+    // δ₀ = 0.1 mm + 12e-6/degC · 10 degC · 2 m + 1e-4 · 2 m = 0.54 mm (hand arithmetic)
+    let free = a.solution.combinations[0].parts[0].free_elongation.value;
+    assert!((free - 0.54e-3).abs() < 1e-15, "{free}");
+    let sources = tandem::solve::free_sources(&a.model, &a.model.combinations[0].terms);
+    let sum: f64 = sources.iter().map(|(_, s)| s.value()).sum();
+    assert_eq!(
+        sum.to_bits(),
+        free.to_bits(),
+        "the same additions in the same order"
+    );
+    let display = tandem::report::Display::for_model(&a.model, 4);
+    let md = tandem::report::markdown::report(&src, &a, &display);
+    assert!(md.contains("δ₀ = misfit + α·ΔT·L + ε·L = "), "{md}");
+}

@@ -380,28 +380,10 @@ fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
         f, model, r, ci, ..
     } = *c;
     doc.h(3, "Part forces and stresses");
-    // each term's temperature change and free strain on every part, found
-    // once (not searched for each part)
-    let np = model.parts.len();
+    // every source of free elongation the solver added, by part
     let combo = &model.combinations[ci];
-    let on_part: Vec<_> = combo
-        .terms
-        .iter()
-        .map(|&(case, _)| {
-            let c = &model.cases[case];
-            let t = if c.temperatures.is_empty() {
-                Vec::new()
-            } else {
-                c.temperature_by_part(np)
-            };
-            let s = if c.strains.is_empty() {
-                Vec::new()
-            } else {
-                c.strain_by_part(np)
-            };
-            (t, s)
-        })
-        .collect();
+    let sources_of = crate::solve::free_sources(model, &combo.terms);
+    let mut next_source = 0;
     for (i, p) in model.parts.iter().enumerate() {
         let pr = &r.parts[i];
         let k = p.stiffness(&model.materials).value;
@@ -410,50 +392,11 @@ fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
         // Free elongation from its sources.
         let mut sources = Vec::new();
         let mut num = Vec::new();
-        if p.misfit.value != 0.0 {
-            sources.push("misfit".to_string());
-            num.push(f.small_t(p.misfit.value));
-        }
-        if let Some(m) = p.material() {
-            let mat = &model.materials[m];
-            for (&(_, factor), (temps, strains)) in combo.terms.iter().zip(&on_part) {
-                let t = temps.get(i).copied().flatten();
-                if let (Some(t), Some(alpha)) = (t, mat.alpha) {
-                    sources.push(if (factor - 1.0).abs() > 0.0 {
-                        format!("{factor}·α·ΔT·L")
-                    } else {
-                        "α·ΔT·L".into()
-                    });
-                    let fac = if (factor - 1.0).abs() > 0.0 {
-                        format!("{factor} · ")
-                    } else {
-                        String::new()
-                    };
-                    num.push(format!(
-                        "{fac}{} · {} · {}",
-                        f.alpha(alpha.value),
-                        f.temp(t.change.value),
-                        f.with(p.length.value, &f.d.small)
-                    ));
-                }
-                if let Some(s) = strains.get(i).copied().flatten() {
-                    let fac = if (factor - 1.0).abs() > 0.0 {
-                        format!("{factor} · ")
-                    } else {
-                        String::new()
-                    };
-                    sources.push(if fac.is_empty() {
-                        "ε·L".into()
-                    } else {
-                        format!("{factor}·ε·L")
-                    });
-                    num.push(format!(
-                        "{fac}{} · {}",
-                        f.microstrain(s.strain.value),
-                        f.with(p.length.value, &f.d.small)
-                    ));
-                }
-            }
+        while let Some(&(_, source)) = sources_of.get(next_source).filter(|(j, _)| *j == i) {
+            next_source += 1;
+            let (symbols, numbers) = free_source(f, &source);
+            sources.push(symbols);
+            num.push(numbers);
         }
         if !sources.is_empty() {
             doc.eq(&format!(
@@ -700,5 +643,54 @@ impl Fmt<'_> {
 
     pub(super) fn plain_rad(&self, v: f64) -> String {
         bracket_negative(format!("{} rad", self.n(v)))
+    }
+}
+
+/// One source of free elongation: in symbols (`α·ΔT·L`, `1.2·ε·L`) and
+/// with its numbers substituted.
+fn free_source(f: &Fmt<'_>, source: &crate::solve::FreeSource) -> (String, String) {
+    use crate::solve::FreeSource;
+    // a factor other than 1 is written before the symbols and the numbers
+    let factored = |factor: f64, symbols: &str| {
+        if (factor - 1.0).abs() > 0.0 {
+            (format!("{factor}·{symbols}"), format!("{factor} · "))
+        } else {
+            (symbols.to_string(), String::new())
+        }
+    };
+    match *source {
+        FreeSource::Misfit(m) => ("misfit".into(), f.small_t(m)),
+        FreeSource::Thermal {
+            factor,
+            alpha,
+            change,
+            length,
+        } => {
+            let (symbols, times) = factored(factor, "α·ΔT·L");
+            (
+                symbols,
+                format!(
+                    "{times}{} · {} · {}",
+                    f.alpha(alpha),
+                    f.temp(change),
+                    f.with(length, &f.d.small)
+                ),
+            )
+        }
+        FreeSource::Strain {
+            factor,
+            strain,
+            length,
+        } => {
+            let (symbols, times) = factored(factor, "ε·L");
+            (
+                symbols,
+                format!(
+                    "{times}{} · {}",
+                    f.microstrain(strain),
+                    f.with(length, &f.d.small)
+                ),
+            )
+        }
     }
 }
