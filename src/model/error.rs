@@ -624,6 +624,65 @@ impl ModelError {
         }
     }
 
+    /// A title-block value that is not a quoted string.
+    #[must_use]
+    pub fn title_not_string(key: &str, span: Span) -> Self {
+        ModelError::Expected {
+            expected: format!("a quoted string for `{key}`"),
+            span,
+            found: "not a string".into(),
+            help: Some(format!("write `{key} = \"...\"`")),
+        }
+    }
+
+    /// `ends` that are not two nodes.
+    #[must_use]
+    pub fn ends_count(count: usize, span: Span) -> Self {
+        ModelError::Expected {
+            expected: "two nodes for `ends`".into(),
+            span,
+            found: format!("{count} node(s)"),
+            help: Some("write `ends = bottom, top`".into()),
+        }
+    }
+
+    /// A unit's name where a declared name is expected (`ends = m, b`).
+    #[must_use]
+    pub fn unit_as_name(unit: &str, span: Span) -> Self {
+        ModelError::Expected {
+            expected: "a name".into(),
+            span,
+            found: format!("`{unit}`, which is a unit"),
+            help: Some(
+                "unit names cannot name nodes, parts or materials; \
+                 rename the declaration and its uses (e.g. `m_1`)"
+                    .into(),
+            ),
+        }
+    }
+
+    /// A negative creep coefficient.
+    #[must_use]
+    pub fn negative_creep(what: String, value: f64, span: Span) -> Self {
+        ModelError::NotPositive {
+            what,
+            value: format!("{value}"),
+            span,
+            help: Some("a creep coefficient is zero or more, typically 1.5 to 3".into()),
+        }
+    }
+
+    /// A modulus of elasticity that is zero or less.
+    #[must_use]
+    pub fn modulus_not_positive(what: String, span: Span) -> Self {
+        ModelError::NotPositive {
+            what,
+            value: "zero or less".into(),
+            span,
+            help: Some("the modulus of elasticity is a positive pressure".into()),
+        }
+    }
+
     /// A block without a key it needs, with how to give that key.
     #[must_use]
     pub fn missing_key(block: String, key: &'static str, span: Span) -> Self {
@@ -637,6 +696,9 @@ impl ModelError {
             "area" => {
                 Some("give `area = 11.9 in^2`, `area = circle(d = 10 in)` or `section = ...`")
             }
+            "inertia" => Some(
+                "a buckling check needs a second moment: give `section = ring(...)` or `inertia = ...`",
+            ),
             _ => None,
         };
         ModelError::MissingKey {

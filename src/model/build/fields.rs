@@ -187,16 +187,7 @@ impl<'a> Fields<'a> {
                     // `node m at ...` is refused (`m` is a unit); its uses
                     // say why rather than only that `m` is not a name.
                     ExprKind::Unit(u) if u.factors.len() == 1 && u.factors[0].power == 1 => {
-                        Err(ModelError::Expected {
-                            expected: "a name".into(),
-                            span: x.span,
-                            found: format!("`{}`, which is a unit", u.factors[0].name),
-                            help: Some(
-                                "unit names cannot name nodes, parts or materials; \
-                                 rename the declaration and its uses (e.g. `m_1`)"
-                                    .into(),
-                            ),
-                        })
+                        Err(ModelError::unit_as_name(&u.factors[0].name, x.span))
                     }
                     _ => Err(ModelError::Expected {
                         expected: "a name".into(),

@@ -30,12 +30,12 @@ impl Builder {
                         if let Some(e) = f.map.get(key) {
                             match &e.value {
                                 Value::Str(s) => title.fields.push((key, s.text.clone())),
-                                Value::Exprs(list) => self.errors.push(ModelError::Expected {
-                                    expected: format!("a quoted string for `{key}`"),
-                                    span: list[0].span.to(list[list.len() - 1].span),
-                                    found: "not a string".into(),
-                                    help: Some(format!("write `{key} = \"...\"`")),
-                                }),
+                                Value::Exprs(list) => {
+                                    self.errors.push(ModelError::title_not_string(
+                                        key,
+                                        list[0].span.to(list[list.len() - 1].span),
+                                    ));
+                                }
                             }
                         }
                     }
@@ -140,12 +140,11 @@ impl Builder {
             .map(|q| q.value);
         if let Some(c) = creep {
             if c < 0.0 {
-                self.errors.push(ModelError::NotPositive {
-                    what: format!("`creep` of {what}"),
-                    value: format!("{c}"),
-                    span: f.map.get("creep").map(|e| e.span).unwrap_or_default(),
-                    help: Some("a creep coefficient is zero or more, typically 1.5 to 3".into()),
-                });
+                self.errors.push(ModelError::negative_creep(
+                    format!("`creep` of {what}"),
+                    c,
+                    f.map.get("creep").map(|e| e.span).unwrap_or_default(),
+                ));
             }
         }
         let mut e_sources = Vec::new();
@@ -169,12 +168,10 @@ impl Builder {
         let e = e?;
         if e.value <= 0.0 {
             let sp = f.map.get("E").map(|x| x.span).unwrap_or_default();
-            self.errors.push(ModelError::NotPositive {
-                what: format!("`E` of {what}"),
-                value: "zero or less".into(),
-                span: sp,
-                help: Some("the modulus of elasticity is a positive pressure".into()),
-            });
+            self.errors.push(ModelError::modulus_not_positive(
+                format!("`E` of {what}"),
+                sp,
+            ));
             return None;
         }
         // keys derived from other names, for the report's substitution

@@ -194,15 +194,12 @@ impl Builder {
                     }
                 }
             }
-            Some(list) => self.errors.push(ModelError::Expected {
-                expected: "two nodes for `ends`".into(),
-                span: list
-                    .first()
+            Some(list) => self.errors.push(ModelError::ends_count(
+                list.len(),
+                list.first()
                     .map_or(nb.block.span, |i| i.span)
                     .to(list.last().map_or(nb.block.span, |i| i.span)),
-                found: format!("{} node(s)", list.len()),
-                help: Some("write `ends = bottom, top`".into()),
-            }),
+            )),
             None => {
                 if !f.has("ends") {
                     self.errors.push(f.missing("ends"));
@@ -441,12 +438,8 @@ impl Builder {
                 .get("buckling_length")
                 .or_else(|| f.map.get("buckling_factor"))
                 .map_or(nb.span, |e| e.span);
-            self.errors.push(ModelError::MissingKey {
-                block: what.to_string(),
-                key: "inertia",
-                span: sp,
-                help: Some("a buckling check needs a second moment: give `section = ring(...)` or `inertia = ...`".into()),
-            });
+            self.errors
+                .push(ModelError::missing_key(what.to_string(), "inertia", sp));
         }
         PartLimits {
             misfit,
