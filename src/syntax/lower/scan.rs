@@ -16,12 +16,10 @@ pub fn parse(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
 }
 
 pub(super) fn parse_with(text: &str) -> std::result::Result<File, Vec<SyntaxError>> {
-    let (pre, chunks, comments) = prescan(text);
+    let (pre, chunks) = prescan(text);
     if !pre.is_empty() {
         return Err(pre);
     }
-    let blanked = blanked(text, &comments);
-    let text: &str = &blanked;
     // Large files are parsed on every core; statements are independent.
     // They differ in length (a file's nodes come before its longer parts),
     // so the text is cut into many runs for the pool to balance.
@@ -117,9 +115,8 @@ pub(super) fn statement(text: &str, start: usize, end: usize) -> Result<Option<D
 
 /// Braces, strings and nesting depth, checked before pest runs so that the
 /// messages can point at the opening brace or quote, and so that hostile
-/// nesting never reaches the recursive parser; the statements (line ends
-/// and `;` outside braces) and the comments, as ranges.
-pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) {
+/// nesting never reaches the recursive parser.
+pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
     let mut errors = Vec::new();
     let mut braces: Vec<usize> = Vec::new();
     let mut depth = 0usize;
@@ -129,7 +126,6 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) 
     let mut has_code = false;
     // `^` is right-associative, so a chain of them nests; count per statement.
     let mut carets = 0usize;
-    let mut comments = Vec::new();
     let mut i = 0;
     while i < bytes.len() {
         let b = bytes[i];
@@ -138,11 +134,9 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) 
         }
         match b {
             b'#' => {
-                let start = i;
                 while i < bytes.len() && bytes[i] != b'\n' {
                     i += 1;
                 }
-                comments.push((start, i));
                 continue;
             }
             b'"' => {
@@ -175,7 +169,7 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) 
                         span: Span::new(i, i + 1),
                         limit: MAX_NESTING,
                     });
-                    return (errors, chunks, comments);
+                    return (errors, chunks);
                 }
             }
             b')' => depth = depth.saturating_sub(1),
@@ -186,7 +180,7 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) 
                         span: Span::new(i, i + 1),
                         limit: MAX_NESTING,
                     });
-                    return (errors, chunks, comments);
+                    return (errors, chunks);
                 }
             }
             b'\n' | b';' => {
@@ -215,22 +209,5 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<Range>, Vec<Range>) 
             span: Span::new(open, open + 1),
         });
     }
-    (errors, chunks, comments)
-}
-
-/// A stretch of the text, by byte offsets: a statement or a comment.
-type Range = (usize, usize);
-
-/// The text with every comment blanked to spaces (the same length, so that
-/// every span holds), for pest; the text itself when it has no comment.
-fn blanked<'t>(text: &'t str, comments: &[(usize, usize)]) -> std::borrow::Cow<'t, str> {
-    if comments.is_empty() {
-        return std::borrow::Cow::Borrowed(text);
-    }
-    let mut bytes = text.as_bytes().to_vec();
-    for &(start, end) in comments {
-        bytes[start..end].fill(b' ');
-    }
-    // whole comments (from `#` to a line end) were replaced: still UTF-8
-    String::from_utf8(bytes).map_or(std::borrow::Cow::Borrowed(text), std::borrow::Cow::Owned)
+    (errors, chunks)
 }
