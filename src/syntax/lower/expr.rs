@@ -47,6 +47,21 @@ pub(super) fn unit_expr(p: Pair<'_, Rule>) -> Result<UnitExpr> {
 }
 
 pub(super) fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
+    // The commonest expression is one name (`material = steel`, `ends = a,
+    // b`): read from its text, the tree of levels it went through (an
+    // expression of a term of a power of a word) is not walked.
+    if p.as_rule() == Rule::expr {
+        let text = p.as_str().trim_end_matches([' ', '\t', '\r']);
+        let mut chars = text.chars();
+        if chars
+            .next()
+            .is_some_and(|c| c.is_ascii_alphabetic() || c == '_')
+            && chars.all(|c| c.is_ascii_alphanumeric() || c == '_')
+        {
+            let start = base() + p.as_span().start();
+            return Ok(word_expr(text.into(), Span::new(start, start + text.len())));
+        }
+    }
     // Most levels of an expression hold one operand and need no span of
     // their own: it is worked out only where it is used.
     let at = p.clone();
