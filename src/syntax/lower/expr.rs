@@ -62,8 +62,18 @@ pub(super) fn expr(p: Pair<'_, Rule>) -> Result<Expr> {
             return Ok(word_expr(text.into(), Span::new(start, start + text.len())));
         }
     }
-    // Most levels of an expression hold one operand and need no span of
-    // their own: it is worked out only where it is used.
+    // A level that holds one operand (a sum of one term, a power without
+    // exponent, ...) is that operand.
+    if matches!(
+        p.as_rule(),
+        Rule::expr | Rule::term | Rule::unary | Rule::power
+    ) {
+        let mut inner = p.clone().into_inner();
+        if let (Some(only), None) = (inner.next(), inner.next()) {
+            return expr(only);
+        }
+    }
+    // The span of a level is worked out only where it is used.
     let at = p.clone();
     let sp = || span(&at);
     match p.as_rule() {
