@@ -1,6 +1,6 @@
-//! Any input: the checker gives a model or diagnostics, never a panic; the
-//! outline read gives what the full parse and build give; a model that
-//! solves keeps equilibrium.
+//! Any input: the checker gives a model or diagnostics, never a panic; a
+//! model that solves keeps equilibrium; the whole analysis and its report
+//! never panic.
 #![no_main]
 
 use libfuzzer_sys::fuzz_target;
@@ -10,15 +10,7 @@ fuzz_target!(|data: &[u8]| {
         return;
     };
     let src = tandem::source::Source::new("fuzz.tandem", text);
-    let checked = tandem::check(&src);
-    let full = tandem::syntax::parse(text)
-        .map_err(|es| es.into_iter().map(tandem::Error::from).collect::<Vec<_>>())
-        .and_then(|file| {
-            tandem::model::build(&file, tandem::model::Limits::default())
-                .map_err(|es| es.into_iter().map(tandem::Error::from).collect())
-        });
-    assert!(checked == full, "outline and full parse differ");
-    match checked {
+    match tandem::check(&src) {
         Ok(model) => {
             if let Ok(solution) = tandem::solve::solve(&model) {
                 // every result was verified: finite and in equilibrium

@@ -338,65 +338,8 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
             stress_over_yield: *ratio,
         })
         .collect();
-    let forces = |list: &'a [f64]| -> Vec<PartForce<'a>> {
-        model
-            .parts
-            .iter()
-            .zip(list)
-            .map(|(p, f)| PartForce {
-                part: &p.name,
-                force_N: *f,
-            })
-            .collect()
-    };
-    let capacity = a
-        .capacity
-        .iter()
-        .map(|c| Capacity {
-            combination: &combos[c.combination].name,
-            first_yield_factor: c.first_yield,
-            plastic_limit_factor: c.limit,
-            ratio: c.first_yield.zip(c.limit).map(|(y, l)| l / y),
-            sequence: c
-                .events
-                .iter()
-                .map(|e| YieldEvent {
-                    part: &model.parts[e.part].name,
-                    event: if e.released { "release" } else { "yield" },
-                    load_factor: e.lambda,
-                    sense: if e.tension { "tension" } else { "compression" },
-                })
-                .collect(),
-            limit_forces: forces(&c.limit_forces),
-            residual_forces: forces(&c.residual),
-            note: &c.note,
-        })
-        .collect();
-    let long_term = a
-        .long_term
-        .iter()
-        .map(|l| {
-            let short = &combos[l.combination];
-            LongTerm {
-                combination: &short.name,
-                note: &l.note,
-                parts: l.result.as_ref().map(|r| {
-                    model
-                        .parts
-                        .iter()
-                        .enumerate()
-                        .map(|(i, p)| LongTermPart {
-                            name: &p.name,
-                            short_term_force_N: short.parts[i].force.value,
-                            long_term_force_N: r.parts[i].force.value,
-                            short_term_stress_Pa: short.parts[i].stress.map(|s| s.value),
-                            long_term_stress_Pa: r.parts[i].stress.map(|s| s.value),
-                        })
-                        .collect()
-                }),
-            }
-        })
-        .collect();
+    let capacity = capacity(a);
+    let long_term = long_term(a);
     let long_term_checks = a.long_term_checks.as_ref().map(|(lt, c)| {
         c.outcomes
             .iter()
@@ -455,4 +398,71 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
 #[must_use]
 pub fn solution_json(file: &str, a: &crate::Analysis) -> Value {
     serde_json::to_value(document(file, a)).unwrap_or(Value::Null)
+}
+
+/// Each combination's capacity path: events, and the forces at the limit.
+fn capacity<'a>(a: &'a crate::Analysis) -> Vec<Capacity<'a>> {
+    let (model, combos) = (&a.model, &a.solution.combinations);
+    let forces = |list: &'a [f64]| -> Vec<PartForce<'a>> {
+        model
+            .parts
+            .iter()
+            .zip(list)
+            .map(|(p, f)| PartForce {
+                part: &p.name,
+                force_N: *f,
+            })
+            .collect()
+    };
+    a.capacity
+        .iter()
+        .map(|c| Capacity {
+            combination: &combos[c.combination].name,
+            first_yield_factor: c.first_yield,
+            plastic_limit_factor: c.limit,
+            ratio: c.first_yield.zip(c.limit).map(|(y, l)| l / y),
+            sequence: c
+                .events
+                .iter()
+                .map(|e| YieldEvent {
+                    part: &model.parts[e.part].name,
+                    event: if e.released { "release" } else { "yield" },
+                    load_factor: e.lambda,
+                    sense: if e.tension { "tension" } else { "compression" },
+                })
+                .collect(),
+            limit_forces: forces(&c.limit_forces),
+            residual_forces: forces(&c.residual),
+            note: &c.note,
+        })
+        .collect()
+}
+
+/// Each combination's long-term state, part by part beside the short term.
+fn long_term(a: &crate::Analysis) -> Vec<LongTerm<'_>> {
+    let (model, combos) = (&a.model, &a.solution.combinations);
+    a.long_term
+        .iter()
+        .map(|l| {
+            let short = &combos[l.combination];
+            LongTerm {
+                combination: &short.name,
+                note: &l.note,
+                parts: l.result.as_ref().map(|r| {
+                    model
+                        .parts
+                        .iter()
+                        .enumerate()
+                        .map(|(i, p)| LongTermPart {
+                            name: &p.name,
+                            short_term_force_N: short.parts[i].force.value,
+                            long_term_force_N: r.parts[i].force.value,
+                            short_term_stress_Pa: short.parts[i].stress.map(|s| s.value),
+                            long_term_stress_Pa: r.parts[i].stress.map(|s| s.value),
+                        })
+                        .collect()
+                }),
+            }
+        })
+        .collect()
 }

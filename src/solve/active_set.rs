@@ -158,3 +158,55 @@ pub(super) fn engaged_stiffness(model: &Model, modes: &[Mode], k_full: &[f64]) -
         })
         .collect()
 }
+
+/// Each part's mode before the first trial: as its law says when it carries
+/// both senses and has no gap; in the sense it carries, or slack, otherwise.
+pub(super) fn initial_modes(model: &Model) -> Vec<Mode> {
+    model
+        .parts
+        .iter()
+        .map(|p| match (p.carries, p.slack.value > 0.0) {
+            (Carries::Both, false) => Mode::Linear,
+            (Carries::Tension, _) => Mode::Tension,
+            (Carries::Compression, _) => Mode::Compression,
+            (Carries::Both, true) => Mode::Slack,
+        })
+        .collect()
+}
+
+/// Each one-sense or gapped part whose mode is wrong for its elongation,
+/// with the mode it wants and how far its elongation is from its own mode.
+/// A part at the edge of its mode by round-off keeps it.
+pub(super) fn wrong_parts(
+    model: &Model,
+    nonlinear: &[usize],
+    modes: &[Mode],
+    elong: &[f64],
+    free: &[f64],
+) -> Vec<(usize, Mode, f64)> {
+    let mut wrong = Vec::new();
+    for &i in nonlinear {
+        let p = &model.parts[i];
+        let delta = elong[i] - free[i];
+        let s = p.slack.value;
+        let tol = 1e-12 * p.length.value.max(1e-3);
+        let want = match p.carries {
+            Carries::Tension | Carries::Both if delta > s => Mode::Tension,
+            Carries::Compression | Carries::Both if delta < -s => Mode::Compression,
+            _ => Mode::Slack,
+        };
+        let edge = match (modes[i], want) {
+            (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs() <= tol,
+            (Mode::Compression, _) | (_, Mode::Compression) => (delta + s).abs() <= tol,
+            _ => false,
+        };
+        if want != modes[i] && !edge {
+            let by = match (modes[i], want) {
+                (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs(),
+                _ => (delta + s).abs(),
+            };
+            wrong.push((i, want, by));
+        }
+    }
+    wrong
+}

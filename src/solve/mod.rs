@@ -31,7 +31,9 @@ pub(crate) use actions::{Actions, Take};
 pub(crate) use system::System;
 
 // What the parts of the solver share (they see it through `use super::*`).
-use active_set::{engaged_stiffness, law, newton_modes, state_hash, Mode};
+use active_set::{
+    engaged_stiffness, initial_modes, law, newton_modes, state_hash, wrong_parts, Mode,
+};
 use mechanism::{dominant, singular};
 use results::{gather_results, ResultInputs};
 use system::{numeric, Elements};
@@ -72,16 +74,7 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
     if kmax > 1e12 * kmin {
         warnings.push(crate::warning::Warning::StiffnessSpread { ratio: kmax / kmin });
     }
-    let initial: Vec<Mode> = model
-        .parts
-        .iter()
-        .map(|p| match (p.carries, p.slack.value > 0.0) {
-            (Carries::Both, false) => Mode::Linear,
-            (Carries::Tension, _) => Mode::Tension,
-            (Carries::Compression, _) => Mode::Compression,
-            (Carries::Both, true) => Mode::Slack,
-        })
-        .collect();
+    let initial = initial_modes(model);
     let nonlinear: Vec<usize> = (0..model.parts.len())
         .filter(|&i| initial[i] != Mode::Linear)
         .collect();
@@ -162,32 +155,7 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
                 return Err(numeric(model, "no factorisation".into()));
             };
             let (q, elong) = system.respond(f, &k, &target, &zero, &a);
-            // Each wrong part and how far its elongation is from its state.
-            let mut wrong: Vec<(usize, Mode, f64)> = Vec::new();
-            for &i in &nonlinear {
-                let p = &model.parts[i];
-                let delta = elong[i] - a.free[i];
-                let s = p.slack.value;
-                // A part at the edge of its state by round-off keeps it.
-                let tol = 1e-12 * p.length.value.max(1e-3);
-                let want = match p.carries {
-                    Carries::Tension | Carries::Both if delta > s => Mode::Tension,
-                    Carries::Compression | Carries::Both if delta < -s => Mode::Compression,
-                    _ => Mode::Slack,
-                };
-                let edge = match (modes[i], want) {
-                    (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs() <= tol,
-                    (Mode::Compression, _) | (_, Mode::Compression) => (delta + s).abs() <= tol,
-                    _ => false,
-                };
-                if want != modes[i] && !edge {
-                    let by = match (modes[i], want) {
-                        (Mode::Tension, _) | (_, Mode::Tension) => (delta - s).abs(),
-                        _ => (delta + s).abs(),
-                    };
-                    wrong.push((i, want, by));
-                }
-            }
+            let wrong = wrong_parts(model, &nonlinear, &modes, &elong, &a.free);
             if wrong.is_empty() {
                 break (q, elong);
             }

@@ -238,44 +238,12 @@ pub(super) fn gather_results(
             reaction[n * nd + d] += lam;
         }
     }
-    // Independent equilibrium check: free plain components must balance;
-    // loads and reactions must balance as a whole, in force and moment.
-    let mut residual = 0.0f64;
-    for i in 0..nn {
-        if map.node_body[i].is_some() {
-            continue;
-        }
-        for d in 0..nd {
-            if !model.nodes[i].fixed[d] {
-                residual = residual.max(net[i * nd + d].abs());
-            }
-        }
-    }
-    let mut sum = [0.0; 2];
-    let mut moment = 0.0;
-    let mut extent = 0.0f64;
-    for i in 0..nn {
-        let (x, y) = (model.nodes[i].x.value, model.nodes[i].y.value);
-        extent = extent.max(x.abs()).max(y.abs());
-        for d in 0..nd {
-            let f = r.loads[i * nd + d] + reaction[i * nd + d];
-            sum[d] += f;
-            scale = scale.max(reaction[i * nd + d].abs());
-        }
-        if nd == 2 {
-            moment += x * (r.loads[i * 2 + 1] + reaction[i * 2 + 1])
-                - y * (r.loads[i * 2] + reaction[i * 2]);
-        }
-    }
-    residual = residual.max(sum[0].abs()).max(sum[1].abs());
+    let (residual, scale) = equilibrium_residual(model, map, &net, r.loads, &reaction, scale);
     // Reactions at round-off level of the largest force read as zero.
     for v in &mut reaction {
         if v.abs() < 1e-12 * scale {
             *v = 0.0;
         }
-    }
-    if extent > 0.0 {
-        residual = residual.max(moment.abs() / extent);
     }
     let nodes = (0..nn)
         .map(|i| NodeResult {
@@ -326,4 +294,54 @@ pub(super) fn gather_results(
         force_scale: Force::new::<newton>(scale),
         trials: r.trials,
     }
+}
+
+/// The largest out-of-balance force, checked independently of the solve:
+/// every free plain node component must balance, and loads and reactions
+/// as a whole in force and (in a plane) moment about the origin, the
+/// moment divided by the model's extent. Also the force scale grown by the
+/// reactions.
+fn equilibrium_residual(
+    model: &Model,
+    map: &DofMap,
+    net: &[f64],
+    loads: &[f64],
+    reaction: &[f64],
+    mut scale: f64,
+) -> (f64, f64) {
+    let (nn, nd) = (model.nodes.len(), map.ndof);
+    // Independent equilibrium check: free plain components must balance;
+    // loads and reactions must balance as a whole, in force and moment.
+    let mut residual = 0.0f64;
+    for i in 0..nn {
+        if map.node_body[i].is_some() {
+            continue;
+        }
+        for d in 0..nd {
+            if !model.nodes[i].fixed[d] {
+                residual = residual.max(net[i * nd + d].abs());
+            }
+        }
+    }
+    let mut sum = [0.0; 2];
+    let mut moment = 0.0;
+    let mut extent = 0.0f64;
+    for i in 0..nn {
+        let (x, y) = (model.nodes[i].x.value, model.nodes[i].y.value);
+        extent = extent.max(x.abs()).max(y.abs());
+        for d in 0..nd {
+            let f = loads[i * nd + d] + reaction[i * nd + d];
+            sum[d] += f;
+            scale = scale.max(reaction[i * nd + d].abs());
+        }
+        if nd == 2 {
+            moment +=
+                x * (loads[i * 2 + 1] + reaction[i * 2 + 1]) - y * (loads[i * 2] + reaction[i * 2]);
+        }
+    }
+    residual = residual.max(sum[0].abs()).max(sum[1].abs());
+    if extent > 0.0 {
+        residual = residual.max(moment.abs() / extent);
+    }
+    (residual, scale)
 }

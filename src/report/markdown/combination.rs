@@ -123,16 +123,8 @@ fn parallel_groups(model: &Model) -> Vec<(usize, usize, Vec<usize>)> {
 
 /// Equilibrium at every free node component, with its numbers.
 fn equilibrium(doc: &mut Doc, c: &Combo<'_>) {
-    let Combo {
-        f,
-        model,
-        r,
-        incidence,
-        loads,
-        in_body,
-        nd,
-        ..
-    } = *c;
+    let (f, model, r, incidence, loads, in_body, nd) =
+        (c.f, c.model, c.r, c.incidence, c.loads, c.in_body, c.nd);
     let axis = ["x", "y"];
     doc.h(3, "Equilibrium");
     let mut first_equation = true;
@@ -270,13 +262,7 @@ fn equilibrium(doc: &mut Doc, c: &Combo<'_>) {
 
 /// Compatibility: the elongation of each part from its ends' movements.
 fn compatibility(doc: &mut Doc, c: &Combo<'_>) {
-    let Combo {
-        f,
-        groups,
-        model,
-        r,
-        ..
-    } = *c;
+    let (f, groups, model, r) = (c.f, c.groups, c.model, c.r);
     doc.h(3, "Compatibility");
     doc.p(match model.kind {
         Kind::Axial => "Each part's elongation follows from the displacements of its end nodes, δ = (u(B) − u(A))·ĉ, with ĉ = +1 when B lies further along the axis than A and −1 when it lies back:",
@@ -376,9 +362,7 @@ fn compatibility(doc: &mut Doc, c: &Combo<'_>) {
 
 /// Each part's force and stress from its law, with its free elongation.
 fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
-    let Combo {
-        f, model, r, ci, ..
-    } = *c;
+    let (f, model, r, ci) = (c.f, c.model, c.r, c.ci);
     doc.h(3, "Part forces and stresses");
     // every source of free elongation the solver added, by part
     let combo = &model.combinations[ci];
@@ -483,16 +467,8 @@ fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
 
 /// The closed-form share of a pure parallel group, F(i) = P·k(i) / Σk.
 fn parallel_share(doc: &mut Doc, c: &Combo<'_>) {
-    let Combo {
-        f,
-        groups,
-        model,
-        r,
-        incidence,
-        loads,
-        in_body,
-        ..
-    } = *c;
+    let (f, groups, model, r, incidence, loads, in_body) =
+        (c.f, c.groups, c.model, c.r, c.incidence, c.loads, c.in_body);
     // Closed-form share for a pure parallel group.
     for (a, b, g) in groups.iter().filter(|g| g.2.len() > 1) {
         if model.kind != Kind::Axial {
@@ -569,14 +545,7 @@ fn parallel_share(doc: &mut Doc, c: &Combo<'_>) {
 
 /// The reactions, and overall equilibrium of reactions and loads.
 fn reactions(doc: &mut Doc, c: &Combo<'_>) {
-    let Combo {
-        f,
-        model,
-        r,
-        loads,
-        nd,
-        ..
-    } = *c;
+    let (f, model, r, loads, nd) = (c.f, c.model, c.r, c.loads, c.nd);
     let axis = ["x", "y"];
     doc.h(3, "Reactions");
     let mut rows = Vec::new();
