@@ -177,42 +177,7 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
         v.push((format!("rigid `{}`", r.name), nodes.join(", ")));
     }
     for c in &model.cases {
-        let mut acts = Vec::new();
-        for l in &c.loads {
-            let f = |x: f64| d.quantity(Quantity::new(x, Dimension::FORCE));
-            acts.push(match model.kind {
-                Kind::Axial => format!("load {} {}", model.nodes[l.node].name, f(l.force[0].value)),
-                Kind::Plane => format!(
-                    "load {} ({}, {})",
-                    model.nodes[l.node].name,
-                    f(l.force[0].value),
-                    f(l.force[1].value)
-                ),
-            });
-        }
-        for t in &c.temperatures {
-            let on = t
-                .part
-                .map_or("all parts".into(), |i| model.parts[i].name.clone());
-            acts.push(format!(
-                "ΔT {} on {on}",
-                d.quantity(Quantity::new(t.change.value, Dimension::TEMPERATURE))
-            ));
-        }
-        for s in &c.strains {
-            acts.push(format!(
-                "strain {} on {}",
-                number(s.strain.value, d.digits),
-                model.parts[s.part].name
-            ));
-        }
-        for s in &c.settlements {
-            acts.push(format!(
-                "{} moves {}",
-                model.nodes[s.node].name,
-                len(s.movement.value)
-            ));
-        }
+        let acts = case_actions(model, c, d);
         v.push((
             format!("case `{}`", c.name),
             if acts.is_empty() {
@@ -243,6 +208,47 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
         ));
     }
     v
+}
+
+/// A case's actions as facts: loads, temperatures, free strains, movements.
+fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<String> {
+    let mut acts = Vec::new();
+    for l in &c.loads {
+        let f = |x: f64| d.quantity(Quantity::new(x, Dimension::FORCE));
+        acts.push(match model.kind {
+            Kind::Axial => format!("load {} {}", model.nodes[l.node].name, f(l.force[0].value)),
+            Kind::Plane => format!(
+                "load {} ({}, {})",
+                model.nodes[l.node].name,
+                f(l.force[0].value),
+                f(l.force[1].value)
+            ),
+        });
+    }
+    for t in &c.temperatures {
+        let on = t
+            .part
+            .map_or("all parts".into(), |i| model.parts[i].name.clone());
+        acts.push(format!(
+            "ΔT {} on {on}",
+            d.quantity(Quantity::new(t.change.value, Dimension::TEMPERATURE))
+        ));
+    }
+    for s in &c.strains {
+        acts.push(format!(
+            "strain {} on {}",
+            number(s.strain.value, d.digits),
+            model.parts[s.part].name
+        ));
+    }
+    for s in &c.settlements {
+        acts.push(format!(
+            "{} moves {}",
+            model.nodes[s.node].name,
+            d.quantity(Quantity::new(s.movement.value, Dimension::LENGTH))
+        ));
+    }
+    acts
 }
 
 fn results(model: &Model, solution: &Solution) -> Vec<(String, String, Quantity)> {
