@@ -338,43 +338,7 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
         rigid_body[ri] = bodies.len();
         bodies.push(new_body(Some(ri), pos(r.nodes[0])));
     }
-    // Position used by each tie class that touches a rigid body.
-    let mut class_anchor: std::collections::HashMap<usize, (usize, usize)> =
-        std::collections::HashMap::new();
-    for i in 0..nn {
-        if let Some(ri) = rigid_of[i] {
-            let c = root[i];
-            match class_anchor.get(&c) {
-                None => {
-                    class_anchor.insert(c, (ri, i));
-                }
-                Some(&(rj, j)) => {
-                    let (xi, yi) = pos(i);
-                    let (xj, yj) = pos(j);
-                    if rj != ri {
-                        return Err(SolveError::Link {
-                            message: format!(
-                                "a tie joins rigid bodies `{}` and `{}` at a point",
-                                model.rigids[rj].name, model.rigids[ri].name
-                            ),
-                            span: model.nodes[i].span,
-                            help: Some("a pin between two rigid bodies is not supported; merge them into one rigid body, or join them with a stiff part".into()),
-                        });
-                    }
-                    if (xi - xj).abs() + (yi - yj).abs() > 0.0 {
-                        return Err(SolveError::Link {
-                            message: format!(
-                                "a tie joins nodes `{}` and `{}` of rigid body `{}`, which are at different places",
-                                model.nodes[j].name, model.nodes[i].name, model.rigids[ri].name
-                            ),
-                            span: model.nodes[i].span,
-                            help: Some("nodes of one rigid body already move together; remove the tie".into()),
-                        });
-                    }
-                }
-            }
-        }
-    }
+    let class_anchor = class_anchors(model, &rigid_of, &root)?;
     for i in 0..nn {
         let c = root[i];
         let b = if let Some(&(ri, anchor)) = class_anchor.get(&c) {
@@ -463,4 +427,53 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
         bodies,
         unknowns,
     })
+}
+
+/// For each tie class that touches a rigid body: the body and the node
+/// whose position the class takes. A tie between two bodies, or between
+/// two separated nodes of one body, is an error.
+fn class_anchors(
+    model: &Model,
+    rigid_of: &[Option<usize>],
+    root: &[usize],
+) -> Result<std::collections::HashMap<usize, (usize, usize)>, SolveError> {
+    let nn = model.nodes.len();
+    let pos = |i: usize| (model.nodes[i].x.value, model.nodes[i].y.value);
+    let mut class_anchor: std::collections::HashMap<usize, (usize, usize)> =
+        std::collections::HashMap::new();
+    for i in 0..nn {
+        if let Some(ri) = rigid_of[i] {
+            let c = root[i];
+            match class_anchor.get(&c) {
+                None => {
+                    class_anchor.insert(c, (ri, i));
+                }
+                Some(&(rj, j)) => {
+                    let (xi, yi) = pos(i);
+                    let (xj, yj) = pos(j);
+                    if rj != ri {
+                        return Err(SolveError::Link {
+                            message: format!(
+                                "a tie joins rigid bodies `{}` and `{}` at a point",
+                                model.rigids[rj].name, model.rigids[ri].name
+                            ),
+                            span: model.nodes[i].span,
+                            help: Some("a pin between two rigid bodies is not supported; merge them into one rigid body, or join them with a stiff part".into()),
+                        });
+                    }
+                    if (xi - xj).abs() + (yi - yj).abs() > 0.0 {
+                        return Err(SolveError::Link {
+                            message: format!(
+                                "a tie joins nodes `{}` and `{}` of rigid body `{}`, which are at different places",
+                                model.nodes[j].name, model.nodes[i].name, model.rigids[ri].name
+                            ),
+                            span: model.nodes[i].span,
+                            help: Some("nodes of one rigid body already move together; remove the tie".into()),
+                        });
+                    }
+                }
+            }
+        }
+    }
+    Ok(class_anchor)
 }
