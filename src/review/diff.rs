@@ -210,6 +210,27 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
     v
 }
 
+/// Whether the fact `k`, found on one side only, belongs to a declaration
+/// the other side lacks as a whole; that declaration is then listed in
+/// `whole` (once), not each of its facts.
+fn whole_declaration(
+    k: &str,
+    other: &std::collections::HashSet<String>,
+    seen: &mut std::collections::HashSet<String>,
+    whole: &mut Vec<String>,
+) -> bool {
+    let Some(e) = entity(k) else {
+        return false;
+    };
+    if other.contains(&e) {
+        return false;
+    }
+    if seen.insert(e.clone()) {
+        whole.push(e);
+    }
+    true
+}
+
 /// A case's actions as facts: loads, temperatures, free strains, movements.
 fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<String> {
     let mut acts = Vec::new();
@@ -381,19 +402,13 @@ fn input_changes(
             }),
             Some(_) => {}
             None => {
-                if let Some(e) = entity(k) {
-                    if !new_entities.contains(&e) {
-                        if seen.insert(e.clone()) {
-                            removed.push(e);
-                        }
-                        continue;
-                    }
+                if !whole_declaration(k, &new_entities, &mut seen, &mut removed) {
+                    inputs.push(InputChange {
+                        what: k.clone(),
+                        old: Some(v.clone()),
+                        new: None,
+                    });
                 }
-                inputs.push(InputChange {
-                    what: k.clone(),
-                    old: Some(v.clone()),
-                    new: None,
-                });
             }
         }
     }
@@ -401,19 +416,13 @@ fn input_changes(
         if old_map.contains_key(k.as_str()) {
             continue;
         }
-        if let Some(e) = entity(k) {
-            if !old_entities.contains(&e) {
-                if seen.insert(e.clone()) {
-                    added.push(e);
-                }
-                continue;
-            }
+        if !whole_declaration(k, &old_entities, &mut seen, &mut added) {
+            inputs.push(InputChange {
+                what: k.clone(),
+                old: None,
+                new: Some(v.clone()),
+            });
         }
-        inputs.push(InputChange {
-            what: k.clone(),
-            old: None,
-            new: Some(v.clone()),
-        });
     }
 
     // A removed and an added declaration of one kind with the same content

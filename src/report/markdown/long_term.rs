@@ -92,17 +92,6 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
                 ]
             })
             .collect();
-        doc.table(
-            &[
-                "Check",
-                "Governing combination",
-                "Value",
-                "Limit",
-                "Utilization",
-                "Result",
-            ],
-            &rows,
-            &[2, 3, 4],
-        );
+        check_table(doc, "Governing combination", &rows);
     }
 }

@@ -344,6 +344,23 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
     }
 }
 
+/// A table of checks: each with its combination, value, limit, utilization
+/// and result.
+fn check_table(doc: &mut Doc, combination: &str, rows: &[Vec<String>]) {
+    doc.table(
+        &[
+            "Check",
+            combination,
+            "Value",
+            "Limit",
+            "Utilization",
+            "Result",
+        ],
+        rows,
+        &[2, 3, 4],
+    );
+}
+
 /// The cautions, the method and the sign convention.
 fn method(doc: &mut Doc, model: &Model, display: &Display) {
     doc.h(2, "Cautions");
@@ -396,18 +413,7 @@ fn design_checks(doc: &mut Doc, f: &Fmt<'_>, source: &Source, a: &crate::Analysi
                 ]
             })
             .collect();
-        doc.table(
-            &[
-                "Check",
-                "Combination",
-                "Value",
-                "Limit",
-                "Utilization",
-                "Result",
-            ],
-            &rows,
-            &[2, 3, 4],
-        );
+        check_table(doc, "Combination", &rows);
         let lines: Vec<String> = model
             .checks
             .iter()

@@ -162,27 +162,23 @@ pub(super) fn prescan(text: &str) -> (Vec<SyntaxError>, Vec<(usize, usize)>) {
                     span: Span::new(i, i + 1),
                 });
             }
-            b'(' => {
-                depth += 1;
-                if depth > MAX_NESTING {
-                    errors.push(SyntaxError::TooDeep {
-                        span: Span::new(i, i + 1),
-                        limit: MAX_NESTING,
-                    });
+            b'(' | b'^' => {
+                let (count, error): (_, fn(Span, usize) -> SyntaxError) = if b == b'(' {
+                    depth += 1;
+                    (depth, |span, limit| SyntaxError::TooDeep { span, limit })
+                } else {
+                    carets += 1;
+                    (carets, |span, limit| SyntaxError::TooManyPowers {
+                        span,
+                        limit,
+                    })
+                };
+                if count > MAX_NESTING {
+                    errors.push(error(Span::new(i, i + 1), MAX_NESTING));
                     return (errors, chunks);
                 }
             }
             b')' => depth = depth.saturating_sub(1),
-            b'^' => {
-                carets += 1;
-                if carets > MAX_NESTING {
-                    errors.push(SyntaxError::TooManyPowers {
-                        span: Span::new(i, i + 1),
-                        limit: MAX_NESTING,
-                    });
-                    return (errors, chunks);
-                }
-            }
             b'\n' | b';' => {
                 if b == b'\n' {
                     depth = 0;
