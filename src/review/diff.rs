@@ -564,6 +564,32 @@ fn check_changes(old: &Analysis, new: &Analysis, min_change_percent: f64) -> Vec
     checks
 }
 
+/// The checks that flipped (`flipped`) or the others, under a heading, as a
+/// before-and-after table; nothing when there are none.
+fn check_changes_table(out: &mut String, heading: &str, diff: &Diff, flipped: bool) {
+    let rows: Vec<&CheckChange> = diff
+        .checks
+        .iter()
+        .filter(|c| c.flipped() == flipped)
+        .collect();
+    if rows.is_empty() {
+        return;
+    }
+    out.push_str(&format!(
+        "## {heading}\n\n| Check | Combination | Before | After |\n|---|---|---:|---:|\n"
+    ));
+    for c in rows {
+        out.push_str(&format!(
+            "| {} | `{}` | {} | {} |\n",
+            c.label,
+            c.combination,
+            status(c.old),
+            status(c.new)
+        ));
+    }
+    out.push('\n');
+}
+
 fn status(s: Option<(Option<f64>, bool)>) -> String {
     match s {
         None => "—".into(),
@@ -595,20 +621,7 @@ pub fn markdown(diff: &Diff, display: &Display) -> String {
             if fails == 1 { "s" } else { "" }
         ));
     }
-    let flips: Vec<&CheckChange> = diff.checks.iter().filter(|c| c.flipped()).collect();
-    if !flips.is_empty() {
-        out.push_str("## Checks that changed status\n\n| Check | Combination | Before | After |\n|---|---|---:|---:|\n");
-        for c in &flips {
-            out.push_str(&format!(
-                "| {} | `{}` | {} | {} |\n",
-                c.label,
-                c.combination,
-                status(c.old),
-                status(c.new)
-            ));
-        }
-        out.push('\n');
-    }
+    check_changes_table(&mut out, "Checks that changed status", diff, true);
     out.push_str("## Inputs changed\n\n");
     if diff.inputs.is_empty() {
         out.push_str("No input changed.\n\n");
@@ -667,20 +680,7 @@ pub fn markdown(diff: &Diff, display: &Display) -> String {
             out.push('\n');
         }
     }
-    let others: Vec<&CheckChange> = diff.checks.iter().filter(|c| !c.flipped()).collect();
-    if !others.is_empty() {
-        out.push_str("## Utilization changed\n\n| Check | Combination | Before | After |\n|---|---|---:|---:|\n");
-        for c in others {
-            out.push_str(&format!(
-                "| {} | `{}` | {} | {} |\n",
-                c.label,
-                c.combination,
-                status(c.old),
-                status(c.new)
-            ));
-        }
-        out.push('\n');
-    }
+    check_changes_table(&mut out, "Utilization changed", diff, false);
     out.trim_end().to_string() + "\n"
 }
 
