@@ -336,22 +336,18 @@ fn compatibility(doc: &mut Doc, c: &Combo<'_>) {
             for &n in &b.nodes[1..] {
                 let dx = model.nodes[n].x.value - model.nodes[n0].x.value;
                 let dy = model.nodes[n].y.value - model.nodes[n0].y.value;
-                doc.eq(&format!(
-                    "v({}) = {} + {} · {} = {}",
-                    model.nodes[n].name,
-                    f.small_t(r.nodes[n0].displacement[1].value),
-                    f.plain_rad(theta),
-                    f.small_t(dx),
-                    f.small(r.nodes[n].displacement[1].value)
-                ));
-                if dy != 0.0 {
+                // v = v0 + θ·Δx always; u = u0 − θ·Δy where Δy is not 0
+                for (d, symbol, sign, arm) in [(1, "v", '+', dx), (0, "u", '-', dy)] {
+                    if d == 0 && dy == 0.0 {
+                        continue;
+                    }
                     doc.eq(&format!(
-                        "u({}) = {} - {} · {} = {}",
+                        "{symbol}({}) = {} {sign} {} · {} = {}",
                         model.nodes[n].name,
-                        f.small_t(r.nodes[n0].displacement[0].value),
+                        f.small_t(r.nodes[n0].displacement[d].value),
                         f.plain_rad(theta),
-                        f.small_t(dy),
-                        f.small(r.nodes[n].displacement[0].value)
+                        f.small_t(arm),
+                        f.small(r.nodes[n].displacement[d].value)
                     ));
                 }
             }
