@@ -4,6 +4,7 @@
 
 mod build;
 mod error;
+mod error_help;
 pub mod eval;
 pub mod functions;
 pub mod range;
