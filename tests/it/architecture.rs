@@ -61,7 +61,13 @@ const STAGES: [&str; 9] = [
 
 #[test]
 fn leaf_modules_use_no_stage() {
-    for leaf in ["words.rs", "warning.rs", "source.rs", "parallel.rs", "units"] {
+    for leaf in [
+        "words.rs",
+        "warning.rs",
+        "source.rs",
+        "parallel.rs",
+        "units",
+    ] {
         uses_none(leaf, &STAGES);
     }
 }
