@@ -212,9 +212,25 @@ fn analyse_shown(source: &Source) -> Option<(tandem::Analysis, bool)> {
     a.map(|a| (a, !errors.is_empty()))
 }
 
-/// One report: its text, whether any check fails, whether it is
-/// incomplete (some combination could not be analysed).
-fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool, bool), ExitCode> {
+/// One rendered report.
+struct Rendered {
+    text: String,
+    /// The drawings to write beside a Markdown report: (path, SVG).
+    drawings: Vec<(PathBuf, String)>,
+    /// Some check fails.
+    fails: bool,
+    /// Some combination could not be analysed.
+    incomplete: bool,
+}
+
+/// One report, for `target` (standard output when `None`).
+fn render_report(
+    path: &Path,
+    target: Option<&Path>,
+    html: bool,
+    show: &Show,
+) -> Result<Rendered, ExitCode> {
+    use tandem::report::markdown::{report_with, Figures};
     let Some(source) = read(path) else {
         return Err(bad());
     };
@@ -225,14 +241,34 @@ fn render_report(path: &Path, html: bool, show: &Show) -> Result<(String, bool, 
         errln!("error: {msg}");
         bad()
     })?;
-    let md = tandem::report::markdown::report(&source, &a, &d);
-    let text = if html {
-        let title = a.model.title.get("title").unwrap_or("tandem calculation");
-        tandem::report::html(&md, title)
+    let stem = target
+        .and_then(Path::file_stem)
+        .map_or_else(|| "report".to_string(), |s| s.to_string_lossy().to_string());
+    let figures = if html || target.is_some() {
+        Figures::Beside(stem.clone())
     } else {
-        md
+        Figures::Omitted
     };
-    Ok((text, a.failures() > 0, incomplete))
+    let written = report_with(&source, &a, &d, &figures);
+    let (text, drawings) = if html {
+        let title = a.model.title.get("title").unwrap_or("tandem calculation");
+        let page = tandem::report::html(&written.markdown, title, &stem, &written.drawings);
+        (page, Vec::new())
+    } else {
+        let folder = target.and_then(Path::parent).unwrap_or(Path::new(""));
+        let files = written
+            .drawings
+            .into_iter()
+            .map(|g| (folder.join(format!("{stem}.{}", g.suffix)), g.svg))
+            .collect();
+        (written.markdown, files)
+    };
+    Ok(Rendered {
+        text,
+        drawings,
+        fails: a.failures() > 0,
+        incomplete,
+    })
 }
 
 fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> ExitCode {
@@ -289,23 +325,38 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
         }
     }
     // Render in parallel, one worker per core.
-    let results: Vec<Result<(String, bool, bool), ExitCode>> =
-        tandem::parallel::map(files, |f| render_report(f, html, show));
+    let jobs: Vec<(&PathBuf, Option<&Path>)> = files
+        .iter()
+        .zip(targets.iter().map(Option::as_deref))
+        .collect();
+    let results: Vec<Result<Rendered, ExitCode>> =
+        tandem::parallel::map(&jobs, |(f, t)| render_report(f, *t, html, show));
     let mut code = ExitCode::SUCCESS;
     let mut failed_check = false;
     for (result, target) in results.into_iter().zip(&targets) {
         match result {
-            Ok((text, fails, incomplete)) => {
-                failed_check |= fails;
-                if incomplete {
+            Ok(r) => {
+                failed_check |= r.fails;
+                if r.incomplete {
                     code = bad();
                 }
                 match target {
-                    None => out!("{text}"),
+                    None => out!("{}", r.text),
                     Some(path) => {
-                        if let Err(e) = tandem::output::write_atomic(path, text.as_bytes()) {
-                            errln!("error: cannot write {}: {e}", path.display());
-                            code = bad();
+                        let all = std::iter::once((path.as_path(), r.text.as_str()))
+                            .chain(r.drawings.iter().map(|(p, s)| (p.as_path(), s.as_str())));
+                        for (p, bytes) in all {
+                            if tandem::output::is_input(p, files) {
+                                errln!(
+                                    "error: refusing to write over the input file {}",
+                                    p.display()
+                                );
+                                code = bad();
+                            } else if let Err(e) = tandem::output::write_atomic(p, bytes.as_bytes())
+                            {
+                                errln!("error: cannot write {}: {e}", p.display());
+                                code = bad();
+                            }
                         }
                     }
                 }

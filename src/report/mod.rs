@@ -2,6 +2,7 @@
 //! tables, JSON.
 
 pub mod display;
+pub mod drawing;
 pub mod json;
 pub mod markdown;
 pub mod substitute;
@@ -22,14 +23,31 @@ pub fn left_out(names: &[String]) -> String {
     )
 }
 
-/// A print-friendly, self-contained HTML page of a Markdown report.
+/// A print-friendly, self-contained HTML page of a Markdown report; the
+/// drawings the report links as `STEM.SUFFIX` are put inline in place of
+/// their links.
 #[must_use]
-pub fn html(markdown: &str, title: &str) -> String {
+pub fn html(markdown: &str, title: &str, stem: &str, drawings: &[drawing::Drawing]) -> String {
     let mut options = comrak::Options::default();
     options.extension.table = true;
     options.extension.strikethrough = true;
     options.render.escape = true;
-    let body = comrak::markdown_to_html(markdown, &options);
+    let mut body = comrak::markdown_to_html(markdown, &options);
+    for d in drawings {
+        let img = format!("<img src=\"{}.{}\"", markdown::link_target(stem), d.suffix);
+        let Some(at) = body.find(&img) else { continue };
+        let start = body[..at].rfind("<p>").unwrap_or(at);
+        let end = body[at..].find("</p>").map_or_else(
+            || body[at..].find("/>").map_or(body.len(), |e| at + e + 2),
+            |e| at + e + 4,
+        );
+        let figure = format!(
+            "<figure class=\"drawing\">\n{}<figcaption>{}</figcaption>\n</figure>",
+            d.svg,
+            drawing::escape(&d.caption)
+        );
+        body.replace_range(start..end, &figure);
+    }
     let title = title
         .replace('&', "&amp;")
         .replace('<', "&lt;")

@@ -8,6 +8,7 @@ mod closed_form;
 mod common;
 mod diagnostics;
 mod diff;
+mod drawings;
 mod fmt;
 mod language;
 mod large;

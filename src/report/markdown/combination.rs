@@ -48,6 +48,9 @@ pub(super) fn combination_body(
             crate::report::text::combination_heading(model, ci, true)
         ),
     );
+    if doc.figures != Figures::Omitted {
+        doc.figure(crate::report::drawing::forces(model, r, ci, f.d));
+    }
     let nd = model.kind.dofs();
     // Loads on each node component.
     let mut loads = vec![[0.0f64; 2]; model.nodes.len()];

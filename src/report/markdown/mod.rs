@@ -13,6 +13,9 @@ use crate::solve::{PartState, Solution};
 use crate::source::Source;
 use crate::units::Dimension;
 
+pub use crate::report::drawing::Drawing;
+use crate::report::drawing::{drawable, sketch, MAX_DRAWN};
+
 mod capacity;
 mod combination;
 mod inputs;
@@ -31,11 +34,45 @@ pub const CAUTIONS: &[&str] = &[
     "Checks are only those written in the calc file and the material allowables it gives; they do not replace the checks the governing code requires.",
 ];
 
+/// Where a report's drawings go.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Figures {
+    /// Markdown on standard output: no drawings; a line says how to get them.
+    Omitted,
+    /// Files beside the report, linked from it: `STEM.sketch.svg`,
+    /// `STEM.forces.COMBINATION.svg` (HTML puts them inline in place of
+    /// the links).
+    Beside(String),
+}
+
+/// A report and the drawings it links.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Written {
+    pub markdown: String,
+    pub drawings: Vec<Drawing>,
+}
+
 struct Doc {
     out: String,
+    figures: Figures,
+    drawings: Vec<Drawing>,
 }
 
 impl Doc {
+    /// A drawing, linked where it stands (when drawings are written).
+    fn figure(&mut self, drawing: Drawing) {
+        if let Figures::Beside(stem) = &self.figures {
+            let _ = write!(
+                self.out,
+                "![{}]({}.{})\n\n",
+                text(&drawing.caption),
+                link_target(stem),
+                drawing.suffix
+            );
+            self.drawings.push(drawing);
+        }
+    }
+
     fn h(&mut self, level: usize, text: &str) {
         let _ = write!(self.out, "\n{} {}\n\n", "#".repeat(level), text);
     }
@@ -201,9 +238,37 @@ fn checks_outcome(n: usize, fails: usize) -> String {
     }
 }
 
-/// Write the whole calculation for an analysed file.
-#[allow(clippy::too_many_lines)]
+/// Write the whole calculation for an analysed file, without drawings
+/// (Markdown for standard output).
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
+    report_with(source, a, display, &Figures::Omitted).markdown
+}
+
+/// A file name as a Markdown link target: spaces and the characters a
+/// link would read as its end are percent-encoded.
+pub(crate) fn link_target(stem: &str) -> String {
+    let mut out = String::with_capacity(stem.len());
+    for c in stem.chars() {
+        match c {
+            ' ' => out.push_str("%20"),
+            '(' => out.push_str("%28"),
+            ')' => out.push_str("%29"),
+            '<' => out.push_str("%3C"),
+            '>' => out.push_str("%3E"),
+            '%' => out.push_str("%25"),
+            c => out.push(c),
+        }
+    }
+    out
+}
+
+/// Write the whole calculation, with its drawings where `figures` says.
+pub fn report_with(
+    source: &Source,
+    a: &crate::Analysis,
+    display: &Display,
+    figures: &Figures,
+) -> Written {
     let (model, solution) = (&a.model, &a.solution);
     let f = Fmt {
         d: display,
@@ -216,13 +281,22 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     // 10^6 nodes, one combination). Memory reserved and never written costs
     // nothing on the usual systems; if the reservation is refused, the
     // string grows as it is written.
-    let mut doc = Doc { out: String::new() };
+    let mut doc = Doc {
+        out: String::new(),
+        figures: if drawable(model) {
+            figures.clone()
+        } else {
+            Figures::Omitted
+        },
+        drawings: Vec::new(),
+    };
     let per_combination = 700 * (model.parts.len() + model.nodes.len());
     let estimate = 64 * 1024 + per_combination * (solution.combinations.len() + 1);
     let _ = doc.out.try_reserve(estimate);
     title_block(&mut doc, source, model);
     status_and_summary(&mut doc, &f, a);
     method(&mut doc, model, display);
+    sketch_section(&mut doc, model, display, figures);
     inputs::section(&mut doc, &f, source, model);
     let incidence = incidence(model);
     for ci in 0..solution.combinations.len() {
@@ -232,7 +306,32 @@ pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String
     long_term_section(&mut doc, &f, a);
     buckling_section(&mut doc, &f, a);
     design_checks(&mut doc, &f, source, a);
-    doc.out.trim_end().to_string() + "\n"
+    Written {
+        markdown: doc.out.trim_end().to_string() + "\n",
+        drawings: doc.drawings,
+    }
+}
+
+/// The sketch of the assembly, or why there is none.
+fn sketch_section(doc: &mut Doc, model: &Model, display: &Display, figures: &Figures) {
+    doc.h(2, "Sketch of the assembly");
+    if !drawable(model) {
+        doc.p(&format!(
+            "The assembly has {} parts and nodes, too many to draw legibly (at most {MAX_DRAWN}); this report carries no drawings.",
+            model.parts.len() + model.nodes.len()
+        ));
+        return;
+    }
+    match figures {
+        Figures::Omitted => doc.p("The drawings (a sketch of the assembly and, per combination, the forces and the displaced shape) are written as SVG files beside the report with `-o FILE.md`, or inline with `--html`."),
+        Figures::Beside(_) => {
+            doc.p(match model.kind {
+                Kind::Plane => "Drawn at true geometry and scale; the key explains the symbols.",
+                Kind::Axial => "Drawn as a schematic column: nodes in position order from the bottom up (not to scale), parts that span the same nodes side by side; the key explains the symbols.",
+            });
+            doc.figure(sketch(model, display));
+        }
+    }
 }
 
 /// The title and the title block's table.
