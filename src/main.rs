@@ -230,7 +230,7 @@ fn render_report(
     html: bool,
     show: &Show,
 ) -> Result<Rendered, ExitCode> {
-    use tandem::report::markdown::{report_with, Figures};
+    use tandem::report::markdown::{report_with, Figures, Options};
     let Some(source) = read(path) else {
         return Err(bad());
     };
@@ -249,10 +249,14 @@ fn render_report(
     } else {
         Figures::Omitted
     };
-    let written = report_with(&source, &a, &d, &figures);
+    let options = Options {
+        figures,
+        history: tandem::history::of(path),
+    };
+    let written = report_with(&source, &a, &d, &options);
     let (text, drawings) = if html {
-        let title = a.model.title.get("title").unwrap_or("tandem calculation");
-        let page = tandem::report::html(&written.markdown, title, &stem, &written.drawings);
+        let page =
+            tandem::report::html(&written.markdown, &a.model.title, &stem, &written.drawings);
         (page, Vec::new())
     } else {
         let folder = target.and_then(Path::parent).unwrap_or(Path::new(""));

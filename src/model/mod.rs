@@ -62,7 +62,24 @@ pub struct Title {
 impl Title {
     /// The keys a title block may hold, in report order.
     pub const KEYS: &'static [&'static str] = &[
-        "title", "project", "number", "revision", "by", "checked", "date", "basis",
+        "title",
+        "project",
+        "number",
+        "revision",
+        "by",
+        "checked",
+        "approved",
+        "date",
+        "checked_date",
+        "approved_date",
+        "basis",
+    ];
+
+    /// The keys the signature block shows rather than the title table.
+    pub const SIGNATURES: &'static [(&'static str, &'static str, &'static str)] = &[
+        ("Prepared", "by", "date"),
+        ("Checked", "checked", "checked_date"),
+        ("Approved", "approved", "approved_date"),
     ];
 
     #[must_use]

@@ -166,7 +166,7 @@ fn report_structure() {
 fn html_is_self_contained() {
     for path in inputs() {
         let (md, _) = render(&path);
-        let html = tandem::report::html(&md, "t", "t", &[]);
+        let html = tandem::report::html(&md, &tandem::model::Title::default(), "t", &[]);
         let dom = tl::parse(&html, tl::ParserOptions::default()).expect("HTML parses");
         let parser = dom.parser();
         assert!(dom

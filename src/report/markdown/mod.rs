@@ -6,6 +6,7 @@
 use std::fmt::Write as _;
 
 use crate::checks::Origin;
+use crate::history::History;
 use crate::model::{Carries, Kind, Law, Model};
 use crate::report::display::{number, utilization, verdict, written, Display, Scales, Shown};
 use crate::report::text::combination_text;
@@ -34,10 +35,19 @@ pub const CAUTIONS: &[&str] = &[
     "Checks are only those written in the calc file and the material allowables it gives; they do not replace the checks the governing code requires.",
 ];
 
+/// What a report carries beyond the calculation itself.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct Options {
+    pub figures: Figures,
+    /// The calc file's place in git, for the title block.
+    pub history: Option<History>,
+}
+
 /// Where a report's drawings go.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub enum Figures {
     /// Markdown on standard output: no drawings; a line says how to get them.
+    #[default]
     Omitted,
     /// Files beside the report, linked from it: `STEM.sketch.svg`,
     /// `STEM.forces.COMBINATION.svg` (HTML puts them inline in place of
@@ -56,6 +66,8 @@ struct Doc {
     out: String,
     figures: Figures,
     drawings: Vec<Drawing>,
+    /// The level-2 headings, for the contents list.
+    headings: Vec<String>,
 }
 
 impl Doc {
@@ -74,6 +86,9 @@ impl Doc {
     }
 
     fn h(&mut self, level: usize, text: &str) {
+        if level == 2 {
+            self.headings.push(text.to_string());
+        }
         let _ = write!(self.out, "\n{} {}\n\n", "#".repeat(level), text);
     }
     fn p(&mut self, text: &str) {
@@ -241,7 +256,7 @@ fn checks_outcome(n: usize, fails: usize) -> String {
 /// Write the whole calculation for an analysed file, without drawings
 /// (Markdown for standard output).
 pub fn report(source: &Source, a: &crate::Analysis, display: &Display) -> String {
-    report_with(source, a, display, &Figures::Omitted).markdown
+    report_with(source, a, display, &Options::default()).markdown
 }
 
 /// A file name as a Markdown link target: spaces and the characters a
@@ -267,8 +282,9 @@ pub fn report_with(
     source: &Source,
     a: &crate::Analysis,
     display: &Display,
-    figures: &Figures,
+    options: &Options,
 ) -> Written {
+    let figures = &options.figures;
     let (model, solution) = (&a.model, &a.solution);
     let f = Fmt {
         d: display,
@@ -289,11 +305,13 @@ pub fn report_with(
             Figures::Omitted
         },
         drawings: Vec::new(),
+        headings: Vec::new(),
     };
     let per_combination = 700 * (model.parts.len() + model.nodes.len());
     let estimate = 64 * 1024 + per_combination * (solution.combinations.len() + 1);
     let _ = doc.out.try_reserve(estimate);
-    title_block(&mut doc, source, model);
+    title_block(&mut doc, source, model, options.history.as_ref());
+    let contents_at = doc.out.len();
     status_and_summary(&mut doc, &f, a);
     method(&mut doc, model, display);
     sketch_section(&mut doc, model, display, figures);
@@ -306,6 +324,7 @@ pub fn report_with(
     long_term_section(&mut doc, &f, a);
     buckling_section(&mut doc, &f, a);
     design_checks(&mut doc, &f, source, a);
+    doc.out.insert_str(contents_at, &contents(&doc.headings));
     Written {
         markdown: doc.out.trim_end().to_string() + "\n",
         drawings: doc.drawings,
@@ -334,15 +353,24 @@ fn sketch_section(doc: &mut Doc, model: &Model, display: &Display, figures: &Fig
     }
 }
 
-/// The title and the title block's table.
-fn title_block(doc: &mut Doc, source: &Source, model: &Model) {
+/// The title, the title block's table (with what identifies the input:
+/// its SHA-256, the tool's version, its place in git), the signature block
+/// and the file's revisions.
+fn title_block(doc: &mut Doc, source: &Source, model: &Model, history: Option<&History>) {
     let title = model
         .title
         .get("title")
         .unwrap_or("Load-sharing calculation");
     let _ = write!(doc.out, "# {}\n\n", text(title));
+    let signed: Vec<&str> = crate::model::Title::SIGNATURES
+        .iter()
+        .flat_map(|(_, who, when)| [*who, *when])
+        .collect();
     let mut rows = Vec::new();
     for key in crate::model::Title::KEYS.iter().skip(1) {
+        if signed.contains(key) {
+            continue;
+        }
         if let Some(v) = model.title.get(key) {
             let mut k = (*key).to_string();
             if let Some(c) = k.get_mut(0..1) {
@@ -352,7 +380,80 @@ fn title_block(doc: &mut Doc, source: &Source, model: &Model) {
         }
     }
     rows.push(vec!["Calc file".into(), code(&source.name)]);
+    rows.push(vec![
+        "Input SHA-256".into(),
+        code(&crate::report::sha256_hex(source.text.as_bytes())),
+    ]);
+    rows.push(vec![
+        "Written by".into(),
+        format!("tandem {}", env!("CARGO_PKG_VERSION")),
+    ]);
+    if let Some(h) = history {
+        rows.push(vec![
+            "Commit".into(),
+            h.commit
+                .as_deref()
+                .map_or("none yet (a repository without commits)".into(), code),
+        ]);
+        rows.push(vec!["Uncommitted changes".into(), h.state.words().into()]);
+    }
     doc.table(&["Item", "Value"], &rows, &[]);
+    let rows: Vec<Vec<String>> = crate::model::Title::SIGNATURES
+        .iter()
+        .map(|(role, who, when)| {
+            vec![
+                (*role).to_string(),
+                model.title.get(who).map_or(String::new(), text),
+                model.title.get(when).map_or(String::new(), text),
+                String::new(),
+            ]
+        })
+        .collect();
+    doc.table(&["", "Name", "Date", "Signature"], &rows, &[]);
+    if let Some(h) = history {
+        if h.revisions.is_empty() {
+            doc.p("Revisions: the file has no commits in its repository yet.");
+        } else {
+            doc.p("Revisions of the calc file (from `git log --follow`, newest first):");
+            let rows: Vec<Vec<String>> = h
+                .revisions
+                .iter()
+                .map(|r| vec![text(&r.date), code(&r.commit), text(&r.subject)])
+                .collect();
+            doc.table(&["Date", "Commit", "Subject"], &rows, &[]);
+            if h.earlier > 0 {
+                doc.p(&format!("… and {} earlier revisions.", h.earlier));
+            }
+        }
+    }
+}
+
+/// The contents list: every section (level-2 heading), linked by the
+/// anchor a Markdown renderer gives it.
+fn contents(headings: &[String]) -> String {
+    let mut anchors = comrak::Anchorizer::new();
+    let mut out = String::from("**Contents**\n\n");
+    for h in headings {
+        // the heading's text as rendered: no code fences or escapes
+        let plain: String = {
+            let mut t = String::with_capacity(h.len());
+            let mut escaped = false;
+            for c in h.chars() {
+                if escaped {
+                    t.push(c);
+                    escaped = false;
+                } else if c == '\\' {
+                    escaped = true;
+                } else if c != '`' {
+                    t.push(c);
+                }
+            }
+            t
+        };
+        let _ = writeln!(out, "- [{h}](#{})", anchors.anchorize(&plain));
+    }
+    out.push('\n');
+    out
 }
 
 /// The status line and the summary of every combination.

@@ -1,0 +1,170 @@
+//! Reports printed by a real browser: two example reports as HTML, printed
+//! to PDF by headless Chromium, read back with poppler's `pdfinfo` and
+//! `pdftotext`. Every sheet carries the running header (calc number, title,
+//! revision) and "Sheet X of Y"; no word lies outside the page's margins
+//! (no table wider than the page); no section heading is stranded at the
+//! foot of a sheet; the browser's own header (a URL) is not printed.
+//!
+//! Skipped with a notice when no browser or poppler is installed
+//! (`.ci/run` installs Debian's `chromium` and `poppler-utils`). The
+//! browser is `$TANDEM_BROWSER`, else `chromium` on the PATH.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+fn on_path(name: &str) -> Option<PathBuf> {
+    std::env::var_os("PATH").and_then(|paths| {
+        std::env::split_paths(&paths)
+            .map(|d| d.join(name))
+            .find(|p| p.is_file())
+    })
+}
+
+fn browser() -> Option<PathBuf> {
+    if let Some(b) = std::env::var_os("TANDEM_BROWSER") {
+        return Some(PathBuf::from(b));
+    }
+    ["chromium", "chromium-browser", "google-chrome"]
+        .iter()
+        .find_map(|n| on_path(n))
+}
+
+fn run(cmd: &mut Command) -> String {
+    let out = cmd.output().expect("run");
+    assert!(out.status.success(), "{cmd:?}: {out:?}");
+    String::from_utf8_lossy(&out.stdout).to_string()
+}
+
+fn print(browser: &Path, html: &Path, pdf: &Path, profile: &Path) {
+    let url = format!("file://{}", html.display());
+    let out = Command::new(browser)
+        .args([
+            "--headless",
+            "--no-sandbox",
+            "--disable-gpu",
+            "--no-first-run",
+            "--disable-background-networking",
+            "--disable-component-update",
+            "--disable-sync",
+        ])
+        .arg(format!("--user-data-dir={}", profile.display()))
+        .arg(format!("--print-to-pdf={}", pdf.display()))
+        .arg(url)
+        .output()
+        .expect("run the browser");
+    assert!(pdf.is_file(), "no PDF printed: {out:?}");
+}
+
+/// The page width in points (from `pdfinfo`) and the number of pages.
+fn info(pdf: &Path) -> (f64, usize) {
+    let text = run(Command::new("pdfinfo").arg(pdf));
+    let field = |key: &str| {
+        text.lines()
+            .find_map(|l| l.strip_prefix(key))
+            .map(str::trim)
+            .expect("pdfinfo field")
+            .to_string()
+    };
+    let pages = field("Pages:").parse().expect("pages");
+    let size = field("Page size:");
+    let width = size
+        .split_whitespace()
+        .next()
+        .and_then(|w| w.parse().ok())
+        .expect("width");
+    (width, pages)
+}
+
+#[test]
+fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
+    let (Some(browser), Some(_), Some(_)) = (browser(), on_path("pdftotext"), on_path("pdfinfo"))
+    else {
+        eprintln!("notice: print test skipped: no headless browser or poppler-utils installed");
+        return;
+    };
+    let dir = tempfile::tempdir().expect("tempdir");
+    let cases = [
+        ("filled_post", "DCS-114 · Column C-3", "Revision A"),
+        ("hung_platform", "NWW-207 · Platform SP-2", "Revision B"),
+    ];
+    for (stem, header, revision) in cases {
+        let html = dir.path().join(format!("{stem}.html"));
+        let pdf = dir.path().join(format!("{stem}.pdf"));
+        let o = Command::new(env!("CARGO_BIN_EXE_tandem"))
+            .current_dir(env!("CARGO_MANIFEST_DIR"))
+            .args(["report", "--html", &format!("examples/{stem}.tandem"), "-o"])
+            .arg(&html)
+            .output()
+            .expect("tandem");
+        assert_eq!(o.status.code(), Some(0), "{o:?}");
+        print(&browser, &html, &pdf, &dir.path().join("profile"));
+        let (width, pages) = info(&pdf);
+        assert!(pages >= 2, "{stem}: {pages} pages");
+        let markdown = String::from_utf8_lossy(
+            &Command::new(env!("CARGO_BIN_EXE_tandem"))
+                .current_dir(env!("CARGO_MANIFEST_DIR"))
+                .args(["report", &format!("examples/{stem}.tandem")])
+                .output()
+                .expect("tandem")
+                .stdout,
+        )
+        .to_string();
+        let headings: Vec<&str> = markdown
+            .lines()
+            .filter_map(|l| l.strip_prefix("## "))
+            .filter(|h| !h.contains('`'))
+            .collect();
+        for page in 1..=pages {
+            let n = page.to_string();
+            let text = run(Command::new("pdftotext")
+                .args(["-layout", "-f", &n, "-l", &n])
+                .arg(&pdf)
+                .arg("-"));
+            assert!(text.contains(header), "{stem} sheet {page}: no header");
+            assert!(text.contains(revision), "{stem} sheet {page}: no revision");
+            assert!(
+                text.contains(&format!("Sheet {page} of {pages}")),
+                "{stem} sheet {page}: no sheet number"
+            );
+            assert!(
+                !text.contains("file://"),
+                "{stem}: the browser's header printed"
+            );
+            // no section heading is the last line of the sheet's body
+            let body: Vec<&str> = text
+                .lines()
+                .map(str::trim)
+                .filter(|l| !l.is_empty() && !l.starts_with("tandem ") && !l.contains(header))
+                .collect();
+            if let Some(last) = body.last() {
+                assert!(
+                    !headings.contains(last),
+                    "{stem} sheet {page}: heading {last:?} stranded at the foot"
+                );
+            }
+            // every word within the page's side margins (16 mm = 45.4 pt)
+            let bbox = run(Command::new("pdftotext")
+                .args(["-bbox", "-f", &n, "-l", &n])
+                .arg(&pdf)
+                .arg("-"));
+            let mut words = 0;
+            for line in bbox.lines().filter(|l| l.trim_start().starts_with("<word")) {
+                words += 1;
+                let attr = |k: &str| -> f64 {
+                    let at = line.find(&format!("{k}=\"")).expect("attribute") + k.len() + 2;
+                    line[at..]
+                        .split('"')
+                        .next()
+                        .and_then(|v| v.parse().ok())
+                        .expect("number")
+                };
+                let (x0, x1) = (attr("xMin"), attr("xMax"));
+                assert!(
+                    x0 >= 45.4 - 1.0 && x1 <= width - 45.4 + 1.0,
+                    "{stem} sheet {page}: a word beyond the margins ({x0:.1}..{x1:.1} of {width}): {line}"
+                );
+            }
+            assert!(words > 10, "{stem} sheet {page}: {words} words read back");
+        }
+    }
+}
