@@ -10,7 +10,7 @@ use serde::Serialize;
 use crate::words::number;
 
 /// A warning, with the values it is about.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, schemars::JsonSchema)]
 #[serde(tag = "code", rename_all = "snake_case")]
 pub enum Warning {
     /// Part stiffnesses so far apart that the solve may lose precision.
@@ -79,7 +79,7 @@ impl fmt::Display for Warning {
 }
 
 /// A warning in the JSON: its code and values, and its sentence.
-#[derive(Serialize)]
+#[derive(Serialize, schemars::JsonSchema)]
 pub struct Json {
     #[serde(flatten)]
     pub warning: Warning,

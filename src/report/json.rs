@@ -7,6 +7,7 @@
 // the keys carry their units: `force_N`, `stress_Pa`
 #![allow(non_snake_case)]
 
+use schemars::JsonSchema;
 use serde::Serialize;
 use serde_json::Value;
 
@@ -14,9 +15,24 @@ use crate::checks::Origin;
 use crate::model::{Kind, Model};
 use crate::solve::CombinationResult;
 
+/// The version of the JSON layout: raised when a key is renamed or removed
+/// or its meaning changes (adding keys keeps it).
+pub const SCHEMA_VERSION: u32 = 1;
+
+/// The JSON Schema of [`Document`], generated from the structs
+/// (docs/solve.schema.json is this, written out).
+#[must_use]
+pub fn schema() -> String {
+    let schema = schemars::schema_for!(Document<'static>);
+    serde_json::to_string_pretty(&schema).unwrap_or_default() + "\n"
+}
+
 /// The JSON document for a solved file, serialized as it is written.
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 pub struct Document<'a> {
+    /// The version of this document's layout ([`SCHEMA_VERSION`]); the
+    /// schema is docs/solve.schema.json.
+    schema_version: u32,
     file: &'a str,
     model: ModelSummary,
     combinations: Vec<Combination<'a>>,
@@ -30,11 +46,11 @@ pub struct Document<'a> {
     warnings: Vec<crate::warning::Json>,
     /// Combinations that could not be solved or checked (then the calc
     /// has errors and exits 2).
-    #[serde(skip_serializing_if = "<[String]>::is_empty")]
+    #[serde(default, skip_serializing_if = "<[String]>::is_empty")]
     left_out: &'a [String],
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct ModelSummary {
     kind: &'static str,
     nodes: usize,
@@ -42,7 +58,7 @@ struct ModelSummary {
     unknowns: usize,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Combination<'a> {
     name: &'a str,
     parts: Parts<'a>,
@@ -56,7 +72,7 @@ struct Combination<'a> {
 /// Every part's results in one combination, written one record at a time.
 struct Parts<'a>(&'a Model, &'a CombinationResult);
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct PartRecord<'a> {
     name: &'a str,
     force_N: f64,
@@ -91,17 +107,45 @@ impl Serialize for Parts<'_> {
     }
 }
 
+impl JsonSchema for Parts<'_> {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "Parts".into()
+    }
+    fn json_schema(g: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        <Vec<PartRecord<'static>>>::json_schema(g)
+    }
+}
+
 /// Every node's results in one combination, written one record at a time.
 struct Nodes<'a>(&'a Model, &'a CombinationResult);
 
-#[derive(Serialize)]
+/// Axial models give one displacement and reaction per node, plane models
+/// an `[x, y]` pair.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used: the records are written directly
+#[serde(untagged)]
+enum NodeRecord<'a> {
+    Axial(AxialNode<'a>),
+    Plane(PlaneNode<'a>),
+}
+
+impl JsonSchema for Nodes<'_> {
+    fn schema_name() -> std::borrow::Cow<'static, str> {
+        "Nodes".into()
+    }
+    fn json_schema(g: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        <Vec<NodeRecord<'static>>>::json_schema(g)
+    }
+}
+
+#[derive(Serialize, JsonSchema)]
 struct AxialNode<'a> {
     name: &'a str,
     displacement_m: f64,
     reaction_N: f64,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct PlaneNode<'a> {
     name: &'a str,
     displacement_m: [f64; 2],
@@ -132,13 +176,13 @@ impl Serialize for Nodes<'_> {
     }
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Rotation<'a> {
     name: &'a str,
     rotation_rad: f64,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Under<'a> {
     /// Combination names; absent: every combination.
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -169,7 +213,7 @@ fn under<'a>(model: &'a Model, origin: &Origin) -> Option<Under<'a>> {
     })
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct CheckOutcome<'a> {
     label: &'a str,
     kind: &'static str,
@@ -183,10 +227,12 @@ struct CheckOutcome<'a> {
 }
 
 /// A check's numbers and result, in every list of checks.
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Verdict {
     demand: f64,
     capacity: f64,
+    /// The SI unit of demand and capacity (`Pa`, `N`, `m`; `1` for a ratio).
+    unit: String,
     #[serde(skip_serializing_if = "Option::is_none")]
     utilization: Option<f64>,
     pass: bool,
@@ -197,20 +243,21 @@ impl From<&crate::checks::Outcome> for Verdict {
         Verdict {
             demand: o.demand.value,
             capacity: o.capacity.value,
+            unit: o.demand.dim.si_symbol(),
             utilization: o.utilization,
             pass: o.pass,
         }
     }
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Yielded<'a> {
     combination: &'a str,
     part: &'a str,
     stress_over_yield: f64,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Capacity<'a> {
     combination: &'a str,
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -227,7 +274,7 @@ struct Capacity<'a> {
     note: &'a Option<String>,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct YieldEvent<'a> {
     part: &'a str,
     /// `yield` or `release` (a one-sense part letting go).
@@ -236,20 +283,20 @@ struct YieldEvent<'a> {
     sense: &'static str,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct PartForce<'a> {
     part: &'a str,
     force_N: f64,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct LongTerm<'a> {
     combination: &'a str,
     note: &'a Option<String>,
     parts: Option<Vec<LongTermPart<'a>>>,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct LongTermPart<'a> {
     name: &'a str,
     short_term_force_N: f64,
@@ -260,7 +307,7 @@ struct LongTermPart<'a> {
     long_term_stress_Pa: Option<f64>,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct LongTermCheck<'a> {
     label: &'a str,
     combination: &'a str,
@@ -268,7 +315,7 @@ struct LongTermCheck<'a> {
     verdict: Verdict,
 }
 
-#[derive(Serialize)]
+#[derive(Serialize, JsonSchema)]
 struct Buckling<'a> {
     parts: Vec<&'a str>,
     effective_length_m: f64,
@@ -369,6 +416,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
         })
         .collect();
     Document {
+        schema_version: SCHEMA_VERSION,
         file,
         model: ModelSummary {
             kind: model.kind.name(),

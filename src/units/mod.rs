@@ -55,6 +55,24 @@ impl Dimension {
         }
     }
 
+    /// The SI unit of this dimension as JSON writes it: `N`, `Pa`, `m`,
+    /// `m^2`, `N/m`, `K`, `1` for a pure number, else the base units.
+    #[must_use]
+    pub fn si_symbol(self) -> String {
+        match self {
+            d if d == Self::NONE => "1".into(),
+            d if d == Self::FORCE => "N".into(),
+            d if d == Self::PRESSURE => "Pa".into(),
+            d if d == Self::LENGTH => "m".into(),
+            d if d == Self::AREA => "m^2".into(),
+            d if d == Self::SECOND_MOMENT => "m^4".into(),
+            d if d == Self::STIFFNESS => "N/m".into(),
+            d if d == Self::TEMPERATURE => "K".into(),
+            d if d == Self::PER_TEMPERATURE => "1/K".into(),
+            d => d.to_string(),
+        }
+    }
+
     #[must_use]
     pub fn is_none(self) -> bool {
         self == Self::NONE

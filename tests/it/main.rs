@@ -19,6 +19,7 @@ mod output;
 mod print;
 mod random_calcs;
 mod reports;
+mod schema;
 mod sweep;
 mod trace;
 mod trust;
