@@ -186,8 +186,16 @@ impl Display {
                         Dimension::FORCE => d.force = s,
                         Dimension::PRESSURE => d.stress = s,
                         Dimension::LENGTH => {
-                            d.length = s.clone();
-                            d.small = s;
+                            // positions and lengths in the unit listed;
+                            // displacements, elongations and gaps in its
+                            // smaller companion, so that a displacement
+                            // never reads as 0.0003340 m
+                            d.small = match s.name.as_str() {
+                                "ft" | "yd" | "mi" => Shown::of("in"),
+                                "m" | "km" => Shown::of("mm"),
+                                _ => s.clone(),
+                            };
+                            d.length = s;
                         }
                         Dimension::AREA => d.area = s,
                         Dimension::STIFFNESS => d.stiffness = s,

@@ -508,9 +508,17 @@ fn length_unit_follows_the_size_of_the_assembly() {
         let d = tandem::report::Display::for_model(&a.model, 4);
         tandem::report::markdown::report(&src, &a, &d)
     };
-    assert!(table(short).contains("| b | 400.0 mm | free |"));
-    assert!(table(&long).contains("| b | 4.000 m | free |"));
-    assert!(table(&listed).contains("| b | 0.4000 m | free |"));
+    // the unit is in the column's header, the cells are numbers
+    assert!(table(short).contains("| Node | Position (mm) | Support |"));
+    assert!(table(short).contains("| b | 400.0 | free |"));
+    assert!(table(&long).contains("| Node | Position (m) | Support |"));
+    assert!(table(&long).contains("| b | 4.000 | free |"));
+    let listed = table(&listed);
+    assert!(listed.contains("| Node | Position (m) | Support |"));
+    assert!(listed.contains("| b | 0.4000 | free |"));
+    // a listed metre keeps displacements in millimetres: 10 kN on
+    // 100 mm² of 200 GPa over 400 mm stretches it 0.2 mm (Hooke's law)
+    assert!(listed.contains("0.2000 mm"), "{listed}");
 }
 
 /// A part with a buckling length that is never in compression has no

@@ -109,8 +109,8 @@ pub(super) fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
                     .map(|(i, p)| {
                         vec![
                             text(&p.name),
-                            f.force(c.limit_forces[i]),
-                            f.force(c.residual.get(i).copied().unwrap_or(0.0)),
+                            f.force_bare(c.limit_forces[i]),
+                            f.force_bare(c.residual.get(i).copied().unwrap_or(0.0)),
                         ]
                     })
                     .collect();
@@ -119,7 +119,11 @@ pub(super) fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
                     doc.p("The unloading is taken with every part engaged: a part that let go on the way up is assumed to take load again as the assembly unloads.");
                 }
                 doc.table(
-                    &["Part", "At the limit", "Residual after unloading"],
+                    &[
+                        "Part",
+                        &f.head("At the limit", &f.d.force),
+                        &f.head("Residual after unloading", &f.d.force),
+                    ],
                     &rows,
                     &[1, 2],
                 );

@@ -562,7 +562,7 @@ fn reactions(doc: &mut Doc, c: &Combo<'_>) {
         let mut row = vec![format!("`{}`", node.name)];
         for d in 0..nd {
             if node.fixed[d] {
-                row.push(f.force(r.nodes[n].reaction[d].value));
+                row.push(f.force_bare(r.nodes[n].reaction[d].value));
                 if r.nodes[n].reaction[d].value != 0.0 {
                     sum_r[d].push(f.force_t(r.nodes[n].reaction[d].value));
                 }
@@ -573,9 +573,13 @@ fn reactions(doc: &mut Doc, c: &Combo<'_>) {
         rows.push(row);
     }
     if nd == 1 {
-        doc.table(&["Node", "R"], &rows, &[1]);
+        doc.table(&["Node", &f.head("R", &f.d.force)], &rows, &[1]);
     } else {
-        doc.table(&["Node", "Rx", "Ry"], &rows, &[1, 2]);
+        doc.table(
+            &["Node", &f.head("Rx", &f.d.force), &f.head("Ry", &f.d.force)],
+            &rows,
+            &[1, 2],
+        );
     }
     doc.p("Overall equilibrium, reactions and loads together:");
     for d in 0..nd {

@@ -87,34 +87,42 @@ fn materials(
         .materials
         .iter()
         .map(|m| {
-            let opt =
-                |p: Option<uom::si::f64::Pressure>| p.map_or("—".into(), |p| f.stress(p.value));
+            let opt = |p: Option<uom::si::f64::Pressure>| {
+                p.map_or("—".into(), |p| f.stress_bare(p.value))
+            };
             let allow = match (
                 m.allowable_tension.or(m.allowable),
                 m.allowable_compression.or(m.allowable),
             ) {
                 (None, None) => "—".to_string(),
                 (t, c) if t == c => opt(t),
-                (Some(t), None) => format!("{} in tension", f.stress(t.value)),
-                (None, Some(c)) => format!("{} in compression", f.stress(c.value)),
+                (Some(t), None) => format!("{} in tension", f.stress_bare(t.value)),
+                (None, Some(c)) => format!("{} in compression", f.stress_bare(c.value)),
                 (t, c) => format!("{} in tension, {} in compression", opt(t), opt(c)),
             };
             let e = if m.e_sources.is_empty() {
-                f.stress(m.e.value)
+                f.stress_bare(m.e.value)
             } else {
-                format!("{} ({})", f.stress(m.e.value), m.e_sources.join("; "))
+                format!("{} ({})", f.stress_bare(m.e.value), m.e_sources.join("; "))
             };
             vec![
                 text(&m.name),
                 e,
-                m.alpha.map_or("—".into(), |a| f.alpha(a.value)),
+                m.alpha.map_or("—".into(), |a| f.alpha_bare(a.value)),
                 opt(m.yield_strength),
                 allow,
             ]
         })
         .collect();
+    let per_degree = format!("1/{}", degree(&f.d.temperature.name));
     doc.table(
-        &["Material", "E", "α", "Yield", "Allowable"],
+        &[
+            "Material",
+            &f.head("E", &f.d.stress),
+            &format!("α ({per_degree})"),
+            &f.head("Yield", &f.d.stress),
+            &f.head("Allowable", &f.d.stress),
+        ],
         &rows,
         &[1, 2, 3],
     );
@@ -165,8 +173,12 @@ fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
         .iter()
         .map(|n| {
             let at = match model.kind {
-                Kind::Axial => f.length(n.x.value),
-                Kind::Plane => format!("({}, {})", f.length(n.x.value), f.length(n.y.value)),
+                Kind::Axial => f.bare(n.x.value, &f.d.length),
+                Kind::Plane => format!(
+                    "({}, {})",
+                    f.bare(n.x.value, &f.d.length),
+                    f.bare(n.y.value, &f.d.length)
+                ),
             };
             let sup = match (model.kind, n.fixed) {
                 (Kind::Axial, [true, _]) | (Kind::Plane, [true, true]) => "fixed",
@@ -177,7 +189,11 @@ fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
             vec![text(&n.name), at, sup.to_string()]
         })
         .collect();
-    doc.table(&["Node", "Position", "Support"], &rows, &[1]);
+    doc.table(
+        &["Node", &f.head("Position", &f.d.length), "Support"],
+        &rows,
+        &[1],
+    );
     for r in &model.rigids {
         let names: Vec<String> = r
             .nodes
@@ -228,8 +244,8 @@ fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
                 } => (
                     text(&model.materials[*material].name),
                     match section {
-                        Some(s) => format!("{} ({s})", f.area(area.value)),
-                        None => f.area(area.value),
+                        Some(s) => format!("{} ({s})", f.bare(area.value, &f.d.area)),
+                        None => f.bare(area.value, &f.d.area),
                     },
                 ),
                 Law::Spring { .. } => ("spring".into(), "—".into()),
@@ -249,8 +265,8 @@ fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
                 ends,
                 mat,
                 area,
-                f.length(p.length.value),
-                f.stiffness(p.stiffness(&model.materials).value),
+                f.bare(p.length.value, &f.d.length),
+                f.bare(p.stiffness(&model.materials).value, &f.d.stiffness),
                 if notes.is_empty() {
                     "—".into()
                 } else {
@@ -260,7 +276,15 @@ fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
         })
         .collect();
     doc.table(
-        &["Part", "Ends", "Material", "A", "L", "k", "Notes"],
+        &[
+            "Part",
+            "Ends",
+            "Material",
+            &f.head("A", &f.d.area),
+            &f.head("L", &f.d.length),
+            &f.head("k", &f.d.stiffness),
+            "Notes",
+        ],
         &rows,
         &[3, 4, 5],
     );

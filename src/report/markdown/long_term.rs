@@ -49,14 +49,14 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
                 let s1 = r.parts[i].stress.map(|s| s.value);
                 vec![
                     text(&p.name),
-                    f.force(short.parts[i].force.value),
-                    f.force(r.parts[i].force.value),
-                    s0.map_or("—".into(), |s| f.stress(s)),
-                    s1.map_or("—".into(), |s| f.stress(s)),
+                    f.force_bare(short.parts[i].force.value),
+                    f.force_bare(r.parts[i].force.value),
+                    s0.map_or("—".into(), |s| f.stress_bare(s)),
+                    s1.map_or("—".into(), |s| f.stress_bare(s)),
                     match (s0, s1) {
                         (Some(x), Some(y)) if x != 0.0 => {
                             let c = 100.0 * (y.abs() - x.abs()) / x.abs();
-                            format!("{}{} %", if c > 0.0 { "+" } else { "" }, number(c, 3))
+                            format!("{}{}", if c > 0.0 { "+" } else { "" }, number(c, 3))
                         }
                         _ => "—".into(),
                     },
@@ -66,11 +66,11 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
         doc.table(
             &[
                 "Part",
-                "Force, short term",
-                "Force, long term",
-                "Stress, short term",
-                "Stress, long term",
-                "Change in size of stress",
+                &f.head("Force, short term", &f.d.force),
+                &f.head("Force, long term", &f.d.force),
+                &f.head("Stress, short term", &f.d.stress),
+                &f.head("Stress, long term", &f.d.stress),
+                "Change in size of stress (%)",
             ],
             &rows,
             &[1, 2, 3, 4, 5],

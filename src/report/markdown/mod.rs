@@ -144,6 +144,17 @@ impl Fmt<'_> {
     fn term(&self, si: f64, u: &Shown) -> String {
         bracket_negative(self.with(si, u))
     }
+    /// A value in a unit, as a number alone: for a table whose column
+    /// header carries the unit.
+    fn bare(&self, si: f64, u: &Shown) -> String {
+        self.n(u.value(si))
+    }
+    fn force_bare(&self, si: f64) -> String {
+        self.bare(self.scales.get().force(si), &self.d.force)
+    }
+    fn stress_bare(&self, si: f64) -> String {
+        self.bare(self.scales.get().stress(si), &self.d.stress)
+    }
     fn force(&self, si: f64) -> String {
         self.with(self.scales.get().force(si), &self.d.force)
     }
@@ -171,9 +182,16 @@ impl Fmt<'_> {
     fn temp(&self, si: f64) -> String {
         self.term(si, &self.d.temperature)
     }
+    fn alpha_bare(&self, si: f64) -> String {
+        format!("{:.3e}", si * self.d.temperature.factor)
+    }
     fn alpha(&self, si: f64) -> String {
         let t = &self.d.temperature;
         format!("{:.3e}/{}", si * t.factor, degree(&t.name))
+    }
+    /// `Force (kip)`: a column header with its unit.
+    fn head(&self, label: &str, u: &Shown) -> String {
+        format!("{label} ({})", u.name)
     }
     fn plain(&self, v: f64) -> String {
         bracket_negative(self.n(v))
@@ -524,13 +542,22 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
         let smax = solution.combinations[cf].parts[i].stress.map(|s| s.value);
         rows.push(vec![
             text(&p.name),
-            f.force(fmax),
-            smax.map_or("—".into(), |s| f.stress(s)),
+            f.force_bare(fmax),
+            smax.map_or("—".into(), |s| f.stress_bare(s)),
             format!("`{}`", solution.combinations[cf].name),
         ]);
     }
     doc.p("Largest force in each part over all combinations (tension positive):");
-    doc.table(&["Part", "Force", "Stress", "Combination"], &rows, &[1, 2]);
+    doc.table(
+        &[
+            "Part",
+            &f.head("Force", &f.d.force),
+            &f.head("Stress", &f.d.stress),
+            "Combination",
+        ],
+        &rows,
+        &[1, 2],
+    );
     for w in &solution.warnings {
         doc.p(&format!("**Warning:** {w}."));
     }

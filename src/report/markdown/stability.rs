@@ -22,14 +22,14 @@ pub(super) fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
                 .collect();
             vec![
                 names.join(" + "),
-                f.with(b.kl, &f.d.small),
-                b.r.map_or("—".into(), |r| f.small(r)),
+                f.bare(b.kl, &f.d.small),
+                b.r.map_or("—".into(), |r| f.bare(r, &f.d.small)),
                 b.slenderness().map_or("—".into(), |s| f.n(s)),
-                f.force(b.euler),
+                f.force_bare(b.euler),
                 if b.compression > 0.0 {
                     format!(
                         "{} (`{}`)",
-                        f.force(b.compression),
+                        f.force_bare(b.compression),
                         solution.combinations[b.combination].name
                     )
                 } else {
@@ -42,11 +42,11 @@ pub(super) fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
     doc.table(
         &[
             "Part",
-            "K·L",
-            "r",
+            &f.head("K·L", &f.d.small),
+            &f.head("r", &f.d.small),
             "K·L / r",
-            "P_e",
-            "Largest compression",
+            &f.head("P_e", &f.d.force),
+            &f.head("Largest compression", &f.d.force),
             "C / P_e",
         ],
         &rows,
