@@ -121,8 +121,8 @@ pub(super) fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
                 doc.table(
                     &[
                         "Part",
-                        &f.head("At the limit", &f.d.force),
-                        &f.head("Residual after unloading", &f.d.force),
+                        &head("At the limit", &f.d.force),
+                        &head("Residual after unloading", &f.d.force),
                     ],
                     &rows,
                     &[1, 2],

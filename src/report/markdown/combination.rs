@@ -573,10 +573,10 @@ fn reactions(doc: &mut Doc, c: &Combo<'_>) {
         rows.push(row);
     }
     if nd == 1 {
-        doc.table(&["Node", &f.head("R", &f.d.force)], &rows, &[1]);
+        doc.table(&["Node", &head("R", &f.d.force)], &rows, &[1]);
     } else {
         doc.table(
-            &["Node", &f.head("Rx", &f.d.force), &f.head("Ry", &f.d.force)],
+            &["Node", &head("Rx", &f.d.force), &head("Ry", &f.d.force)],
             &rows,
             &[1, 2],
         );

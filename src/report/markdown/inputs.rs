@@ -118,10 +118,10 @@ fn materials(
     doc.table(
         &[
             "Material",
-            &f.head("E", &f.d.stress),
+            &head("E", &f.d.stress),
             &format!("α ({per_degree})"),
-            &f.head("Yield", &f.d.stress),
-            &f.head("Allowable", &f.d.stress),
+            &head("Yield", &f.d.stress),
+            &head("Allowable", &f.d.stress),
         ],
         &rows,
         &[1, 2, 3],
@@ -190,7 +190,7 @@ fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
         })
         .collect();
     doc.table(
-        &["Node", &f.head("Position", &f.d.length), "Support"],
+        &["Node", &head("Position", &f.d.length), "Support"],
         &rows,
         &[1],
     );
@@ -280,9 +280,9 @@ fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
             "Part",
             "Ends",
             "Material",
-            &f.head("A", &f.d.area),
-            &f.head("L", &f.d.length),
-            &f.head("k", &f.d.stiffness),
+            &head("A", &f.d.area),
+            &head("L", &f.d.length),
+            &head("k", &f.d.stiffness),
             "Notes",
         ],
         &rows,

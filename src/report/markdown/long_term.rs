@@ -66,10 +66,10 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
         doc.table(
             &[
                 "Part",
-                &f.head("Force, short term", &f.d.force),
-                &f.head("Force, long term", &f.d.force),
-                &f.head("Stress, short term", &f.d.stress),
-                &f.head("Stress, long term", &f.d.stress),
+                &head("Force, short term", &f.d.force),
+                &head("Force, long term", &f.d.force),
+                &head("Stress, short term", &f.d.stress),
+                &head("Stress, long term", &f.d.stress),
                 "Change in size of stress (%)",
             ],
             &rows,

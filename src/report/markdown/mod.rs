@@ -189,13 +189,14 @@ impl Fmt<'_> {
         let t = &self.d.temperature;
         format!("{:.3e}/{}", si * t.factor, degree(&t.name))
     }
-    /// `Force (kip)`: a column header with its unit.
-    fn head(&self, label: &str, u: &Shown) -> String {
-        format!("{label} ({})", u.name)
-    }
     fn plain(&self, v: f64) -> String {
         bracket_negative(self.n(v))
     }
+}
+
+/// `Force (kip)`: a column header with its unit.
+fn head(label: &str, u: &Shown) -> String {
+    format!("{label} ({})", u.name)
 }
 
 /// User text (a name, a label, a title field) as Markdown that shows it as
@@ -551,8 +552,8 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
     doc.table(
         &[
             "Part",
-            &f.head("Force", &f.d.force),
-            &f.head("Stress", &f.d.stress),
+            &head("Force", &f.d.force),
+            &head("Stress", &f.d.stress),
             "Combination",
         ],
         &rows,

@@ -42,11 +42,11 @@ pub(super) fn buckling_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
     doc.table(
         &[
             "Part",
-            &f.head("K·L", &f.d.small),
-            &f.head("r", &f.d.small),
+            &head("K·L", &f.d.small),
+            &head("r", &f.d.small),
             "K·L / r",
-            &f.head("P_e", &f.d.force),
-            &f.head("Largest compression", &f.d.force),
+            &head("P_e", &f.d.force),
+            &head("Largest compression", &f.d.force),
             "C / P_e",
         ],
         &rows,
