@@ -52,6 +52,11 @@ pub enum Command {
         /// Write machine-readable JSON (SI units) instead of tables.
         #[arg(long)]
         json: bool,
+        /// Also write parts.csv, nodes.csv and checks.csv into this folder
+        /// (created if needed): one row per combination and item, units in
+        /// the column headers.
+        #[arg(long, value_name = "DIR")]
+        csv: Option<PathBuf>,
         #[command(flatten)]
         show: Show,
     },
@@ -73,6 +78,10 @@ pub enum Command {
         /// Write a self-contained HTML page instead of Markdown.
         #[arg(long)]
         html: bool,
+        /// Also write parts.csv, nodes.csv and checks.csv into this folder
+        /// (with several files, into DIR/STEM/).
+        #[arg(long, value_name = "DIR")]
+        csv: Option<PathBuf>,
         #[command(flatten)]
         show: Show,
     },

@@ -62,13 +62,19 @@ fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
         Command::Check { files } => check(&files),
-        Command::Solve { file, json, show } => solve(&file, json, &show),
+        Command::Solve {
+            file,
+            json,
+            csv,
+            show,
+        } => solve(&file, json, csv.as_deref(), &show),
         Command::Report {
             files,
             output,
             html,
+            csv,
             show,
-        } => report(&files, output.as_deref(), html, &show),
+        } => report(&files, output.as_deref(), html, csv.as_deref(), &show),
         Command::Fmt { files, check } => fmt(&files, check),
         Command::Sweep {
             file,
@@ -157,13 +163,49 @@ fn display(model: &tandem::model::Model, show: &Show) -> Result<Display, String>
     })
 }
 
-fn solve(path: &Path, json: bool, show: &Show) -> ExitCode {
+/// Write a calc's results as CSV tables into `dir` (created if needed);
+/// false (with the error on stderr) when they cannot be written.
+fn write_csv(dir: &Path, a: &tandem::Analysis, show: &Show, inputs: &[PathBuf]) -> bool {
+    let d = match display(&a.model, show) {
+        Ok(d) => d,
+        Err(msg) => {
+            errln!("error: {msg}");
+            return false;
+        }
+    };
+    if let Err(e) = std::fs::create_dir_all(dir) {
+        errln!("error: cannot create {}: {e}", dir.display());
+        return false;
+    }
+    let mut ok = true;
+    for (name, bytes) in tandem::report::csv::tables(a, &d) {
+        let path = dir.join(name);
+        if tandem::output::is_input(&path, inputs) {
+            errln!(
+                "error: refusing to write over the input file {}",
+                path.display()
+            );
+            ok = false;
+        } else if let Err(e) = tandem::output::write_atomic(&path, &bytes) {
+            errln!("error: cannot write {}: {e}", path.display());
+            ok = false;
+        }
+    }
+    ok
+}
+
+fn solve(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
     let Some(source) = read(path) else {
         return bad();
     };
     let Some((a, incomplete)) = analyse_shown(&source) else {
         return bad();
     };
+    if let Some(dir) = csv {
+        if !write_csv(dir, &a, show, &[path.to_path_buf()]) {
+            return bad();
+        }
+    }
     if json {
         // written as it is serialized: a million parts never sit in memory
         // as one tree or one string
@@ -228,6 +270,7 @@ fn render_report(
     path: &Path,
     target: Option<&Path>,
     html: bool,
+    csv: Option<&Path>,
     show: &Show,
 ) -> Result<Rendered, ExitCode> {
     use tandem::report::markdown::{report_with, Figures, Options};
@@ -241,6 +284,11 @@ fn render_report(
         errln!("error: {msg}");
         bad()
     })?;
+    if let Some(dir) = csv {
+        if !write_csv(dir, &a, show, &[path.to_path_buf()]) {
+            return Err(bad());
+        }
+    }
     let stem = target
         .and_then(Path::file_stem)
         .map_or_else(|| "report".to_string(), |s| s.to_string_lossy().to_string());
@@ -275,7 +323,13 @@ fn render_report(
     })
 }
 
-fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> ExitCode {
+fn report(
+    files: &[PathBuf],
+    output: Option<&Path>,
+    html: bool,
+    csv: Option<&Path>,
+    show: &Show,
+) -> ExitCode {
     let ext = if html { "html" } else { "md" };
     // Where each report goes.
     let targets: Vec<Option<PathBuf>> = match output {
@@ -329,12 +383,30 @@ fn report(files: &[PathBuf], output: Option<&Path>, html: bool, show: &Show) -> 
         }
     }
     // Render in parallel, one worker per core.
-    let jobs: Vec<(&PathBuf, Option<&Path>)> = files
+    // CSV tables: in DIR for one file, in DIR/STEM/ for several
+    let csv_dirs: Vec<Option<PathBuf>> = files
+        .iter()
+        .map(|f| {
+            csv.map(|dir| {
+                if files.len() == 1 {
+                    dir.to_path_buf()
+                } else {
+                    let stem = f
+                        .file_stem()
+                        .map_or_else(|| "report".into(), |s| s.to_string_lossy().to_string());
+                    dir.join(stem)
+                }
+            })
+        })
+        .collect();
+    let jobs: Vec<(&PathBuf, Option<&Path>, Option<&Path>)> = files
         .iter()
         .zip(targets.iter().map(Option::as_deref))
+        .zip(csv_dirs.iter().map(Option::as_deref))
+        .map(|((f, t), c)| (f, t, c))
         .collect();
     let results: Vec<Result<Rendered, ExitCode>> =
-        tandem::parallel::map(&jobs, |(f, t)| render_report(f, *t, html, show));
+        tandem::parallel::map(&jobs, |(f, t, c)| render_report(f, *t, html, *c, show));
     let mut code = ExitCode::SUCCESS;
     let mut failed_check = false;
     for (result, target) in results.into_iter().zip(&targets) {

@@ -1,6 +1,7 @@
 //! Output of solved calcs: display units and number formatting, the solve
 //! tables, JSON.
 
+pub mod csv;
 pub mod display;
 pub mod drawing;
 pub mod json;

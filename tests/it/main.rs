@@ -6,6 +6,7 @@ mod checks;
 mod cli;
 mod closed_form;
 mod common;
+mod csv;
 mod diagnostics;
 mod diff;
 mod drawings;
