@@ -11,7 +11,23 @@ use crate::model::Model;
 pub struct LongTerm {
     pub combination: usize,
     pub result: Option<CombinationResult>,
+    /// How the result splits into the sustained and the other actions,
+    /// for the report's equations.
+    pub split: Option<Split>,
     pub note: Option<String>,
+}
+
+/// Per part: the two stiffnesses and the elongations of the two solves.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Split {
+    /// k / (1 + φ), the stiffness the sustained actions meet.
+    pub k_eff: Vec<f64>,
+    /// k, the stiffness the other actions meet.
+    pub k: Vec<f64>,
+    /// Elongation and free elongation under the sustained actions.
+    pub sustained: (Vec<f64>, Vec<f64>),
+    /// Elongation and free elongation under the other actions.
+    pub transient: (Vec<f64>, Vec<f64>),
 }
 
 fn add(a: &Actions, b: &Actions) -> Actions {
@@ -64,6 +80,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
             out.push(LongTerm {
                 combination: ci,
                 result: None,
+                split: None,
                 note: Some("not computed: the long-term state adds two linear solves, which one-sense or gapped parts do not allow".into()),
             });
             continue;
@@ -104,6 +121,12 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         out.push(LongTerm {
             combination: ci,
             result: Some(result),
+            split: Some(Split {
+                k_eff: k_eff.clone(),
+                k: k_full.clone(),
+                sustained: (es, a_s.free),
+                transient: (et, a_t.free),
+            }),
             note: None,
         });
     }

@@ -75,6 +75,11 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
             &rows,
             &[1, 2, 3, 4, 5],
         );
+        if let Some(split) = &l.split {
+            f.scales.set(crate::report::display::Scales::of(r));
+            part_equations(doc, f, model, r, split);
+            f.scales.set(crate::report::display::Scales::default());
+        }
     }
     if let Some((lt, checks)) = &a.long_term_checks {
         doc.h(3, "Checks in the long-term state");
@@ -93,5 +98,53 @@ pub(super) fn long_term_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis)
             })
             .collect();
         check_table(doc, "Governing combination", &rows);
+    }
+}
+
+/// Each part's long-term force and elongation, substituted: the sustained
+/// actions meet k_eff = k / (1 + φ), the others k.
+fn part_equations(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    r: &crate::solve::CombinationResult,
+    split: &crate::solve::longterm::Split,
+) {
+    doc.p("Long-term force and elongation of each part: the sustained actions (subscript s) act on k_eff = k / (1 + φ), the others (subscript t) on k; δ₀ is the elongation free of force.");
+    let (es, fs) = &split.sustained;
+    let (et, ft) = &split.transient;
+    for (i, p) in model.parts.iter().enumerate() {
+        let phi = p
+            .material()
+            .and_then(|m| model.materials[m].creep)
+            .unwrap_or(0.0);
+        doc.p(&format!("**{}**", text(&p.name)));
+        let k = |v: f64| f.with(v, &f.d.stiffness);
+        if phi > 0.0 {
+            doc.eq(&format!(
+                "k_eff = k / (1 + φ) = {} / (1 + {}) = {}",
+                k(split.k[i]),
+                f.n(phi),
+                k(split.k_eff[i])
+            ));
+        }
+        let keff = if phi > 0.0 { "k_eff" } else { "k" };
+        doc.eq(&format!(
+            "N = {keff}·(δ_s − δ₀,s) + k·(δ_t − δ₀,t) = {} · ({} - {}) + {} · ({} - {}) = {}",
+            k(split.k_eff[i]),
+            f.small_t(es[i]),
+            f.small_t(fs[i]),
+            k(split.k[i]),
+            f.small_t(et[i]),
+            f.small_t(ft[i]),
+            f.force(r.parts[i].force.value)
+        ));
+        doc.eq(&format!(
+            "δ = δ_s + δ_t = {} + {} = {}",
+            f.small_t(es[i]),
+            f.small_t(et[i]),
+            f.small(r.parts[i].elongation.value)
+        ));
+        doc.end_list();
     }
 }
