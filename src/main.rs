@@ -715,13 +715,9 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
                 out.display()
             ));
         }
-        match sweep::plot(&table, &d) {
-            Ok(svg) => {
-                if let Err(e) = tandem::output::write_atomic(out, svg.as_bytes()) {
-                    return fail(format!("cannot write {}: {e}", out.display()));
-                }
-            }
-            Err(e) => return fail(format!("cannot draw the plot: {e}")),
+        let svg = sweep::plot(&table, seek.as_ref(), &d);
+        if let Err(e) = tandem::output::write_atomic(out, svg.as_bytes()) {
+            return fail(format!("cannot write {}: {e}", out.display()));
         }
     }
     if args.json {

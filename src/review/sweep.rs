@@ -465,19 +465,17 @@ pub fn text(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> S
     out
 }
 
-/// Utilization against the parameter as an SVG drawing.
-///
-/// # Errors
-/// A message if the drawing cannot be made.
-pub fn plot(sweep: &Sweep, d: &crate::report::Display) -> Result<String, String> {
-    use plotters::prelude::*;
+/// The sweep as an SVG chart: each check's utilization against the
+/// parameter (axis titles with units), the limit 1.0, the values found by
+/// `--seek` marked, and the legend outside the data. A utilization off the
+/// scale or undefined (capacity not positive) is drawn at the top edge and
+/// marked ▲, never left out.
+#[must_use]
+pub fn plot(sweep: &Sweep, seek: Option<&Seek>, d: &crate::report::Display) -> String {
+    use crate::report::drawing::chart::{render, Chart, Mark, Series};
     let unit = sweep.parameter_unit(d);
     let x = |q: &Quantity| unit.as_ref().map_or(q.value, |u| u.value(q.value));
     let xs: Vec<f64> = sweep.steps.iter().map(|s| x(&s.value)).collect();
-    let (x0, x1) = (
-        xs.iter().copied().fold(f64::INFINITY, f64::min),
-        xs.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-    );
     let ymax = sweep
         .steps
         .iter()
@@ -485,80 +483,59 @@ pub fn plot(sweep: &Sweep, d: &crate::report::Display) -> Result<String, String>
         .filter(|u| u.is_finite())
         .fold(1.2f64, f64::max)
         * 1.05;
-    let mut svg = String::new();
-    {
-        let root = SVGBackend::with_string(&mut svg, (800, 500)).into_drawing_area();
-        root.fill(&WHITE).map_err(|e| e.to_string())?;
-        let xlabel = match &unit {
-            Some(u) => format!("{} ({})", sweep.name, u.name),
-            None => sweep.name.clone(),
-        };
-        let mut chart = ChartBuilder::on(&root)
-            .caption("Utilization against the parameter", ("sans-serif", 20))
-            .margin(15)
-            .x_label_area_size(45)
-            .y_label_area_size(55)
-            .build_cartesian_2d(x0..x1.max(x0 + f64::EPSILON), 0.0..ymax)
-            .map_err(|e| e.to_string())?;
-        chart
-            .configure_mesh()
-            .x_desc(xlabel)
-            .y_desc("utilization")
-            .draw()
-            .map_err(|e| e.to_string())?;
-        chart
-            .draw_series(LineSeries::new(
-                vec![(x0, 1.0), (x1, 1.0)],
-                RED.stroke_width(1),
-            ))
-            .map_err(|e| e.to_string())?
-            .label("limit 1.0");
-        let palette = [BLUE, GREEN, MAGENTA, CYAN, BLACK];
-        let mut any_off = false;
-        for (k, label) in sweep.labels.iter().enumerate() {
-            let pts: Vec<(f64, f64)> = sweep
+    let series = sweep
+        .labels
+        .iter()
+        .enumerate()
+        .map(|(k, label)| {
+            let mut off = Vec::new();
+            let points = sweep
                 .steps
                 .iter()
                 .zip(&xs)
-                // off the scale or undefined (capacity not positive):
-                // drawn at the top edge and marked, never left out
-                .map(|(s, &xv)| match s.checks.get(k).copied().flatten() {
+                .enumerate()
+                .map(|(i, (s, &xv))| match s.checks.get(k).copied().flatten() {
                     Some(u) if u < ymax => (xv, u),
-                    _ => (xv, ymax),
+                    _ => {
+                        off.push(i);
+                        (xv, ymax)
+                    }
                 })
                 .collect();
-            let off: Vec<(f64, f64)> = pts.iter().copied().filter(|p| p.1 >= ymax).collect();
-            let color = palette[k % palette.len()];
-            chart
-                .draw_series(LineSeries::new(pts, color.stroke_width(2)))
-                .map_err(|e| e.to_string())?
-                .label(label.clone())
-                .legend(move |(lx, ly)| PathElement::new(vec![(lx, ly), (lx + 18, ly)], color));
-            if !off.is_empty() {
-                chart
-                    .draw_series(
-                        off.into_iter()
-                            .map(|p| TriangleMarker::new(p, 6, color.filled())),
-                    )
-                    .map_err(|e| e.to_string())?;
-                any_off = true;
+            Series {
+                label: label.clone(),
+                points,
+                off,
             }
-        }
-        if any_off {
-            root.draw(&Text::new(
-                "▲ off the scale: utilization above the top edge, or undefined",
-                (70, 478),
-                ("sans-serif", 13),
-            ))
-            .map_err(|e| e.to_string())?;
-        }
-        chart
-            .configure_series_labels()
-            .background_style(WHITE.mix(0.9))
-            .border_style(BLACK)
-            .draw()
-            .map_err(|e| e.to_string())?;
-        root.present().map_err(|e| e.to_string())?;
-    }
-    Ok(svg)
+        })
+        .collect();
+    let marks = match seek {
+        Some(Seek::Found { crossings, .. }) => crossings
+            .iter()
+            .map(|q| Mark {
+                at: (x(q), 1.0),
+                label: format!(
+                    "{} = {}{}",
+                    sweep.name,
+                    crate::report::number(x(q), 4),
+                    unit.as_ref()
+                        .map_or(String::new(), |u| format!(" {}", u.name))
+                ),
+            })
+            .collect(),
+        _ => Vec::new(),
+    };
+    render(&Chart {
+        title: "Utilization against the parameter".into(),
+        x_label: match &unit {
+            Some(u) => format!("{} ({})", sweep.name, u.name),
+            None => sweep.name.clone(),
+        },
+        y_label: "utilization (demand / capacity)".into(),
+        series,
+        levels: vec![(1.0, "limit: utilization 1.0".into())],
+        marks,
+        marks_label: "where the governing utilization reaches 1.0 (--seek)".into(),
+        y_min_top: ymax / 1.05,
+    })
 }

@@ -36,6 +36,12 @@ pub struct Capacity {
     pub residual: Vec<f64>,
     /// Why the analysis was not made, when it was not.
     pub note: Option<String>,
+    /// The node the load pattern moves most (elastically), whose
+    /// displacement the path records.
+    pub path_node: Option<usize>,
+    /// The path: (λ, displacement of `path_node` in m, along the direction
+    /// it moves elastically), at the start and at each event.
+    pub path: Vec<(f64, f64)>,
 }
 
 fn skipped(combination: usize, note: &str) -> Capacity {
@@ -47,6 +53,8 @@ fn skipped(combination: usize, note: &str) -> Capacity {
         limit_forces: Vec::new(),
         residual: Vec::new(),
         note: Some(note.to_string()),
+        path_node: None,
+        path: Vec::new(),
     }
 }
 
@@ -120,8 +128,30 @@ fn path(
     }
     // Elastic response of the whole assembly to the load pattern, for unloading.
     let f_el = system.factor(k_full, &[])?;
-    let (_, e_el) = system.respond(&f_el, k_full, &zero, &zero, &load);
+    let (q_el, e_el) = system.respond(&f_el, k_full, &zero, &zero, &load);
     let n_el: Vec<f64> = (0..n).map(|i| k_full[i] * e_el[i]).collect();
+    // the node the load pattern moves most, and the direction it moves
+    let nd = model.kind.dofs();
+    let moved = |node: usize| -> Vec<f64> {
+        (0..nd)
+            .map(|d| system.displacement(&q_el, &load.u0, node * nd + d))
+            .collect()
+    };
+    let size = |v: &[f64]| v.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let (node, far) = (0..model.nodes.len())
+        .map(|i| (i, size(&moved(i))))
+        .fold((0, 0.0), |best, c| if c.1 > best.1 { c } else { best });
+    let dir: Vec<f64> = if far > 0.0 {
+        moved(node).iter().map(|x| x / far).collect()
+    } else {
+        vec![0.0; nd]
+    };
+    let along = |q: &[f64], u0: &[f64]| -> f64 {
+        (0..nd)
+            .map(|d| dir[d] * system.displacement(q, u0, node * nd + d))
+            .sum()
+    };
+    let mut trace: Vec<(f64, f64)> = Vec::new();
 
     let mut yielded: Vec<Option<f64>> = vec![None; n];
     // one-sense parts that have let go: no stiffness, no force
@@ -150,8 +180,12 @@ fn path(
             }
             Err(e) => return Err(e),
         };
-        let (_, ec) = system.respond(&factor, &k, &constant.free, &forces, &constant);
-        let (_, ep) = system.respond(&factor, &k, &zero, &zero, &load);
+        let (qc, ec) = system.respond(&factor, &k, &constant.free, &forces, &constant);
+        let (qp, ep) = system.respond(&factor, &k, &zero, &zero, &load);
+        let (dc, dp) = (along(&qc, &constant.u0), along(&qp, &load.u0));
+        if trace.is_empty() {
+            trace.push((lambda, dc + lambda * dp));
+        }
         let nc: Vec<f64> = (0..n)
             .map(|i| yielded[i].unwrap_or(k[i] * (ec[i] - constant.free[i])))
             .collect();
@@ -223,6 +257,7 @@ fn path(
                 });
             }
         }
+        trace.push((next, dc + next * dp));
         lambda = next;
         for i in 0..n {
             limit_forces[i] = if released[i] {
@@ -248,6 +283,8 @@ fn path(
         limit_forces,
         residual,
         note,
+        path_node: (far > 0.0).then_some(node),
+        path: trace,
     })
 }
 

@@ -175,6 +175,16 @@ impl<'m> System<'m> {
         out
     }
 
+    /// One node component's displacement from the unknowns `q` and the
+    /// prescribed movements `u0`.
+    pub(super) fn displacement(&self, q: &[f64], u0: &[f64], component: usize) -> f64 {
+        u0[component]
+            + self.map.terms[component]
+                .iter()
+                .map(|(i, v)| v * q[i])
+                .sum::<f64>()
+    }
+
     /// g_i·v for every part.
     pub(super) fn project(&self, v: &[f64]) -> Vec<f64> {
         (0..self.elems.k.len())

@@ -205,3 +205,48 @@ fn html_carries_its_drawings_inline() {
     assert!(!html.contains("<img"));
     assert_eq!(html.matches("<figure class=\"drawing\">").count(), 2);
 }
+
+/// The capacity path of one rod: elastic up to its yield force, then a
+/// mechanism. F_y = f_y·A = 250 MPa · 100 mm² = 25 kN, so λ_y = 25 / 10 =
+/// 2.5; the end has moved δ = F·L / (E·A) = 25 kN · 1 m / (200 GPa ·
+/// 100 mm²) = 1.25 mm (Hooke's law).
+#[test]
+fn the_capacity_path_of_one_rod_follows_hookes_law_to_yield() {
+    let text =
+        "material s { E = 200 GPa\n yield = 250 MPa }\nnode a at 0 m\nnode b at 1 m\nfix a\n\
+                part p { material = s; area = 100 mm^2; ends = a, b }\nload b = 10 kN\n";
+    let src = Source::new("rod.tandem", text.to_string());
+    let a = tandem::analyse(&src).expect("analyses");
+    let c = &a.capacity[0];
+    assert_eq!(c.path_node, Some(1));
+    assert_eq!(c.path.len(), 2);
+    assert!(c.path[0].0.abs() < 1e-12 && c.path[0].1.abs() < 1e-15);
+    assert!((c.path[1].0 - 2.5).abs() < 1e-9);
+    assert!((c.path[1].1 - 1.25e-3).abs() < 1e-12);
+    let d = Display::for_model(&a.model, 4);
+    let plot = tandem::report::drawing::capacity_plot(&a.model, c, &d).expect("a plot");
+    let doc = roxmltree::Document::parse(&plot.svg).expect("well-formed");
+    let marks = doc
+        .descendants()
+        .filter(|n| n.attribute("class") == Some("mark"))
+        .count();
+    assert_eq!(marks, c.events.len());
+    assert!(plot.svg.contains("plastic limit, λ_p = 2.500"));
+    assert!(plot.svg.contains("(mm)"));
+}
+
+#[test]
+fn a_report_written_to_a_file_links_its_capacity_paths() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("sleeve.md");
+    let o = tandem(&[
+        "report",
+        "examples/bolted_sleeve.tandem",
+        "-o",
+        out.to_str().expect("utf-8"),
+    ]);
+    assert_eq!(o.status.code(), Some(1), "{o:?}"); // the example's bolt check fails
+    let md = std::fs::read_to_string(&out).expect("report");
+    assert!(md.contains("](sleeve.capacity.surge.svg)"), "{md}");
+    assert!(dir.path().join("sleeve.capacity.surge.svg").is_file());
+}

@@ -103,6 +103,33 @@ fn command_line_sweep_and_plot() {
     assert!(text.contains("t = 0.6207 in"), "{text}");
     let drawing = std::fs::read_to_string(&svg).expect("svg written");
     assert!(drawing.contains("<svg") && drawing.contains("plate stress"));
+    // well-formed; the axis titles carry units; the value --seek found is
+    // marked on the chart; the legend stands below the data, one swatch
+    // per entry (the limit line, the one check, the mark)
+    let doc = roxmltree::Document::parse(&drawing).expect("well-formed SVG");
+    let texts: Vec<&str> = doc.descendants().filter_map(|n| n.text()).collect();
+    assert!(texts.contains(&"t (in)"), "{texts:?}");
+    assert!(texts.contains(&"utilization (demand / capacity)"));
+    let marks: Vec<_> = doc
+        .descendants()
+        .filter(|n| n.attribute("class") == Some("mark"))
+        .collect();
+    assert_eq!(marks.len(), 1);
+    assert_eq!(marks[0].attribute("data-name"), Some("t = 0.6207 in"));
+    let legend = doc
+        .descendants()
+        .find(|n| n.attribute("class") == Some("legend"))
+        .expect("legend");
+    let entries = legend
+        .children()
+        .filter(|n| n.tag_name().name() == "text")
+        .count();
+    assert_eq!(entries, 3);
+    // below the plot area: every legend text lower than the frame's bottom
+    for t in legend.children().filter(|n| n.tag_name().name() == "text") {
+        let y: f64 = t.attribute("y").and_then(|v| v.parse().ok()).expect("y");
+        assert!(y > 344.0, "legend inside the data at y = {y}");
+    }
     let _ = std::fs::remove_file(&svg);
     let out = tandem(&[
         "sweep",
@@ -321,8 +348,9 @@ fn the_plot_keeps_stretches_off_the_scale() {
     assert_eq!(table.steps[0].checks[0], None);
     let a = tandem::analyse(&src).unwrap_or_else(|_| panic!("analyse"));
     let d = tandem::report::Display::for_model(&a.model, 4);
-    let svg = tandem::review::sweep::plot(&table, &d).expect("plot");
+    let svg = tandem::review::sweep::plot(&table, None, &d);
     assert!(svg.contains("off the scale"), "{svg}");
+    roxmltree::Document::parse(&svg).expect("well-formed SVG");
 }
 
 /// `--show` takes every result a check can name (one table of result

@@ -73,6 +73,11 @@ pub(super) fn capacity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) 
             })
             .collect();
         doc.table(&["Order", "Part", "Event", "Load factor λ"], &rows, &[0, 3]);
+        if doc.figures != Figures::Omitted {
+            if let Some(plot) = crate::report::drawing::capacity_plot(model, c, f.d) {
+                doc.figure(plot);
+            }
+        }
         // the applied load at a load factor: λ times the combination's loads
         let total = combination_load(model, c.combination);
         let applied = |what: &str, l: f64| {
