@@ -3,7 +3,8 @@
 //! `pdftotext`. Every sheet carries the running header (calc number, title,
 //! revision) and "Sheet X of Y"; no word lies outside the page's margins
 //! (no table wider than the page); no section heading is stranded at the
-//! foot of a sheet; the browser's own header (a URL) is not printed.
+//! foot of a sheet; the browser's own header (a URL) is not printed; a
+//! table that runs over several sheets repeats its header row on each.
 //!
 //! Skipped with a notice when no browser or poppler is installed
 //! (`.ci/run` installs Debian's `chromium` and `poppler-utils`). The
@@ -75,6 +76,22 @@ fn info(pdf: &Path) -> (f64, usize) {
     (width, pages)
 }
 
+/// An invented bundle of 70 rods between two plates: its parts table
+/// runs over more than one sheet.
+fn bundle() -> String {
+    let mut s = String::from(
+        "calc {\n  title = \"Rod bundle RB-1\"\n  number = \"RB-001\"\n  revision = \"C\"\n}\n\
+         material steel { E = 29000 ksi }\nnode base at 0 ft\nnode top at 16 ft\nfix base\n",
+    );
+    for k in 1..=70 {
+        s.push_str(&format!(
+            "part r{k} {{ material = steel; area = 0.5 in^2; ends = base, top }}\n"
+        ));
+    }
+    s.push_str("case pull { load top = 100 kip }\n");
+    s
+}
+
 #[test]
 fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
     let (Some(browser), Some(_), Some(_)) = (browser(), on_path("pdftotext"), on_path("pdfinfo"))
@@ -83,16 +100,35 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
         return;
     };
     let dir = tempfile::tempdir().expect("tempdir");
+    let bundle_file = dir.path().join("bundle.tandem");
+    std::fs::write(&bundle_file, bundle()).expect("write");
     let cases = [
-        ("filled_post", "DCS-114 · Column C-3", "Revision A"),
-        ("hung_platform", "NWW-207 · Platform SP-2", "Revision B"),
+        (
+            "examples/filled_post.tandem".to_string(),
+            "DCS-114 · Column C-3",
+            "Revision A",
+        ),
+        (
+            "examples/hung_platform.tandem".to_string(),
+            "NWW-207 · Platform SP-2",
+            "Revision B",
+        ),
+        (
+            bundle_file.display().to_string(),
+            "RB-001 · Rod bundle RB-1",
+            "Revision C",
+        ),
     ];
-    for (stem, header, revision) in cases {
+    for (input, header, revision) in cases {
+        let stem = Path::new(&input)
+            .file_stem()
+            .map(|s| s.to_string_lossy().to_string())
+            .expect("stem");
         let html = dir.path().join(format!("{stem}.html"));
         let pdf = dir.path().join(format!("{stem}.pdf"));
         let o = Command::new(env!("CARGO_BIN_EXE_tandem"))
             .current_dir(env!("CARGO_MANIFEST_DIR"))
-            .args(["report", "--html", &format!("examples/{stem}.tandem"), "-o"])
+            .args(["report", "--html", &input, "-o"])
             .arg(&html)
             .output()
             .expect("tandem");
@@ -103,7 +139,7 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
         let markdown = String::from_utf8_lossy(
             &Command::new(env!("CARGO_BIN_EXE_tandem"))
                 .current_dir(env!("CARGO_MANIFEST_DIR"))
-                .args(["report", &format!("examples/{stem}.tandem")])
+                .args(["report", &input])
                 .output()
                 .expect("tandem")
                 .stdout,
@@ -114,6 +150,7 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
             .filter_map(|l| l.strip_prefix("## "))
             .filter(|h| !h.contains('`'))
             .collect();
+        let mut parts_sheets = 0;
         for page in 1..=pages {
             let n = page.to_string();
             let text = run(Command::new("pdftotext")
@@ -130,6 +167,14 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
                 !text.contains("file://"),
                 "{stem}: the browser's header printed"
             );
+            // a sheet with rows of the parts table carries its header row
+            if text.contains("base → top") {
+                assert!(
+                    text.contains("k (kip/in)"),
+                    "{stem} sheet {page}: parts table rows without their header"
+                );
+                parts_sheets += 1;
+            }
             // no section heading is the last line of the sheet's body
             let body: Vec<&str> = text
                 .lines()
@@ -165,6 +210,12 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
                 );
             }
             assert!(words > 10, "{stem} sheet {page}: {words} words read back");
+        }
+        if stem == "bundle" {
+            assert!(
+                parts_sheets >= 2,
+                "the parts table fits one sheet: {parts_sheets}"
+            );
         }
     }
 }

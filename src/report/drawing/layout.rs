@@ -13,6 +13,10 @@ const PLANE_HEIGHT: f64 = 420.0;
 /// Axial schematic: between node levels, and between side-by-side parts.
 const LEVEL: f64 = 72.0;
 const LANE: f64 = 96.0;
+/// Many side-by-side parts share this width between them, down to a
+/// narrowest lane (their names are then left to the tables).
+const LANES_WIDTH: f64 = 576.0;
+const NARROWEST_LANE: f64 = 14.0;
 
 pub struct Layout {
     pub kind: Kind,
@@ -30,6 +34,8 @@ pub struct Layout {
     pub height: f64,
     /// Drawing units per metre (plane models; 0 for the axial schematic).
     pub scale: f64,
+    /// The width of a lane of the axial schematic (0 in plane models).
+    pub lane: f64,
 }
 
 impl Layout {
@@ -46,6 +52,12 @@ impl Layout {
             Kind::Plane => (v[0], -v[1]),
             Kind::Axial => (0.0, -v[0]),
         }
+    }
+
+    /// Whether part names and forces fit beside the parts: in an axial
+    /// schematic of many side-by-side parts they are left to the tables.
+    pub fn labels_fit(&self) -> bool {
+        self.kind == Kind::Plane || self.lane >= 60.0
     }
 
     /// A point moved by a node displacement drawn `k` drawing units per metre.
@@ -98,6 +110,7 @@ fn plane(model: &Model) -> Layout {
         width,
         height: dy * scale + 2.0 * MARGIN,
         scale,
+        lane: 0.0,
     }
 }
 
@@ -144,7 +157,8 @@ fn axial(model: &Model) -> Layout {
         lane[i] = k;
     }
     let lanes = lane_end.len().max(1);
-    let lane_x = |k: usize| MARGIN + LANE / 2.0 + LANE * k as f64;
+    let lane_w = (LANES_WIDTH / lanes as f64).clamp(NARROWEST_LANE, LANE);
+    let lane_x = |k: usize| MARGIN + lane_w / 2.0 + lane_w * k as f64;
     let level_y = |r: usize| MARGIN + LEVEL * (n.saturating_sub(1) - r) as f64;
     // each node's line spans the lanes of the parts that end there
     let mut reach: Vec<Option<(usize, usize)>> = vec![None; n];
@@ -159,7 +173,8 @@ fn axial(model: &Model) -> Layout {
         .map(|i| {
             let (a, b) = reach[i].unwrap_or((0, 0));
             let y = level_y(rank[i]);
-            (P::new(lane_x(a) - 22.0, y), P::new(lane_x(b) + 22.0, y))
+            let reach = (lane_w / 2.0).min(22.0);
+            (P::new(lane_x(a) - reach, y), P::new(lane_x(b) + reach, y))
         })
         .collect();
     let part = model
@@ -180,7 +195,8 @@ fn axial(model: &Model) -> Layout {
         node_line,
         part,
         rank,
-        width: 2.0 * MARGIN + LANE * lanes as f64 + 110.0,
+        width: 2.0 * MARGIN + lane_w * lanes as f64 + 110.0,
+        lane: lane_w,
         height: 2.0 * MARGIN + LEVEL * n.saturating_sub(1) as f64,
         scale: 0.0,
     }

@@ -28,6 +28,13 @@ pub fn drawable(model: &Model) -> bool {
     model.parts.len() + model.nodes.len() <= MAX_DRAWN
 }
 
+/// Whether the drawings name each part beside it (not in an axial
+/// schematic of many side-by-side parts).
+#[must_use]
+pub fn names_fit(model: &Model) -> bool {
+    Layout::of(model).labels_fit()
+}
+
 /// A drawing to write beside a Markdown report or inline in HTML.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Drawing {
@@ -379,7 +386,9 @@ pub fn sketch(model: &Model, d: &Display) -> Drawing {
         }
         part_marks(&mut body, p, a, b);
         let (_, n) = part_axes(a, b);
-        part_label(&mut body, a.mid(b), n, &[p.name.to_string()]);
+        if l.labels_fit() {
+            part_label(&mut body, a.mid(b), n, &[p.name.to_string()]);
+        }
         body.close();
     }
     nodes(&mut body, model, &l);
@@ -534,7 +543,12 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
             )
         };
         let (_, nrm) = part_axes(a, b);
-        part_label(&mut body, a.mid(b), nrm, &[p.name.to_string(), value]);
+        if l.labels_fit() {
+            part_label(&mut body, a.mid(b), nrm, &[p.name.to_string(), value]);
+        } else {
+            // the force stays with the part, for a reader of the SVG
+            body.raw(&format!("<desc>{}</desc>\n", escape(&value)));
+        }
         body.close();
     }
     nodes(&mut body, model, &l);

@@ -367,6 +367,9 @@ fn sketch_section(doc: &mut Doc, model: &Model, display: &Display, figures: &Fig
                 Kind::Plane => "Drawn at true geometry and scale; the key explains the symbols.",
                 Kind::Axial => "Drawn as a schematic column: nodes in position order from the bottom up (not to scale), parts that span the same nodes side by side; the key explains the symbols.",
             });
+            if !crate::report::drawing::names_fit(model) {
+                doc.p("The parts side by side are too many to name in the drawings; the tables name them, in the order drawn from left to right where they span the same nodes.");
+            }
             doc.figure(sketch(model, display));
         }
     }
