@@ -314,7 +314,13 @@ fn check_tables(out: &mut String, a: &crate::Analysis, d: &Display) {
         }
         out.push_str(&aligned(&rows, &[0, 1, 5], "  "));
         let fails = checks.failures();
-        out.push_str(&if fails == 0 {
+        out.push_str(&if fails == 0 && !a.left_out.is_empty() {
+            // never a bare "pass" for a calc that is not complete
+            format!(
+                "  all checks pass in the combinations solved; INCOMPLETE: {}\n",
+                super::left_out(&a.left_out)
+            )
+        } else if fails == 0 {
             "  all checks pass\n".to_string()
         } else {
             format!(

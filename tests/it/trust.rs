@@ -553,3 +553,33 @@ case heat { temperature rod = 10 degC; strain rod = 0.0001 }
     let md = tandem::report::markdown::report(&src, &a, &display);
     assert!(md.contains("δ₀ = misfit + α·ΔT·L + ε·L = "), "{md}");
 }
+
+/// A calc with a combination that cannot be solved never ends its `solve`
+/// tables with a bare "all checks pass": the line says the pass holds in
+/// the combinations solved only, and that the calc is incomplete.
+#[test]
+fn solve_never_says_all_pass_for_an_incomplete_calc() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let file = dir.path().join("hanger.tandem");
+    std::fs::write(
+        &file,
+        "material s { E = 200 GPa }\nnode top at 2 m\nnode low at 0 m\nfix top\n\
+         part rod { material = s; area = 100 mm^2; ends = low, top; carries = tension }\n\
+         case hang { load low = -5 kN }\ncase lift { load low = 5 kN }\n\
+         combine down = hang\ncombine up = lift\n\
+         check \"rod stress\" : rod.stress <= 250 MPa\n",
+    )
+    .expect("write");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .args(["solve"])
+        .arg(&file)
+        .output()
+        .expect("tandem");
+    assert_eq!(out.status.code(), Some(2));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(!text.contains("  all checks pass\n"), "{text}");
+    assert!(
+        text.contains("all checks pass in the combinations solved; INCOMPLETE: combination `up`"),
+        "{text}"
+    );
+}

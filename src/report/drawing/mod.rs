@@ -450,11 +450,22 @@ fn geometry_bar(l: &Layout, d: &Display) -> Entry {
 }
 
 /// The whole SVG: header, the drawing's body, the key.
+/// The drawing is widened (and its body shifted) where labels reach past
+/// its edges.
 fn assemble(l: &Layout, body: Svg, entries: &[Entry], caption: &str) -> String {
     let height = l.height + key_height(entries);
-    let mut s = Svg::new(l.width, height, caption);
+    let (lo, hi) = body.text_extent();
+    let shift = if lo < 8.0 { 8.0 - lo } else { 0.0 };
+    let width = l.width.max(hi + shift + 8.0) + shift;
+    let mut s = Svg::new(width, height, caption);
+    if shift > 0.0 {
+        s.raw(&format!("<g transform=\"translate({shift:.1} 0)\">\n"));
+    }
     s.raw(&body.into_body());
-    key(&mut s, entries, l.height, l.width);
+    if shift > 0.0 {
+        s.raw("</g>\n");
+    }
+    key(&mut s, entries, l.height, width);
     s.finish()
 }
 

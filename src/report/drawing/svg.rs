@@ -72,7 +72,13 @@ pub enum Stroke {
 
 pub struct Svg {
     out: String,
+    /// The horizontal extent of the text written, estimated from its
+    /// length, so that the drawing can be widened to keep every label.
+    text_x: (f64, f64),
 }
+
+/// The width of a character at the drawings' font size, on average.
+const CHAR_WIDTH: f64 = 6.6;
 
 impl Svg {
     pub fn new(width: f64, height: f64, title: &str) -> Self {
@@ -84,12 +90,23 @@ impl Svg {
             h = c(height),
             t = escape(title)
         );
-        Self { out }
+        Self {
+            out,
+            text_x: (f64::INFINITY, f64::NEG_INFINITY),
+        }
+    }
+
+    /// The leftmost and rightmost x reached by text, as estimated.
+    pub fn text_extent(&self) -> (f64, f64) {
+        self.text_x
     }
 
     /// A part of a drawing, to be placed in one with [`Svg::raw`].
     pub fn fragment() -> Self {
-        Self { out: String::new() }
+        Self {
+            out: String::new(),
+            text_x: (f64::INFINITY, f64::NEG_INFINITY),
+        }
     }
 
     pub fn into_body(self) -> String {
@@ -189,6 +206,13 @@ impl Svg {
     /// Text; `anchor` is `start`, `middle` or `end`.
     pub fn text(&mut self, at: P, anchor: &str, s: &str, bold: bool) {
         let weight = if bold { " font-weight=\"bold\"" } else { "" };
+        let w = s.chars().count() as f64 * CHAR_WIDTH;
+        let (lo, hi) = match anchor {
+            "end" => (at.x - w, at.x),
+            "middle" => (at.x - w / 2.0, at.x + w / 2.0),
+            _ => (at.x, at.x + w),
+        };
+        self.text_x = (self.text_x.0.min(lo), self.text_x.1.max(hi));
         let _ = writeln!(
             self.out,
             "<text x=\"{}\" y=\"{}\" text-anchor=\"{anchor}\"{weight}>{}</text>",
