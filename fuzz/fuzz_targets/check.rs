@@ -26,6 +26,16 @@ fuzz_target!(|data: &[u8]| {
                 let d = tandem::report::Display::for_model(&a.model, 4);
                 let md = tandem::report::markdown::report(&src, &a, &d);
                 assert!(!md.contains("NaN") && !md.contains('∞') && !md.contains("inf "));
+                // the drawings and the HTML page never panic and stay finite
+                let options = tandem::report::markdown::Options {
+                    figures: tandem::report::markdown::Figures::Beside("f".into()),
+                    history: None,
+                };
+                let w = tandem::report::markdown::report_with(&src, &a, &d, &options);
+                for g in &w.drawings {
+                    assert!(!g.svg.contains("=\"NaN") && !g.svg.contains("=\"inf") && !g.svg.contains("=\"-inf"));
+                }
+                let _ = tandem::report::html(&w.markdown, &a.model.title, "f", &w.drawings);
             }
         }
         Err(errors) => {

@@ -66,6 +66,7 @@ fn leaf_modules_use_no_stage() {
         "warning.rs",
         "source.rs",
         "parallel.rs",
+        "history.rs",
         "units",
     ] {
         uses_none(leaf, &STAGES);

@@ -484,7 +484,8 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
         .iter()
         .map(|n| n.displacement[0].value.hypot(n.displacement[1].value))
         .fold(0.0f64, f64::max);
-    if umax > 0.0 {
+    // displacements below a femtometre are round-off: no displaced shape
+    if umax > 1e-15 {
         let (k, entry) = displacement_scale(&l, d, umax);
         body.open("displaced", "displaced shape");
         let u = |n: usize| {

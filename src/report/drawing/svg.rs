@@ -23,8 +23,13 @@ impl P {
     }
 }
 
-/// A coordinate as written: one decimal, never `-0.0`.
+/// A coordinate as written: one decimal, never `-0.0`; a value that is not
+/// finite (a degenerate scale) is drawn at 0 rather than writing an
+/// invalid drawing.
 fn c(v: f64) -> String {
+    if !v.is_finite() {
+        return "0.0".into();
+    }
     let s = format!("{v:.1}");
     if s == "-0.0" {
         "0.0".into()
