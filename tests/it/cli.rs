@@ -1,14 +1,6 @@
 //! The command line: exit codes and output of every shipped example.
 
-use std::process::Command;
-
-fn tandem(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_tandem"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .expect("run tandem")
-}
+use super::common::tandem;
 
 fn examples() -> Vec<String> {
     let dir = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("examples");

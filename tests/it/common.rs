@@ -136,3 +136,12 @@ pub fn calc_files() -> Vec<std::path::PathBuf> {
     files.sort();
     files
 }
+
+/// Run the tandem binary in the repository's root folder.
+pub fn tandem(args: &[&str]) -> std::process::Output {
+    std::process::Command::new(env!("CARGO_BIN_EXE_tandem"))
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .args(args)
+        .output()
+        .expect("run tandem")
+}

@@ -5,15 +5,8 @@
 //! (RFC 4180).
 
 use std::path::Path;
-use std::process::Command;
 
-fn tandem(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_tandem"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .expect("run tandem")
-}
+use super::common::tandem;
 
 fn read(path: &Path) -> (Vec<String>, Vec<Vec<String>>) {
     let mut r = csv::Reader::from_path(path).expect("csv");

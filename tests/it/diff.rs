@@ -11,13 +11,7 @@ fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
 }
 
-fn tandem(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_tandem"))
-        .current_dir(root())
-        .args(args)
-        .output()
-        .expect("run tandem")
-}
+use super::common::tandem;
 
 const PAIRS: &[(&str, i32)] = &[("wall", 0), ("part", 0), ("rename", 0), ("flip", 1)];
 

@@ -159,13 +159,7 @@ fn golden_drawings() {
     );
 }
 
-fn tandem(args: &[&str]) -> std::process::Output {
-    std::process::Command::new(env!("CARGO_BIN_EXE_tandem"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .expect("run tandem")
-}
+use super::common::tandem;
 
 #[test]
 fn markdown_written_to_a_file_links_its_drawings_beside_it() {

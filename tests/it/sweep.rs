@@ -1,7 +1,5 @@
 //! Sweeps and goal seek against a closed form.
 
-use std::process::Command;
-
 use tandem::review::sweep::{Seek, Sweeper};
 use tandem::source::Source;
 
@@ -68,13 +66,7 @@ fn seek_says_when_there_is_no_root() {
     ));
 }
 
-fn tandem(args: &[&str]) -> std::process::Output {
-    Command::new(env!("CARGO_BIN_EXE_tandem"))
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .args(args)
-        .output()
-        .expect("run")
-}
+use super::common::tandem;
 
 #[test]
 fn command_line_sweep_and_plot() {
