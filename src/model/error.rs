@@ -198,6 +198,54 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("{what} needs a plane model: an axial model has no bending and no rotation")]
+    #[diagnostic(
+        code(tandem::model::plane_only),
+        help("give the nodes positions as pairs, `node a at (0 m, 0 m)`; in an axial model hold a node with `fix NODE` and join nodes with `part`")
+    )]
+    BendingInAxial {
+        /// "`beam deck`", "a `moment`", "`pin`".
+        what: String,
+        #[label("here")]
+        span: Span,
+    },
+
+    #[error("beam `{beam}` needs a second moment of area and its depth")]
+    #[diagnostic(
+        code(tandem::model::beam_bending),
+        help("give `section = rect(b = 100 mm, h = 300 mm)` (or another section helper), or `area`, `inertia` and `depth`")
+    )]
+    BeamBending {
+        beam: String,
+        #[label("this beam")]
+        span: Span,
+    },
+
+    #[error("a hinge of beam `{beam}` must be at one of its ends; `{node}` is not")]
+    #[diagnostic(
+        code(tandem::model::hinge),
+        help("write `hinge = {a}`, `hinge = {b}`, or both")
+    )]
+    HingeNotEnd {
+        beam: String,
+        node: String,
+        a: String,
+        b: String,
+        #[label("not an end of `{beam}`")]
+        span: Span,
+    },
+
+    #[error("a distributed load needs a beam; `{part}` is a pin-ended part")]
+    #[diagnostic(
+        code(tandem::model::distributed_on_part),
+        help("load its end nodes, or declare `{part}` as a `beam`")
+    )]
+    DistributedOnPart {
+        part: String,
+        #[label("a part carries no load along its length")]
+        span: Span,
+    },
+
     #[error("an axial model takes a load as one force")]
     #[diagnostic(code(tandem::model::plane_only), help("write `load {node} = -95 kip`"))]
     AxialLoad {

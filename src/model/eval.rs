@@ -13,8 +13,13 @@ use crate::units::{lookup, Dimension, Quantity, UnitError};
 pub struct Section {
     pub shape: &'static str,
     pub area: f64,
+    /// Second moment about the strong axis, and about the weak one.
     pub ix: f64,
     pub iy: f64,
+    /// Extreme-fibre distance from the strong axis (half the depth), and
+    /// from the weak one (half the width).
+    pub cx: f64,
+    pub cy: f64,
 }
 
 impl Section {

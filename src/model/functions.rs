@@ -520,6 +520,8 @@ pub fn circle(d: f64) -> Section {
         area: PI * d * d / 4.0,
         ix: i,
         iy: i,
+        cx: d / 2.0,
+        cy: d / 2.0,
     }
 }
 
@@ -533,6 +535,8 @@ pub fn ring(d: f64, t: f64) -> Section {
         area: PI * (d * d - di * di) / 4.0,
         ix: i,
         iy: i,
+        cx: d / 2.0,
+        cy: d / 2.0,
     }
 }
 
@@ -544,6 +548,8 @@ pub fn rect(b: f64, h: f64) -> Section {
         area: b * h,
         ix: b * h.powi(3) / 12.0,
         iy: h * b.powi(3) / 12.0,
+        cx: h / 2.0,
+        cy: b / 2.0,
     }
 }
 
@@ -556,6 +562,8 @@ pub fn hollow_rect(b: f64, h: f64, t: f64) -> Section {
         area: b * h - bi * hi,
         ix: (b * h.powi(3) - bi * hi.powi(3)) / 12.0,
         iy: (h * b.powi(3) - hi * bi.powi(3)) / 12.0,
+        cx: h / 2.0,
+        cy: b / 2.0,
     }
 }
 
@@ -568,6 +576,8 @@ pub fn ishape(d: f64, bf: f64, tf: f64, tw: f64) -> Section {
         area: 2.0 * bf * tf + hw * tw,
         ix: (bf * d.powi(3) - (bf - tw) * hw.powi(3)) / 12.0,
         iy: 2.0 * tf * bf.powi(3) / 12.0 + hw * tw.powi(3) / 12.0,
+        cx: d / 2.0,
+        cy: bf / 2.0,
     }
 }
 

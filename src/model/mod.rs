@@ -131,6 +131,9 @@ pub struct Node {
     pub y: Length,
     /// Fixed directions: `[x, y]` (axial models use `x` only).
     pub fixed: [bool; 2],
+    /// Held against rotation (`fix NODE` or `fix NODE rotation`): matters
+    /// where a beam end is rigidly joined to the node.
+    pub fixed_rotation: bool,
     pub span: Span,
 }
 
@@ -168,6 +171,17 @@ pub enum Law {
     Spring { stiffness: Stiffness },
 }
 
+/// How a beam bends (plane models).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Bend {
+    /// Second moment of area about the axis it bends about (m⁴).
+    pub inertia: f64,
+    /// Extreme-fibre distance from that axis (m), for the fibre stress.
+    pub fibre: f64,
+    /// Ends that carry no moment (`hinge`), `[a, b]`.
+    pub hinge: [bool; 2],
+}
+
 /// An axial part between two nodes.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Part {
@@ -186,6 +200,8 @@ pub struct Part {
     pub slenderness_limit: f64,
     /// Fraction of the Euler load above which a compression warning is given.
     pub euler_fraction: f64,
+    /// A beam's bending (`None`: a pin-ended part).
+    pub bend: Option<Bend>,
     pub span: Span,
 }
 
@@ -266,6 +282,31 @@ pub struct Settlement {
     pub span: Span,
 }
 
+/// A moment applied at a node (N·m, counter-clockwise positive).
+#[derive(Clone, Debug, PartialEq)]
+pub struct NodeMoment {
+    pub node: usize,
+    pub moment: f64,
+    pub span: Span,
+}
+
+/// A uniform load along a beam: force per unit length of the beam itself,
+/// global `[x, y]` components (N/m).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Distributed {
+    pub part: usize,
+    pub w: [f64; 2],
+    pub span: Span,
+}
+
+/// A prescribed rotation of a node held against rotation (rad).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Twist {
+    pub node: usize,
+    pub angle: f64,
+    pub span: Span,
+}
+
 /// A temperature change acting on one part or (with `part: None`) all.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Temperature {
@@ -291,6 +332,9 @@ pub struct Case {
     pub temperatures: Vec<Temperature>,
     pub strains: Vec<FreeStrain>,
     pub settlements: Vec<Settlement>,
+    pub moments: Vec<NodeMoment>,
+    pub distributed: Vec<Distributed>,
+    pub twists: Vec<Twist>,
     pub span: Span,
 }
 
@@ -456,6 +500,17 @@ impl Model {
         self.parts
             .iter()
             .any(|p| p.carries != Carries::Both || p.slack.value > 0.0)
+    }
+
+    /// True when some member bends (a `beam`) or some case applies a
+    /// moment, a distributed load or a rotation.
+    #[must_use]
+    pub fn has_bending(&self) -> bool {
+        self.parts.iter().any(|p| p.bend.is_some())
+            || self
+                .cases
+                .iter()
+                .any(|c| !c.moments.is_empty() || !c.distributed.is_empty() || !c.twists.is_empty())
     }
 
     /// A node by name, by a scan: for a single lookup, not in a loop.

@@ -157,6 +157,7 @@ impl Ctx<'_> {
         let axis = |a: &Option<(Axis, Span)>| match a {
             Some((Axis::X, _)) => " x",
             Some((Axis::Y, _)) => " y",
+            Some((Axis::Rotation, _)) => " rotation",
             None => "",
         };
         let (left, right, end) = match s {
@@ -171,6 +172,11 @@ impl Ctx<'_> {
                 },
                 format!("= {}", self.slice(change.span)),
                 change.span.end(),
+            ),
+            Stmt::Moment { node, value, .. } => (
+                format!("moment {}", node.name),
+                format!("= {}", self.slice(value.span)),
+                value.span.end(),
             ),
             Stmt::Strain { part, value, .. } => (
                 format!("strain {}", part.name),
@@ -270,6 +276,12 @@ impl Ctx<'_> {
                 nb.span.start(),
                 &nb.block,
             ),
+            Decl::Beam(nb) => self.block(
+                "beam {}",
+                &format!("beam {}", nb.name.name),
+                nb.span.start(),
+                &nb.block,
+            ),
             Decl::Rigid(nb) => self.block(
                 "rigid {}",
                 &format!("rigid {}", nb.name.name),
@@ -303,6 +315,7 @@ impl Ctx<'_> {
                     .map(|s| match s.axis {
                         Some((Axis::X, _)) => format!("{} x", s.node.name),
                         Some((Axis::Y, _)) => format!("{} y", s.node.name),
+                        Some((Axis::Rotation, _)) => format!("{} rotation", s.node.name),
                         None => s.node.name.to_string(),
                     })
                     .collect();
@@ -315,6 +328,19 @@ impl Ctx<'_> {
                 Item::one(
                     "fix",
                     self.single(format!("fix {}", text.join(", ")), String::new(), kw, end),
+                )
+            }
+            Decl::Pin(nodes, sp) => {
+                let names: Vec<&str> = nodes.iter().map(|n| n.name.as_str()).collect();
+                let end = nodes.last().map_or(sp.start(), |n| n.span.end());
+                Item::one(
+                    "pin",
+                    self.single(
+                        format!("pin {}", names.join(", ")),
+                        String::new(),
+                        sp.start(),
+                        end,
+                    ),
                 )
             }
             Decl::Tie(t) => {

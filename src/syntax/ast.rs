@@ -25,9 +25,13 @@ pub enum Decl {
     Let(Box<Let>),
     Material(Box<NamedBlock>),
     Part(Box<NamedBlock>),
+    /// `beam NAME { ... }`: a member that bends.
+    Beam(Box<NamedBlock>),
     Rigid(Box<NamedBlock>),
     Node(Box<Node>),
     Fix(Vec<Support>),
+    /// `pin a, b`: held in x and y, free to rotate.
+    Pin(Vec<Ident>, Span),
     Tie(Tie),
     Case(Box<Case>),
     Combine(Box<Combine>),
@@ -114,6 +118,8 @@ pub struct Node {
 pub enum Axis {
     X,
     Y,
+    /// The rotation of a node a beam is rigidly joined to.
+    Rotation,
 }
 
 /// One `NAME [x|y]` of a `fix` line.
@@ -148,6 +154,12 @@ pub enum Stmt {
         force: Coord,
         span: Span,
     },
+    /// `moment NODE = M` (counter-clockwise positive)
+    Moment {
+        node: Ident,
+        value: Expr,
+        span: Span,
+    },
     /// `temperature [PART] = DT`
     Temperature {
         part: Option<Ident>,
@@ -174,6 +186,7 @@ impl Stmt {
     pub fn span(&self) -> Span {
         match self {
             Stmt::Load { span, .. }
+            | Stmt::Moment { span, .. }
             | Stmt::Temperature { span, .. }
             | Stmt::Strain { span, .. }
             | Stmt::Settle { span, .. } => *span,

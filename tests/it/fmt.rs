@@ -182,3 +182,55 @@ fn comments_in_a_long_file_each_keep_their_line() {
     }
     assert_eq!(fmt(&once), once);
 }
+
+/// Beams, pins, rotation supports, moments and loads along a beam keep
+/// their meaning and take the canonical layout, once and for all.
+#[test]
+fn beam_statements_take_the_canonical_layout() {
+    let text = "material oak { E = 11 GPa }\nnode a at (0 m, 0 m)\nnode b at (4 m, 0 m)\n\
+                pin   a\nfix b rotation ,  b x\nbeam lintel { material = oak\n section = rect(b = 100 mm, h = 250 mm)\n ends = a, b\n hinge = a }\n\
+                case dead {\n  load lintel = (0 kN/m, -3 kN/m)\n  moment   b = 2 kN*m\n  settle b rotation = 0.002\n}\n";
+    let once = fmt(text);
+    assert_eq!(fmt(&once), once);
+    for line in [
+        "pin a\n",
+        "fix b rotation, b x\n",
+        "beam lintel {\n  material = oak\n",
+        "  hinge    = a\n",
+        "  settle b rotation = 0.002\n",
+    ] {
+        assert!(once.contains(line), "{line:?} in\n{once}");
+    }
+    // one run of case statements, `=` aligned
+    assert!(
+        once.lines()
+            .any(|l| l.starts_with("  moment b ") && l.ends_with(" = 2 kN*m")),
+        "{once}"
+    );
+    // the model it describes is unchanged, supports and loads included
+    let (m0, m1) = (
+        tandem::check(&tandem::source::Source::new("a", text.to_string())).expect("checks"),
+        tandem::check(&tandem::source::Source::new("b", once.clone())).expect("checks"),
+    );
+    assert_eq!(m0.nodes[1].fixed_rotation, m1.nodes[1].fixed_rotation);
+    assert!(m1.nodes[1].fixed_rotation && m1.nodes[0].fixed == [true, true]);
+    assert!(!m1.nodes[0].fixed_rotation);
+    let moment = |m: &tandem::model::Model| {
+        m.cases[0]
+            .moments
+            .iter()
+            .map(|x| (x.node, x.moment))
+            .collect::<Vec<_>>()
+    };
+    assert_eq!(moment(&m0), moment(&m1));
+    assert_eq!(moment(&m1), vec![(1, 2000.0)]);
+    let w = m1.cases[0].distributed[0].w;
+    assert!(w[0].abs() < 1e-12 && (w[1] + 3000.0).abs() < 1e-9, "{w:?}");
+    assert!((m1.cases[0].twists[0].angle - 0.002).abs() < 1e-15);
+    let bend = m1.parts[0].bend.as_ref().expect("a beam");
+    // rect(b = 100 mm, h = 250 mm) about its strong axis: I = b·h³/12,
+    // c = h/2 (mechanics of materials, rectangle)
+    assert!((bend.inertia - 0.1 * 0.25f64.powi(3) / 12.0).abs() < 1e-15);
+    assert!((bend.fibre - 0.125).abs() < 1e-15);
+    assert_eq!(bend.hinge, [true, false]);
+}

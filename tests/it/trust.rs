@@ -583,3 +583,48 @@ fn solve_never_says_all_pass_for_an_incomplete_calc() {
         "{text}"
     );
 }
+
+/// Beams, moments and loads along a member are read and checked, but the
+/// solver does not yet carry bending: `check` passes, and every command
+/// that would solve says so and exits 2, never solving the assembly
+/// without them.
+#[test]
+fn bending_is_refused_by_the_solver_not_dropped() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let file = dir.path().join("lintel.tandem");
+    std::fs::write(
+        &file,
+        "material oak { E = 11 GPa }\nnode a at (0 m, 0 m)\nnode b at (4 m, 0 m)\npin a\nfix b\n\
+         beam lintel {\n  material = oak\n  section  = rect(b = 100 mm, h = 250 mm)\n  ends     = a, b\n}\n\
+         load lintel = (0 kN/m, -3 kN/m)\n",
+    )
+    .expect("write");
+    let path = file.to_str().expect("utf-8");
+    let run = |args: &[&str]| super::common::tandem(args);
+    assert_eq!(run(&["check", path]).status.code(), Some(0));
+    for cmd in [
+        vec!["solve", path],
+        vec!["report", path],
+        vec!["solve", "--json", path],
+    ] {
+        let out = run(&cmd);
+        assert_eq!(out.status.code(), Some(2), "{cmd:?}");
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(
+            err.contains("beam `lintel` is checked but not yet solved"),
+            "{err}"
+        );
+        assert!(out.stdout.is_empty(), "{cmd:?} printed results");
+    }
+    // a moment alone (no beam) is refused the same way
+    let only_moment = dir.path().join("moment.tandem");
+    std::fs::write(
+        &only_moment,
+        "material s { E = 200 GPa }\nnode a at (0 m, 0 m)\nnode b at (2 m, 0 m)\nfix a\n\
+         part p { material = s; area = 100 mm^2; ends = a, b }\nfix b y\nmoment b = 1 kN*m\n",
+    )
+    .expect("write");
+    let out = run(&["solve", only_moment.to_str().expect("utf-8")]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("a moment is checked but not yet solved"));
+}

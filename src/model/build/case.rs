@@ -159,6 +159,9 @@ impl Builder {
             temperatures: Vec::new(),
             strains: Vec::new(),
             settlements: Vec::new(),
+            moments: Vec::new(),
+            distributed: Vec::new(),
+            twists: Vec::new(),
             span,
         };
         let c = InCase {
@@ -171,6 +174,9 @@ impl Builder {
         for s in stmts {
             match s {
                 Stmt::Load { node, force, span } => self.load(&c, node, force, *span, &mut case),
+                Stmt::Moment { node, value, span } => {
+                    self.moment(&c, node, value, *span, &mut case);
+                }
                 Stmt::Temperature { part, change, span } => {
                     self.temperature(&c, part.as_ref(), change, *span, &mut seen, &mut case);
                 }
@@ -197,6 +203,11 @@ impl Builder {
         span: Span,
         out: &mut Case,
     ) {
+        // a load on a beam is spread along it; on a part it is an error
+        if let Some((NameKind::Part, ..)) = c.names.get(&node.name) {
+            self.distributed(c, node, force, span, out);
+            return;
+        }
         let Some(i) = self.ok(c.names.resolve(node, NameKind::Node)) else {
             return;
         };
@@ -230,6 +241,76 @@ impl Builder {
             out.loads.push(Load {
                 node: i,
                 force,
+                span,
+            });
+        }
+    }
+
+    /// `load BEAM = (WX, WY)`: force per unit length of the beam.
+    fn distributed(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        target: &Ident,
+        force: &Coord,
+        span: Span,
+        out: &mut Case,
+    ) {
+        let Some(i) = c.part_of(target, self) else {
+            return;
+        };
+        if c.built.parts[i].bend.is_none() {
+            self.errors.push(ModelError::DistributedOnPart {
+                part: target.name.to_string(),
+                span: target.span,
+            });
+            return;
+        }
+        let Coord::Plane(xy, _) = force else {
+            self.errors.push(ModelError::PlaneLoad {
+                node: target.name.to_string(),
+                span: force.span(),
+            });
+            return;
+        };
+        let what = format!("the distributed load on `{}`", target.name);
+        let per_length = Dimension::FORCE.div(Dimension::LENGTH);
+        let [ex, ey] = &**xy;
+        let x = c.typed(ex, per_length, &what, self);
+        let y = c.typed(ey, per_length, &what, self);
+        if let (Some(x), Some(y)) = (x, y) {
+            out.distributed.push(Distributed {
+                part: i,
+                w: [x.value, y.value],
+                span,
+            });
+        }
+    }
+
+    /// `moment NODE = M`, counter-clockwise positive.
+    fn moment(
+        &mut self,
+        c: &InCase<'_, '_, '_>,
+        node: &Ident,
+        value: &Expr,
+        span: Span,
+        out: &mut Case,
+    ) {
+        if c.built.kind == Kind::Axial {
+            self.errors.push(ModelError::BendingInAxial {
+                what: "a `moment`".into(),
+                span,
+            });
+            return;
+        }
+        let Some(i) = self.ok(c.names.resolve(node, NameKind::Node)) else {
+            return;
+        };
+        let what = format!("the moment at `{}`", node.name);
+        let torque = Dimension::FORCE.mul(Dimension::LENGTH);
+        if let Some(q) = c.typed(value, torque, &what, self) {
+            out.moments.push(NodeMoment {
+                node: i,
+                moment: q.value,
                 span,
             });
         }
@@ -353,6 +434,35 @@ impl Builder {
         let direction = match (c.built.kind, axis) {
             (Kind::Axial, None) | (Kind::Plane, Some((Axis::X, _))) => 0,
             (Kind::Plane, Some((Axis::Y, _))) => 1,
+            (Kind::Plane, Some((Axis::Rotation, _))) => {
+                if !c.built.nodes[i].fixed_rotation {
+                    self.errors.push(ModelError::SettleFree {
+                        node: node.name.to_string(),
+                        axis: " rotation",
+                        span,
+                    });
+                    return;
+                }
+                if let Some(first) = seen.settlement.get(&(i, 2)) {
+                    self.errors.push(ModelError::DuplicateInCase {
+                        what: format!("a rotation of `{}`", node.name),
+                        case: c.name.to_string(),
+                        span,
+                        first: *first,
+                    });
+                    return;
+                }
+                seen.settlement.insert((i, 2), span);
+                let what = format!("the rotation of `{}`", node.name);
+                if let Some(q) = c.typed(movement, Dimension::NONE, &what, self) {
+                    out.twists.push(Twist {
+                        node: i,
+                        angle: q.value,
+                        span,
+                    });
+                }
+                return;
+            }
             (Kind::Axial, Some((_, sp))) => {
                 self.errors.push(ModelError::AxialDirection {
                     statement: "settle",

@@ -105,12 +105,14 @@ pub(super) fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
     let stmt = |s: &'e Stmt, out: &mut Vec<&'e Expr>| match s {
         Stmt::Load { force, .. } => coord(force, out),
         Stmt::Temperature { change, .. } => out.push(change),
-        Stmt::Strain { value, .. } => out.push(value),
+        Stmt::Moment { value, .. } | Stmt::Strain { value, .. } => out.push(value),
         Stmt::Settle { movement, .. } => out.push(movement),
     };
     match d {
         Decl::Calc(b) => block(b, out),
-        Decl::Material(nb) | Decl::Part(nb) | Decl::Rigid(nb) => block(&nb.block, out),
+        Decl::Material(nb) | Decl::Part(nb) | Decl::Beam(nb) | Decl::Rigid(nb) => {
+            block(&nb.block, out);
+        }
         Decl::Let(l) => out.push(&l.value),
         Decl::Node(n) => coord(&n.at, out),
         Decl::Case(c) => {
@@ -124,7 +126,12 @@ pub(super) fn decl_exprs<'e>(d: &'e Decl, out: &mut Vec<&'e Expr>) {
             out.push(&c.rhs);
         }
         // no expressions of their own
-        Decl::Fix(_) | Decl::Tie(_) | Decl::Combine(_) | Decl::Units(_) | Decl::Group(_) => {}
+        Decl::Fix(_)
+        | Decl::Pin(..)
+        | Decl::Tie(_)
+        | Decl::Combine(_)
+        | Decl::Units(_)
+        | Decl::Group(_) => {}
     }
 }
 

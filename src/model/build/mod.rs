@@ -19,9 +19,9 @@ use uom::si::temperature_interval::kelvin;
 
 use super::eval::{constant, eval, eval_val, Scope, Val, CONSTANTS};
 use super::{
-    did_you_mean, range, Applies, Carries, Case, Check, Combination, FreeStrain, Kind, Law,
-    LetValue, Load, Material, Model, ModelError, Node, Part, Rigid, Settlement, State, Stiffness,
-    Temperature, Tie, Title, UnitChoice,
+    did_you_mean, range, Applies, Bend, Carries, Case, Check, Combination, Distributed, FreeStrain,
+    Kind, Law, LetValue, Load, Material, Model, ModelError, Node, NodeMoment, Part, Rigid,
+    Settlement, State, Stiffness, Temperature, Tie, Title, Twist, UnitChoice,
 };
 use crate::source::Span;
 use crate::syntax::ast::{self, Axis, Coord, Decl, Entry, Expr, ExprKind, Ident, Stmt, Value};
@@ -204,11 +204,13 @@ impl Builder {
             return Err(self.errors);
         };
         self.supports(file, &names, kind, &mut nodes);
-        let part_decls: Vec<&ast::NamedBlock> = file
+        // parts and beams in file order; `true` marks a beam
+        let part_decls: Vec<(&ast::NamedBlock, bool)> = file
             .decls
             .iter()
             .filter_map(|d| match d {
-                Decl::Part(nb) => Some(&**nb),
+                Decl::Part(nb) => Some((&**nb, false)),
+                Decl::Beam(nb) => Some((&**nb, true)),
                 _ => None,
             })
             .collect();

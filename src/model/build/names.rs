@@ -228,7 +228,8 @@ pub(super) fn declared_name(d: &Decl) -> Option<(&Ident, NameKind)> {
     Some(match d {
         Decl::Let(l) => (&l.name, NameKind::Let),
         Decl::Material(nb) => (&nb.name, NameKind::Material),
-        Decl::Part(nb) => (&nb.name, NameKind::Part),
+        // beams live among the parts: their results, groups and checks
+        Decl::Part(nb) | Decl::Beam(nb) => (&nb.name, NameKind::Part),
         Decl::Rigid(nb) => (&nb.name, NameKind::Rigid),
         Decl::Node(n) => (&n.name, NameKind::Node),
         Decl::Case(c) => (&c.name, NameKind::Case),

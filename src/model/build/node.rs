@@ -50,6 +50,20 @@ impl Builder {
         nodes: &mut [Node],
     ) {
         for d in &file.decls {
+            if let Decl::Pin(list, sp) = d {
+                if kind == Kind::Axial {
+                    self.errors.push(ModelError::BendingInAxial {
+                        what: "`pin`".into(),
+                        span: *sp,
+                    });
+                    continue;
+                }
+                for id in list {
+                    if let Some(i) = self.ok(names.resolve(id, NameKind::Node)) {
+                        nodes[i].fixed = [true, true];
+                    }
+                }
+            }
             if let Decl::Fix(list) = d {
                 for s in list {
                     let Some(i) = self.ok(names.resolve(&s.node, NameKind::Node)) else {
@@ -64,9 +78,15 @@ impl Builder {
                                 span: sp,
                             });
                         }
-                        (_, None) => nodes[i].fixed = [true, kind == Kind::Plane],
+                        (_, None) => {
+                            nodes[i].fixed = [true, kind == Kind::Plane];
+                            nodes[i].fixed_rotation = kind == Kind::Plane;
+                        }
                         (Kind::Plane, Some((Axis::X, _))) => nodes[i].fixed[0] = true,
                         (Kind::Plane, Some((Axis::Y, _))) => nodes[i].fixed[1] = true,
+                        (Kind::Plane, Some((Axis::Rotation, _))) => {
+                            nodes[i].fixed_rotation = true;
+                        }
                     }
                 }
             }
@@ -221,6 +241,7 @@ impl Builder {
             x: x.unwrap_or(failed),
             y: y.unwrap_or(failed),
             fixed: [false; 2],
+            fixed_rotation: false,
             span: n.span,
         }
     }

@@ -18,15 +18,15 @@ impl Builder {
     /// Every part: a part needs only the names, materials and nodes.
     pub(super) fn parts(
         &mut self,
-        decls: &[&ast::NamedBlock],
+        decls: &[(&ast::NamedBlock, bool)],
         scope: &LetScope<'_, '_>,
         names: &Names<'_>,
         materials: Materials<'_>,
         nodes: &[Node],
         kind: Kind,
     ) -> Vec<Part> {
-        self.in_runs(decls, |b, &nb| {
-            b.part(nb, scope, names, materials, nodes, kind)
+        self.in_runs(decls, |b, &(nb, beam)| {
+            b.part(nb, beam, scope, names, materials, nodes, kind)
         })
     }
 
@@ -63,10 +63,11 @@ impl Builder {
         out
     }
 
-    #[allow(clippy::too_many_lines)]
+    #[allow(clippy::too_many_lines, clippy::too_many_arguments)]
     pub(super) fn part(
         &mut self,
         nb: &ast::NamedBlock,
+        beam: bool,
         scope: &dyn Scope,
         names: &Names<'_>,
         materials: Materials<'_>,
@@ -88,10 +89,37 @@ impl Builder {
             "slenderness_limit",
             "euler_fraction",
         ];
+        const BEAM_KEYS: &[&str] = &[
+            "ends",
+            "material",
+            "area",
+            "section",
+            "inertia",
+            "depth",
+            "bending",
+            "hinge",
+            "misfit",
+            "buckling_length",
+            "buckling_factor",
+            "slenderness_limit",
+            "euler_fraction",
+        ];
         let (materials, material_at) = materials;
         let pname = &nb.name.name;
-        let what = What::named("part", pname);
-        let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
+        let what = What::named(if beam { "beam" } else { "part" }, pname);
+        if beam && kind == Kind::Axial {
+            self.errors.push(ModelError::BendingInAxial {
+                what: format!("`beam {pname}`"),
+                span: nb.name.span,
+            });
+            return None;
+        }
+        let f = Fields::new(
+            &nb.block,
+            what,
+            if beam { BEAM_KEYS } else { KEYS },
+            &mut self.errors,
+        );
         let before = self.errors.len();
         let ends = self.part_ends(&f, nb, names);
         // a spring (`stiffness`), or a member (material and area or section)
@@ -102,8 +130,16 @@ impl Builder {
         };
         let limits = self.part_limits(&f, what, scope, nb, law.as_ref());
         let carries = self.part_carries(&f);
+        let bend = if beam {
+            self.beam_bending(&f, nb, names, scope, ends, nodes)
+        } else {
+            None
+        };
         let ends = ends?;
         let law = law?;
+        if beam && bend.is_none() {
+            return None;
+        }
         if self.errors.len() > before {
             return None;
         }
@@ -149,6 +185,7 @@ impl Builder {
             }),
             slenderness_limit: limits.slenderness_limit,
             euler_fraction: limits.euler_fraction,
+            bend,
             span: nb.span,
         };
         let k = part.stiffness(materials).value;
@@ -167,6 +204,91 @@ impl Builder {
             nb.name.span,
         ))?;
         Some(part)
+    }
+
+    /// A beam's bending: its second moment and extreme fibre about the axis
+    /// it bends about (a section's strong axis unless `bending = weak`, or
+    /// `inertia` and `depth`), and its hinges, which must be its ends.
+    fn beam_bending(
+        &mut self,
+        f: &Fields<'_>,
+        nb: &ast::NamedBlock,
+        names: &Names<'_>,
+        scope: &dyn Scope,
+        ends: Option<[usize; 2]>,
+        nodes: &[Node],
+    ) -> Option<Bend> {
+        let weak = match self.opt(f.names("bending")) {
+            None => false,
+            Some(list) => match list.as_slice() {
+                [w] if w.name == "weak" => true,
+                [s] if s.name == "strong" => false,
+                _ => {
+                    self.errors.push(ModelError::Expected {
+                        expected: "`strong` or `weak`".into(),
+                        span: f.map.get("bending").map_or(nb.block.span, |e| e.span),
+                        found: "something else".into(),
+                        help: Some(
+                            "a section bends about its strong axis unless `bending = weak`".into(),
+                        ),
+                    });
+                    return None;
+                }
+            },
+        };
+        let section =
+            f.expr("section")
+                .and_then(Result::ok)
+                .and_then(|e| match eval_val(e, scope) {
+                    Ok(Val::Section(s)) => Some(s),
+                    _ => None,
+                });
+        let (mut inertia, mut fibre) = match section {
+            Some(s) if weak => (Some(s.iy), Some(s.cy)),
+            Some(s) => (Some(s.ix), Some(s.cx)),
+            None => (None, None),
+        };
+        if let Some(q) = self.opt(f.quantity("inertia", Dimension::SECOND_MOMENT, scope)) {
+            inertia = Some(q.value);
+        }
+        if let Some(q) = self.opt(f.quantity("depth", Dimension::LENGTH, scope)) {
+            fibre = Some(q.value / 2.0);
+        }
+        let mut hinge = [false; 2];
+        if let (Some(list), Some(ends)) = (self.opt(f.names("hinge")), ends) {
+            for id in list {
+                let Some(i) = self.ok(names.resolve(id, NameKind::Node)) else {
+                    continue;
+                };
+                match ends.iter().position(|&e| e == i) {
+                    Some(k) => hinge[k] = true,
+                    None => {
+                        let end = |k: usize| nodes[ends[k]].name.to_string();
+                        self.errors.push(ModelError::HingeNotEnd {
+                            beam: nb.name.name.to_string(),
+                            node: id.name.to_string(),
+                            a: end(0),
+                            b: end(1),
+                            span: id.span,
+                        });
+                    }
+                }
+            }
+        }
+        match (inertia, fibre) {
+            (Some(i), Some(c)) if i > 0.0 && c > 0.0 => Some(Bend {
+                inertia: i,
+                fibre: c,
+                hinge,
+            }),
+            _ => {
+                self.errors.push(ModelError::BeamBending {
+                    beam: nb.name.name.to_string(),
+                    span: nb.name.span,
+                });
+                None
+            }
+        }
     }
 
     /// `ends`: two different nodes.

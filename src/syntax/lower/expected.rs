@@ -34,7 +34,7 @@ pub(super) fn describe(rule: Rule) -> Option<&'static str> {
         Rule::colon => "`:`",
         Rule::compare => "a comparison (`<=`, `<`, `>=`, `>`)",
         Rule::pair => "a pair `(x, y)`",
-        Rule::axis => "`x` or `y`",
+        Rule::axis => "`x`, `y` or `rotation`",
         Rule::sign => "`+` or `-`",
         Rule::combo_term => "a case name",
         Rule::case_flag => "`sustained`",
@@ -50,7 +50,9 @@ pub(super) fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::material_decl
         | Rule::node_decl
         | Rule::fix_decl
+        | Rule::pin_decl
         | Rule::part_decl
+        | Rule::beam_decl
         | Rule::rigid_decl
         | Rule::tie_decl
         | Rule::case_decl
@@ -65,6 +67,8 @@ pub(super) fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::kw_node
         | Rule::kw_fix
         | Rule::kw_part
+        | Rule::kw_beam
+        | Rule::kw_pin
         | Rule::kw_rigid
         | Rule::kw_tie
         | Rule::kw_case
@@ -73,13 +77,17 @@ pub(super) fn describe(rule: Rule) -> Option<&'static str> {
         | Rule::kw_group
         | Rule::kw_units => "a declaration (`let`, `material`, `node`, `part`, `case`, ...)",
         Rule::load_stmt
+        | Rule::moment_stmt
         | Rule::temperature_stmt
         | Rule::strain_stmt
         | Rule::settle_stmt
         | Rule::kw_load
+        | Rule::kw_moment
         | Rule::kw_temperature
         | Rule::kw_strain
-        | Rule::kw_settle => "a case statement (`load`, `temperature`, `strain`, `settle`)",
+        | Rule::kw_settle => {
+            "a case statement (`load`, `moment`, `temperature`, `strain`, `settle`)"
+        }
         _ => return None,
     })
 }
@@ -117,8 +125,8 @@ pub(super) fn keyword_hint(word: &str) -> Option<String> {
     let w = word.to_ascii_lowercase();
     match w.as_str() {
         "support" | "supports" | "fixed" | "fixity" | "restrain" | "restraint" | "anchor"
-        | "pin" | "pinned" | "hinge" | "roller" | "bc" => Some(
-            "supports are written `fix NODE` (every direction), or in a plane model `fix NODE x` or `fix NODE y` (a roller)".into(),
+        | "pinned" | "roller" | "bc" => Some(
+            "supports are written `fix NODE` (every direction), or in a plane model `fix NODE x` or `fix NODE y` (a roller), `pin NODE` (held in x and y, free to rotate)".into(),
         ),
         "temp" | "temps" | "dt" | "delta_t" | "thermal" | "heat" => Some(
             "a temperature change is written `temperature = 20 degC` (every part) or `temperature PART = 20 degC`".into(),
@@ -129,7 +137,8 @@ pub(super) fn keyword_hint(word: &str) -> Option<String> {
         _ => {
             const KEYWORDS: &[&str] = &[
                 "let", "material", "node", "part", "case", "combine", "check", "fix", "tie",
-                "rigid", "units", "calc", "load", "temperature", "strain", "settle",
+                "rigid", "units", "calc", "load", "temperature", "strain", "settle", "beam",
+                "pin", "moment",
             ];
             crate::words::did_you_mean(&w, KEYWORDS.iter().copied())
         }

@@ -105,6 +105,9 @@ fn parts(p: Pair<'_, Rule>) -> impl Iterator<Item = Pair<'_, Rule>> {
                 | Rule::kw_fix
                 | Rule::kw_settle
                 | Rule::kw_part
+                | Rule::kw_beam
+                | Rule::kw_pin
+                | Rule::kw_moment
                 | Rule::kw_rigid
                 | Rule::kw_tie
                 | Rule::kw_case
@@ -127,7 +130,11 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
     let rule = p.as_rule();
     if matches!(
         rule,
-        Rule::load_stmt | Rule::temperature_stmt | Rule::strain_stmt | Rule::settle_stmt
+        Rule::load_stmt
+            | Rule::moment_stmt
+            | Rule::temperature_stmt
+            | Rule::strain_stmt
+            | Rule::settle_stmt
     ) {
         return Ok(Decl::Stmt(Box::new(stmt(p)?)));
     }
@@ -144,7 +151,7 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                 span: sp,
             }))
         }
-        Rule::material_decl | Rule::part_decl | Rule::rigid_decl => {
+        Rule::material_decl | Rule::part_decl | Rule::beam_decl | Rule::rigid_decl => {
             let name = ident(&need(next(), sp)?);
             let nb = NamedBlock {
                 name,
@@ -154,6 +161,7 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
             match rule {
                 Rule::material_decl => Decl::Material(Box::new(nb)),
                 Rule::part_decl => Decl::Part(Box::new(nb)),
+                Rule::beam_decl => Decl::Beam(Box::new(nb)),
                 _ => Decl::Rigid(Box::new(nb)),
             }
         }
@@ -176,6 +184,13 @@ fn decl(p: Pair<'_, Rule>) -> Result<Decl> {
                 });
             }
             Decl::Fix(supports)
+        }
+        Rule::pin_decl => {
+            let mut nodes = Vec::new();
+            while let Some(n) = next() {
+                nodes.push(ident(&n));
+            }
+            Decl::Pin(nodes, sp)
         }
         Rule::tie_decl => {
             let mut nodes = Vec::new();
@@ -356,7 +371,11 @@ fn need_ident(i: Option<Ident>, sp: Span) -> Result<Ident> {
 }
 
 fn axis(p: &Pair<'_, Rule>) -> (Axis, Span) {
-    let a = if p.as_str() == "x" { Axis::X } else { Axis::Y };
+    let a = match p.as_str() {
+        "x" => Axis::X,
+        "y" => Axis::Y,
+        _ => Axis::Rotation,
+    };
     (a, span(p))
 }
 
@@ -368,6 +387,11 @@ fn stmt(p: Pair<'_, Rule>) -> Result<Stmt> {
         Rule::load_stmt => Stmt::Load {
             node: ident(&need(it.next(), sp)?),
             force: coord(need(it.next(), sp)?)?,
+            span: sp,
+        },
+        Rule::moment_stmt => Stmt::Moment {
+            node: ident(&need(it.next(), sp)?),
+            value: expr(need(it.next(), sp)?)?,
             span: sp,
         },
         Rule::temperature_stmt => {
