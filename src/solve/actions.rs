@@ -10,8 +10,12 @@ use super::*;
 pub(crate) struct Actions {
     /// Prescribed node displacements (support movements), per component.
     pub u0: Vec<f64>,
-    /// Nodal loads, per component.
+    /// Nodal loads, per component (moments at rotation components), a
+    /// beam's load along it included as the loads it puts on its ends.
     pub loads: Vec<f64>,
+    /// Each part's load along it, per unit length, in its own axes
+    /// `[along, across]` (beams only; zero for the others).
+    pub along: Vec<[f64; 2]>,
     /// Free elongation of each part.
     pub free: Vec<f64>,
     /// Elongation of each part from the prescribed movements alone.
@@ -137,9 +141,9 @@ impl System<'_> {
         let model = self.model;
         let map = &self.map;
         let nd = map.ndof;
-        let nn = model.nodes.len();
-        let mut u0 = vec![0.0; nn * nd];
-        let mut loads = vec![0.0; nn * nd];
+        let mut u0 = vec![0.0; map.ncomp];
+        let mut loads = vec![0.0; map.ncomp];
+        let mut along = vec![[0.0; 2]; model.parts.len()];
         let mut free = vec![0.0; model.parts.len()];
         for (i, source) in free_sources(model, terms) {
             let wanted = match source {
@@ -159,11 +163,37 @@ impl System<'_> {
                     *moved.entry((s.node, s.direction)).or_default() += factor * s.movement.value;
                 }
             }
+            if take.strains {
+                for t in &case.twists {
+                    if let Some(c) = map.rot[t.node] {
+                        u0[c] += factor * t.angle;
+                    }
+                }
+            }
             if take.loads {
                 for l in &case.loads {
                     for d in 0..nd {
                         loads[l.node * nd + d] += factor * l.force[d].value;
                     }
+                }
+                for m in &case.moments {
+                    let Some(c) = map.rot[m.node] else {
+                        return Err(SolveError::Mechanism {
+                            what: format!("the rotation of node `{}`", model.nodes[m.node].name),
+                            when: String::new(),
+                            span: m.span,
+                            help: Some(format!(
+                                "a moment needs a beam rigidly joined at node `{}` to carry it",
+                                model.nodes[m.node].name
+                            )),
+                        });
+                    };
+                    loads[c] += factor * m.moment;
+                }
+                for w in &case.distributed {
+                    let dir = model.direction(w.part);
+                    along[w.part][0] += factor * (w.w[0] * dir[0] + w.w[1] * dir[1]);
+                    along[w.part][1] += factor * (-w.w[0] * dir[1] + w.w[1] * dir[0]);
                 }
             }
         }
@@ -202,7 +232,28 @@ impl System<'_> {
                 }
             }
         }
-        let e0: Vec<f64> = model
+        // a beam's load along it, as the loads it puts on its end nodes
+        for (i, w) in along.iter().enumerate() {
+            if *w == [0.0, 0.0] {
+                continue;
+            }
+            let p = &model.parts[i];
+            let dir = model.direction(i);
+            let nrm = [-dir[1], dir[0]];
+            let hinge = p.bend.as_ref().map_or([true, true], |b| b.hinge);
+            let l = p.length.value;
+            let [fa, fb, ma, mb] = equivalent_loads(w[1], l, hinge);
+            for d in 0..nd {
+                loads[p.ends[0] * nd + d] += w[0] * l / 2.0 * dir[d] + fa * nrm[d];
+                loads[p.ends[1] * nd + d] += w[0] * l / 2.0 * dir[d] + fb * nrm[d];
+            }
+            for (k, m) in [(0, ma), (1, mb)] {
+                if let Some(c) = map.rot[p.ends[k]] {
+                    loads[c] += m;
+                }
+            }
+        }
+        let mut e0: Vec<f64> = model
             .parts
             .iter()
             .zip(&self.elems.dir)
@@ -212,6 +263,12 @@ impl System<'_> {
                     .sum()
             })
             .collect();
+        e0.extend(
+            self.elems
+                .modes
+                .iter()
+                .map(|m| m.comps.iter().map(|&(c, v)| v * u0[c]).sum::<f64>()),
+        );
         let mut f_loads = vec![0.0; map.n];
         for (c, &f) in loads.iter().enumerate() {
             if f != 0.0 {
@@ -223,9 +280,39 @@ impl System<'_> {
         Ok(Actions {
             u0,
             loads,
+            along,
             free,
             e0,
             f_loads,
         })
+    }
+}
+
+/// The loads a uniform load `wt` across a beam of length `l` puts on its
+/// end nodes, `[Fa, Fb, Ma, Mb]` (forces across the beam, moments
+/// counter-clockwise): the reverse of its fixed-end forces, a hinged end
+/// carrying no moment (beam tables: fixed at both ends wL/2 and wL²/12;
+/// fixed and hinged 5wL/8, 3wL/8 and wL²/8).
+pub(crate) fn equivalent_loads(wt: f64, l: f64, hinge: [bool; 2]) -> [f64; 4] {
+    match hinge {
+        [false, false] => [
+            wt * l / 2.0,
+            wt * l / 2.0,
+            wt * l * l / 12.0,
+            -wt * l * l / 12.0,
+        ],
+        [false, true] => [
+            5.0 * wt * l / 8.0,
+            3.0 * wt * l / 8.0,
+            wt * l * l / 8.0,
+            0.0,
+        ],
+        [true, false] => [
+            3.0 * wt * l / 8.0,
+            5.0 * wt * l / 8.0,
+            0.0,
+            -wt * l * l / 8.0,
+        ],
+        [true, true] => [wt * l / 2.0, wt * l / 2.0, 0.0, 0.0],
     }
 }

@@ -49,6 +49,8 @@ pub(crate) enum Unknown {
     Tie(usize, usize),
     /// Rigid body, coordinate (0 = x, 1 = y, 2 = rotation).
     Rigid(usize, usize),
+    /// The rotation of a node a beam end is rigidly joined to.
+    Rotation(usize),
 }
 
 /// A tie group or rigid body with its constraint reduction.
@@ -131,6 +133,11 @@ pub(crate) struct DofMap {
     pub node_body: Vec<Option<u32>>,
     pub bodies: Vec<Body>,
     pub unknowns: Vec<Unknown>,
+    /// Each node's rotation component (after the translations), where a
+    /// beam end is rigidly joined to it.
+    pub rot: Vec<Option<usize>>,
+    /// Node components: translations, then rotations.
+    pub ncomp: usize,
 }
 
 struct UnionFind(Vec<usize>);
@@ -419,6 +426,41 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
             }
         }
     }
+    // Rotations: a node gets one where a beam end is rigidly joined.
+    let mut has_rot = vec![false; nn];
+    for p in &model.parts {
+        if let Some(b) = &p.bend {
+            for k in 0..2 {
+                if !b.hinge[k] {
+                    has_rot[p.ends[k]] = true;
+                }
+            }
+        }
+    }
+    let mut rot = vec![None; nn];
+    let mut ncomp = nn * ndof;
+    for i in 0..nn {
+        if !has_rot[i] {
+            continue;
+        }
+        if let Some(ri) = rigid_of[i] {
+            return Err(SolveError::BendingNotYet {
+                what: format!(
+                    "a beam rigidly joined to rigid body `{}`",
+                    model.rigids[ri].name
+                ),
+                is: "is",
+                span: model.nodes[i].span,
+            });
+        }
+        rot[i] = Some(ncomp);
+        terms.push(Terms::default());
+        if !model.nodes[i].fixed_rotation {
+            terms[ncomp].push(unknowns.len(), 1.0);
+            unknowns.push(Unknown::Rotation(i));
+        }
+        ncomp += 1;
+    }
     Ok(DofMap {
         ndof,
         n: unknowns.len(),
@@ -426,6 +468,8 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
         node_body,
         bodies,
         unknowns,
+        rot,
+        ncomp,
     })
 }
 

@@ -35,6 +35,17 @@ pub(super) fn describe_unknown(
                 ),
             )
         }
+        Unknown::Rotation(i) => {
+            let n = &model.nodes[*i];
+            (
+                format!("the rotation of node `{}`", n.name),
+                n.span,
+                format!(
+                    "hold it (`fix {} rotation`), or join another member that resists rotation at node `{}`",
+                    n.name, n.name
+                ),
+            )
+        }
         Unknown::Tie(i, d) => {
             let n = &model.nodes[*i];
             (

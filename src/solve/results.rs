@@ -52,6 +52,29 @@ pub fn verified(
             return Err(bad(format!("node `{}`", n.name)));
         }
     }
+    for (n, nr) in model.nodes.iter().zip(&mut r.nodes) {
+        if !(clean(&mut nr.rotation) & clean(&mut nr.reaction_moment)) {
+            return Err(bad(format!("the rotation of node `{}`", n.name)));
+        }
+    }
+    for b in &mut r.beams {
+        let mut ok = true;
+        for v in b
+            .end_moments
+            .iter_mut()
+            .chain(b.end_shears.iter_mut())
+            .chain([
+                &mut b.moment_max.0,
+                &mut b.shear_max,
+                &mut b.deflection_max.0,
+            ])
+        {
+            ok &= clean(v);
+        }
+        if !ok {
+            return Err(bad(format!("beam `{}`", model.parts[b.part].name)));
+        }
+    }
     for (b, rot) in model.rigids.iter().zip(&mut r.rotations) {
         if !clean(rot) {
             return Err(bad(format!("the rotation of `{}`", b.name)));
@@ -126,6 +149,89 @@ pub struct NodeResult {
     pub displacement: [Length; 2],
     /// Support reaction, `[x, y]`; zero in free directions.
     pub reaction: [Force; 2],
+    /// Rotation (rad, counter-clockwise) where a beam end is rigidly
+    /// joined; zero elsewhere.
+    pub rotation: f64,
+    /// Reaction moment (N·m, counter-clockwise) where the rotation is held.
+    pub reaction_moment: f64,
+}
+
+/// A beam's bending in one combination. End moments act on the beam,
+/// counter-clockwise positive; shears are end forces across the beam
+/// (local y, a quarter turn counter-clockwise from end A toward B). Along
+/// the beam the moment is positive where the −y fibre is in tension
+/// (sagging for a beam drawn left to right): M(0) = −Ma, M(L) = Mb.
+#[derive(Clone, Debug, PartialEq)]
+pub struct BeamResult {
+    pub part: usize,
+    /// `[Ma, Mb]` (N·m).
+    pub end_moments: [f64; 2],
+    /// `[Va, Vb]` (N).
+    pub end_shears: [f64; 2],
+    /// Load along the beam per unit length, `[along, across]` (N/m).
+    pub load: [f64; 2],
+    /// The moment of largest magnitude along the beam (N·m) and where it
+    /// is, as a distance from end A (m).
+    pub moment_max: (f64, f64),
+    /// The shear of largest magnitude (N).
+    pub shear_max: f64,
+    /// The largest deflection across the chord between the deflected ends
+    /// (m, along local y) and where it is (m from end A).
+    pub deflection_max: (f64, f64),
+}
+
+impl BeamResult {
+    /// The moment at `x` from end A (sagging positive).
+    #[must_use]
+    pub fn moment_at(&self, x: f64) -> f64 {
+        -self.end_moments[0] + self.end_shears[0] * x + self.load[1] * x * x / 2.0
+    }
+}
+
+/// Points along a beam where its deflection is sampled for the largest.
+const DEFLECTION_STEPS: u32 = 256;
+
+/// A beam's results from its end moments and its load across it.
+fn beam_result(part: usize, m: [f64; 2], w: [f64; 2], l: f64, ei: f64) -> BeamResult {
+    let wt = w[1];
+    let va = (m[0] + m[1]) / l - wt * l / 2.0;
+    let vb = -(m[0] + m[1]) / l - wt * l / 2.0;
+    let moment = |x: f64| -m[0] + va * x + wt * x * x / 2.0;
+    let mut best = (moment(0.0), 0.0);
+    let mut consider = |x: f64| {
+        let v = moment(x);
+        if v.abs() > best.0.abs() * (1.0 + 1e-12) {
+            best = (v, x);
+        }
+    };
+    consider(l);
+    if wt != 0.0 {
+        let x = -va / wt;
+        if x > 0.0 && x < l {
+            consider(x);
+        }
+    }
+    // EI·v'' = M with v = 0 at both ends (the chord), integrated exactly
+    let vraw = |x: f64| -m[0] * x * x / 2.0 + va * x.powi(3) / 6.0 + wt * x.powi(4) / 24.0;
+    let at_end = vraw(l);
+    let v = |x: f64| (vraw(x) - x / l * at_end) / ei;
+    let mut defl = (0.0f64, 0.0);
+    for k in 1..DEFLECTION_STEPS {
+        let x = l * f64::from(k) / f64::from(DEFLECTION_STEPS);
+        let d = v(x);
+        if d.abs() > defl.0.abs() {
+            defl = (d, x);
+        }
+    }
+    BeamResult {
+        part,
+        end_moments: m,
+        end_shears: [va, vb],
+        load: w,
+        moment_max: best,
+        shear_max: if va.abs() >= vb.abs() { va } else { -vb },
+        deflection_max: defl,
+    }
 }
 
 /// Results of one combination.
@@ -136,6 +242,8 @@ pub struct CombinationResult {
     pub nodes: Vec<NodeResult>,
     /// Rotation of each rigid body (radians; zero in axial models).
     pub rotations: Vec<f64>,
+    /// Each beam's bending, in the order of the parts.
+    pub beams: Vec<BeamResult>,
     /// Largest out-of-balance force, from part forces, loads and reactions.
     pub equilibrium_residual: Force,
     /// Largest load, part force or reaction: the scale of the residual.
@@ -156,6 +264,10 @@ pub(super) struct ResultInputs<'a> {
     pub(super) q: &'a [f64],
     pub(super) u0: &'a [f64],
     pub(super) loads: &'a [f64],
+    /// Deformation from the prescribed movements: parts, then bending modes.
+    pub(super) e0: &'a [f64],
+    /// Each part's load along it, `[along, across]` per unit length.
+    pub(super) along: &'a [[f64; 2]],
     pub(super) elong: &'a [f64],
     pub(super) free: &'a [f64],
     /// The force in each part.
@@ -201,6 +313,43 @@ pub(super) fn gather_results(
             state,
         });
     }
+    // Beams: each bending mode's moment pushes on its nodes; the end
+    // moments gather the modes' and the fixed-end moments of the load along
+    let np = model.parts.len();
+    let mut end_m: Vec<[f64; 2]> = Vec::new();
+    let mut beam_of = vec![usize::MAX; np];
+    for (i, p) in model.parts.iter().enumerate() {
+        if p.bend.is_some() {
+            beam_of[i] = end_m.len();
+            end_m.push([0.0; 2]);
+        }
+    }
+    for (j, m) in elems.modes.iter().enumerate() {
+        let i = np + j;
+        let e = r.e0[i] + elems.g(i).iter().map(|&(u, g)| g * r.q[u]).sum::<f64>();
+        let f = elems.k[i] * e;
+        for &(c, v) in &m.comps {
+            net[c] -= f * v;
+        }
+        let b = &mut end_m[beam_of[m.part]];
+        b[0] += f * m.ca;
+        b[1] += f * m.cb;
+    }
+    let mut beams = Vec::with_capacity(end_m.len());
+    for (i, p) in model.parts.iter().enumerate() {
+        let (Some(bend), Some(mat)) = (&p.bend, p.material()) else {
+            continue;
+        };
+        let l = p.length.value;
+        let w = r.along[i];
+        let [_, _, ma, mb] = super::actions::equivalent_loads(w[1], l, bend.hinge);
+        let m = end_m[beam_of[i]];
+        let ei = model.materials[mat].e.value * bend.inertia;
+        beams.push(beam_result(i, [m[0] - ma, m[1] - mb], w, l, ei));
+        for f in [m[0] - ma, m[1] - mb] {
+            scale = scale.max(f.abs() / l);
+        }
+    }
     // Reactions: plain supported components take their own imbalance; a body
     // shares its imbalance among its independent supports.
     let mut reaction = vec![0.0; nn * nd];
@@ -238,7 +387,20 @@ pub(super) fn gather_results(
             reaction[n * nd + d] += lam;
         }
     }
-    let (residual, scale) = equilibrium_residual(model, map, &net, r.loads, &reaction, scale);
+    let mut reaction_moment = vec![0.0; nn];
+    for i in 0..nn {
+        if let (Some(c), true) = (map.rot[i], model.nodes[i].fixed_rotation) {
+            reaction_moment[i] = -net[c];
+        }
+    }
+    let (residual, scale) = equilibrium_residual(
+        model,
+        map,
+        &net,
+        r.loads,
+        (&reaction, &reaction_moment),
+        scale,
+    );
     // Reactions at round-off level of the largest force read as zero.
     for v in &mut reaction {
         if v.abs() < 1e-12 * scale {
@@ -255,6 +417,8 @@ pub(super) fn gather_results(
                 Force::new::<newton>(reaction[i * nd]),
                 Force::new::<newton>(if nd == 2 { reaction[i * nd + 1] } else { 0.0 }),
             ],
+            rotation: map.rot[i].map_or(0.0, |c| u[c]),
+            reaction_moment: reaction_moment[i],
         })
         .collect();
     let rotations = model
@@ -290,6 +454,7 @@ pub(super) fn gather_results(
         parts,
         nodes,
         rotations,
+        beams,
         equilibrium_residual: Force::new::<newton>(residual),
         force_scale: Force::new::<newton>(scale),
         trials: r.trials,
@@ -306,7 +471,7 @@ fn equilibrium_residual(
     map: &DofMap,
     net: &[f64],
     loads: &[f64],
-    reaction: &[f64],
+    (reaction, reaction_moment): (&[f64], &[f64]),
     mut scale: f64,
 ) -> (f64, f64) {
     let (nn, nd) = (model.nodes.len(), map.ndof);
@@ -337,6 +502,18 @@ fn equilibrium_residual(
         if nd == 2 {
             moment +=
                 x * (loads[i * 2 + 1] + reaction[i * 2 + 1]) - y * (loads[i * 2] + reaction[i * 2]);
+        }
+        // moments at nodes: applied and held
+        if let Some(c) = map.rot[i] {
+            moment += loads[c] + reaction_moment[i];
+        }
+    }
+    // a free rotation must balance too, its moment over the model's extent
+    if extent > 0.0 {
+        for i in 0..nn {
+            if let (Some(c), false) = (map.rot[i], model.nodes[i].fixed_rotation) {
+                residual = residual.max(net[c].abs() / extent);
+            }
         }
     }
     residual = residual.max(sum[0].abs()).max(sum[1].abs());

@@ -9,7 +9,11 @@ use super::*;
 /// Flat lists, one run per part, so that a million parts are a few large
 /// arrays rather than millions of small ones.
 pub(super) struct Elements {
-    /// Direction cosines per component.
+    /// The parts come first (`0..n_parts`), then the bending modes.
+    pub(super) n_parts: usize,
+    /// Each bending mode: its beam and how it is made of the end rotations.
+    pub(super) modes: Vec<BendMode>,
+    /// Direction cosines per component (parts only).
     pub(super) dir: Vec<[f64; 2]>,
     pub(super) k: Vec<f64>,
     /// Part `i`'s coefficients `g` are `g[g_at[i]..g_at[i + 1]]`.
@@ -19,6 +23,83 @@ pub(super) struct Elements {
     /// with gi·gj; part `i`'s are `pos[pos_at[i]..pos_at[i + 1]]`.
     pub(super) pos_at: Vec<usize>,
     pub(super) pos: Vec<(usize, f64)>,
+}
+
+/// One bending mode of a beam: the deformation `e = ca·φa + cb·φb`, where
+/// φ is an end's rotation relative to the chord, with stiffness `k`. A
+/// beam's 2×2 end-moment stiffness (EI/L)·[[4, 2], [2, 4]] is the sum of
+/// the modes φa + φb (3EI/L) and φa − φb (EI/L); an end with a hinge is
+/// condensed out, leaving one mode of 3EI/L on the other end.
+#[derive(Clone, Debug)]
+pub(crate) struct BendMode {
+    pub part: usize,
+    pub ca: f64,
+    pub cb: f64,
+    /// The deformation in node components: `e = Σ c·u[comp]`.
+    pub comps: Vec<(usize, f64)>,
+}
+
+/// A beam's bending modes: `(ca, cb, k)`.
+fn modes_of(hinge: [bool; 2], ei_l: f64) -> Vec<(f64, f64, f64)> {
+    match hinge {
+        [false, false] => vec![(1.0, 1.0, 3.0 * ei_l), (1.0, -1.0, ei_l)],
+        [false, true] => vec![(1.0, 0.0, 3.0 * ei_l)],
+        [true, false] => vec![(0.0, 1.0, 3.0 * ei_l)],
+        [true, true] => Vec::new(),
+    }
+}
+
+/// Push one element's `g` from its coefficients on node components.
+fn push_g(e: &mut Elements, map: &DofMap, comps: &[(usize, f64)]) {
+    let start = e.g.len();
+    for &(c, coef) in comps {
+        for (i, v) in map.terms[c].iter() {
+            e.g.push((i, coef * v));
+        }
+    }
+    // merge repeated unknowns, drop zero coefficients
+    e.g[start..].sort_by_key(|x| x.0);
+    let mut len = start;
+    for r in start..e.g.len() {
+        let (i, v) = e.g[r];
+        if len > start && e.g[len - 1].0 == i {
+            e.g[len - 1].1 += v;
+        } else {
+            e.g[len] = (i, v);
+            len += 1;
+        }
+    }
+    e.g.truncate(len);
+    let mut keep = start;
+    for r in start..len {
+        if e.g[r].1 != 0.0 {
+            e.g[keep] = e.g[r];
+            keep += 1;
+        }
+    }
+    e.g.truncate(keep);
+    e.g_at.push(keep);
+}
+
+/// The components of φa and φb of a beam: each end's rotation less the
+/// chord's, ψ = (v(B) − v(A)) / L with v the displacement across the beam.
+pub(crate) fn end_rotations(model: &Model, map: &DofMap, part: usize) -> [Vec<(usize, f64)>; 2] {
+    let p = &model.parts[part];
+    let dir = model.direction(part);
+    let nrm = [-dir[1], dir[0]];
+    let l = p.length.value;
+    let nd = map.ndof;
+    let mut out = [Vec::new(), Vec::new()];
+    for (k, phi) in out.iter_mut().enumerate() {
+        if let Some(c) = map.rot[p.ends[k]] {
+            phi.push((c, 1.0));
+        }
+        for d in 0..nd.min(2) {
+            phi.push((p.ends[1] * nd + d, -nrm[d] / l));
+            phi.push((p.ends[0] * nd + d, nrm[d] / l));
+        }
+    }
+    out
 }
 
 impl Elements {
@@ -35,6 +116,8 @@ pub(super) fn elements(model: &Model, map: &DofMap) -> Elements {
     let nd = map.ndof;
     let n = model.parts.len();
     let mut e = Elements {
+        n_parts: n,
+        modes: Vec::new(),
         dir: Vec::with_capacity(n),
         k: Vec::with_capacity(n),
         g_at: Vec::with_capacity(n + 1),
@@ -43,41 +126,42 @@ pub(super) fn elements(model: &Model, map: &DofMap) -> Elements {
         pos: Vec::new(),
     };
     e.g_at.push(0);
+    let mut comps = Vec::with_capacity(2 * nd);
     for (pi, p) in model.parts.iter().enumerate() {
         let dir = model.direction(pi);
-        let start = e.g.len();
+        comps.clear();
         for (d, c) in dir.iter().enumerate().take(nd) {
-            for (i, v) in map.terms[p.ends[1] * nd + d].iter() {
-                e.g.push((i, c * v));
-            }
-            for (i, v) in map.terms[p.ends[0] * nd + d].iter() {
-                e.g.push((i, -c * v));
-            }
+            comps.push((p.ends[1] * nd + d, *c));
+            comps.push((p.ends[0] * nd + d, -c));
         }
-        // merge repeated unknowns, drop zero coefficients
-        e.g[start..].sort_by_key(|x| x.0);
-        let mut len = start;
-        for r in start..e.g.len() {
-            let (i, v) = e.g[r];
-            if len > start && e.g[len - 1].0 == i {
-                e.g[len - 1].1 += v;
-            } else {
-                e.g[len] = (i, v);
-                len += 1;
-            }
-        }
-        e.g.truncate(len);
-        let mut keep = start;
-        for r in start..len {
-            if e.g[r].1 != 0.0 {
-                e.g[keep] = e.g[r];
-                keep += 1;
-            }
-        }
-        e.g.truncate(keep);
-        e.g_at.push(keep);
+        push_g(&mut e, map, &comps);
         e.dir.push(dir);
         e.k.push(p.stiffness(&model.materials).value);
+    }
+    for (pi, p) in model.parts.iter().enumerate() {
+        let (Some(b), Some(m)) = (&p.bend, p.material()) else {
+            continue;
+        };
+        let ei_l = model.materials[m].e.value * b.inertia / p.length.value;
+        let [phi_a, phi_b] = end_rotations(model, map, pi);
+        for (ca, cb, k) in modes_of(b.hinge, ei_l) {
+            let mut mc: Vec<(usize, f64)> = Vec::new();
+            for &(c, v) in &phi_a {
+                mc.push((c, ca * v));
+            }
+            for &(c, v) in &phi_b {
+                mc.push((c, cb * v));
+            }
+            mc.retain(|x| x.1 != 0.0);
+            push_g(&mut e, map, &mc);
+            e.k.push(k);
+            e.modes.push(BendMode {
+                part: pi,
+                ca,
+                cb,
+                comps: mc,
+            });
+        }
     }
     e
 }
@@ -102,7 +186,8 @@ impl<'m> System<'m> {
     pub fn new(model: &'m Model) -> Result<Self, SolveError> {
         let map = dofs::number(model)?;
         let mut elems = elements(model, &map);
-        let n = model.parts.len();
+        // every element: the parts, then the beams' bending modes
+        let n = elems.k.len();
         let pattern = Pattern::new(map.n, |pair| {
             for p in 0..n {
                 let g = elems.g(p);
@@ -138,13 +223,22 @@ impl<'m> System<'m> {
 
     /// Each part's elastic stiffness k = E A / L.
     pub fn stiffness(&self) -> Vec<f64> {
-        self.elems.k.clone()
+        self.elems.k[..self.elems.n_parts].to_vec()
+    }
+
+    /// The stiffness of every element: the parts' as given, the bending
+    /// modes' elastic.
+    fn all_k<'k>(&'k self, k: &'k [f64]) -> impl Iterator<Item = (usize, f64)> + 'k {
+        k.iter()
+            .copied()
+            .enumerate()
+            .chain((self.elems.n_parts..self.elems.k.len()).map(|i| (i, self.elems.k[i])))
     }
 
     /// Factorise with per-part stiffnesses (0 removes a part).
     pub fn factor(&self, k: &[f64], slack: &[usize]) -> Result<sparse::Factor<'_>, SolveError> {
         let mut values = vec![0.0; self.pattern.nnz()];
-        for (i, &kk) in k.iter().enumerate() {
+        for (i, kk) in self.all_k(k) {
             if kk != 0.0 {
                 for &(p, c) in self.elems.pos(i) {
                     values[p] += kk * c;
@@ -205,8 +299,15 @@ impl<'m> System<'m> {
         a: &Actions,
     ) -> (Vec<f64>, Vec<f64>) {
         let mut rhs = a.f_loads.clone();
-        for i in 0..self.elems.k.len() {
-            let t = k[i] * (target[i] - a.e0[i]) - forces[i];
+        let n = self.elems.n_parts;
+        for (i, kk) in self.all_k(k) {
+            // a bending mode aims at no deformation and carries no set force
+            let (aim, set) = if i < n {
+                (target[i], forces[i])
+            } else {
+                (0.0, 0.0)
+            };
+            let t = kk * (aim - a.e0[i]) - set;
             if t != 0.0 {
                 for &(j, g) in self.elems.g(i) {
                     rhs[j] += t * g;
@@ -221,9 +322,9 @@ impl<'m> System<'m> {
         // (condition number ~ n²); refinement brings its equilibrium residual
         // from ~1e-7 to round-off of the largest force at 25,000 parts.
         let mut r = f;
-        for i in 0..self.elems.k.len() {
+        for (i, kk) in self.all_k(k) {
             let g = self.elems.g(i);
-            let s = k[i] * g.iter().map(|&(j, gj)| gj * q[j]).sum::<f64>();
+            let s = kk * g.iter().map(|&(j, gj)| gj * q[j]).sum::<f64>();
             if s != 0.0 {
                 for &(j, gj) in g {
                     r[j] -= s * gj;
@@ -236,6 +337,7 @@ impl<'m> System<'m> {
         }
         let elong =
             a.e0.iter()
+                .take(n)
                 .enumerate()
                 .map(|(i, base)| base + self.elems.g(i).iter().map(|&(j, g)| g * q[j]).sum::<f64>())
                 .collect();
@@ -263,6 +365,8 @@ impl<'m> System<'m> {
                 q,
                 u0: &a.u0,
                 loads: &a.loads,
+                e0: &a.e0,
+                along: &a.along,
                 elong,
                 free: &a.free,
                 forces,

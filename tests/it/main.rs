@@ -1,6 +1,7 @@
 //! The integration tests, one crate (one link) with a module per subject.
 
 mod architecture;
+mod beams;
 mod capacity;
 mod checks;
 mod cli;
