@@ -305,6 +305,22 @@ impl Scope for ResultScope<'_> {
                         Quantity::number(kl_r)
                     }
                 }
+                "moment_a" | "moment_b" | "moment" | "shear" | "deflection" => {
+                    let b = self
+                        .result
+                        .beams
+                        .binary_search_by_key(&i, |b| b.part)
+                        .map(|k| &self.result.beams[k])
+                        .map_err(|_| ModelError::poisoned())?;
+                    let moment = Dimension::FORCE.mul(Dimension::LENGTH);
+                    match field.name.as_str() {
+                        "moment_a" => Quantity::new(b.moment_at(0.0), moment),
+                        "moment_b" => Quantity::new(b.end_moments[1], moment),
+                        "moment" => Quantity::new(b.moment_max.0, moment),
+                        "shear" => Quantity::new(b.shear_max, Dimension::FORCE),
+                        _ => Quantity::new(b.deflection_max.0, Dimension::LENGTH),
+                    }
+                }
                 "force" => Quantity::new(p.force.value, Dimension::FORCE),
                 "stress" => Quantity::new(p.stress.map_or(0.0, |s| s.value), Dimension::PRESSURE),
                 "strain" => Quantity::number(p.strain),
@@ -319,6 +335,10 @@ impl Scope for ResultScope<'_> {
                 }
                 (Kind::Plane, "dy") => Quantity::new(n.displacement[1].value, Dimension::LENGTH),
                 (Kind::Plane, "ry") => Quantity::new(n.reaction[1].value, Dimension::FORCE),
+                (Kind::Plane, "rotation") => Quantity::number(n.rotation),
+                (Kind::Plane, "mz") => {
+                    Quantity::new(n.reaction_moment, Dimension::FORCE.mul(Dimension::LENGTH))
+                }
                 _ => Quantity::new(n.reaction[0].value, Dimension::FORCE),
             });
         }

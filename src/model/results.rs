@@ -17,6 +17,27 @@ pub const PART_RESULTS: &[(&str, Dimension)] = &[
     ("slenderness", Dimension::NONE),
 ];
 
+/// A moment's dimension, force times length.
+const MOMENT: Dimension = Dimension::new(2, 1, -2, 0);
+
+/// A beam's results: a part's, and its bending (moments positive where the
+/// fibre on the beam's right-hand side, looking from end A to B, is in
+/// tension: sagging for a beam drawn left to right).
+pub const BEAM_RESULTS: &[(&str, Dimension)] = &[
+    ("force", Dimension::FORCE),
+    ("stress", Dimension::PRESSURE),
+    ("strain", Dimension::NONE),
+    ("elongation", Dimension::LENGTH),
+    ("length", Dimension::LENGTH),
+    ("euler_load", Dimension::FORCE),
+    ("slenderness", Dimension::NONE),
+    ("moment_a", MOMENT),
+    ("moment_b", MOMENT),
+    ("moment", MOMENT),
+    ("shear", Dimension::FORCE),
+    ("deflection", Dimension::LENGTH),
+];
+
 /// A node's results in an axial model.
 pub const AXIAL_NODE_RESULTS: &[(&str, Dimension)] = &[
     ("displacement", Dimension::LENGTH),
@@ -29,6 +50,8 @@ pub const PLANE_NODE_RESULTS: &[(&str, Dimension)] = &[
     ("dy", Dimension::LENGTH),
     ("rx", Dimension::FORCE),
     ("ry", Dimension::FORCE),
+    ("rotation", Dimension::NONE),
+    ("mz", MOMENT),
 ];
 
 /// A node's results in a model of this kind.

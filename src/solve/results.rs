@@ -345,7 +345,19 @@ pub(super) fn gather_results(
         let [_, _, ma, mb] = super::actions::equivalent_loads(w[1], l, bend.hinge);
         let m = end_m[beam_of[i]];
         let ei = model.materials[mat].e.value * bend.inertia;
-        beams.push(beam_result(i, [m[0] - ma, m[1] - mb], w, l, ei));
+        let b = beam_result(i, [m[0] - ma, m[1] - mb], w, l, ei);
+        // a beam's stress is its extreme fibre's: N/A ± M·c/I, the larger
+        if let Some(area) = p.area() {
+            let axial = parts[i].force.value / area.value;
+            let bending = b.moment_max.0.abs() * bend.fibre / bend.inertia;
+            let s = if axial >= 0.0 {
+                axial + bending
+            } else {
+                axial - bending
+            };
+            parts[i].stress = Some(Pressure::new::<pascal>(s));
+        }
+        beams.push(b);
         for f in [m[0] - ma, m[1] - mb] {
             scale = scale.max(f.abs() / l);
         }

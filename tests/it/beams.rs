@@ -503,3 +503,54 @@ fn random_frames_agree_with_a_dense_reference() {
     }
     assert_eq!(checked, 60);
 }
+
+/// The results a check can name on a beam and its nodes, on the propped
+/// cantilever (Table 3-23, case 12): `.moment_a` = −wL²/8 (hogging at the
+/// wall), `.moment` the largest in size (the same), `.shear` 5wL/8,
+/// `.moment_b` 0 at the prop; the wall's `.mz` = wL²/8; the prop turns
+/// wL³/(48EI) = 0.001 rad (from memory); a field of a
+/// beam on a plain part is refused when the file is checked.
+#[test]
+fn checks_read_a_beams_moments_and_its_nodes_rotations() {
+    let text = format!(
+        "{HEAD}node a at (0 m, 0 m)\nnode b at (6 m, 0 m)\nfix a\npin b\n{}load g = (0 kN/m, -10 kN/m)\n\
+         check \"wall moment\" : -g.moment_a <= 45.0001 kN*m\n\
+         check \"largest\" : abs(g.moment) <= 45.0001 kN*m\n\
+         check \"prop moment\" : abs(g.moment_b) <= 1 N*m\n\
+         check \"shear\" : abs(g.shear) <= 37.5001 kN\n\
+         check \"held\" : a.mz >= 44.9999 kN*m\n\
+         check \"turns\" : b.rotation >= 0.0009999\n\
+         check \"sags\" : g.deflection <= 0 m\n",
+        beam("g", "a, b", "")
+    );
+    let (model, s) = solve(&text);
+    let checks = tandem::checks::evaluate(&model, &s).expect("checks evaluate");
+    for o in &checks.outcomes {
+        assert!(
+            o.pass,
+            "{} fails: {:?} against {:?}",
+            o.label, o.demand, o.capacity
+        );
+    }
+    assert_eq!(checks.outcomes.len(), 7);
+    // tight the other way: each bound just under the closed form fails
+    let tight = text
+        .replace("45.0001 kN*m\n", "44.9999 kN*m\n")
+        .replace("37.5001 kN", "37.4999 kN");
+    let (model, s) = solve(&tight);
+    let checks = tandem::checks::evaluate(&model, &s).expect("checks evaluate");
+    let failed: Vec<&str> = checks
+        .outcomes
+        .iter()
+        .filter(|o| !o.pass)
+        .map(|o| o.label.as_str())
+        .collect();
+    assert_eq!(failed, ["wall moment", "largest", "shear"]);
+    // a beam's field on a part is an error, with the part's fields listed
+    let on_part =
+        "material s { E = 200 GPa }\nnode a at (0 m, 0 m)\nnode b at (2 m, 0 m)\nfix a, b\n\
+                   part p { material = s; area = 100 mm^2; ends = a, b }\n\
+                   check \"m\" : p.moment <= 1 kN*m\n";
+    let src = tandem::source::Source::new("p.tandem", on_part.to_string());
+    assert!(tandem::check(&src).is_err());
+}

@@ -31,6 +31,9 @@ impl Scope for CheckScope<'_, '_> {
 
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
         let (on, fields) = match self.lets.names.get(&object.name) {
+            Some((NameKind::Part, _, _)) if self.lets.names.is_beam(&object.name) => {
+                ("beam", crate::model::results::BEAM_RESULTS)
+            }
             Some((NameKind::Part, _, _)) => ("part", crate::model::results::PART_RESULTS),
             Some((NameKind::Node, _, _)) => (
                 "node",

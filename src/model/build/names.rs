@@ -75,6 +75,12 @@ impl<'a> Names<'a> {
         Some((kind, self.number[i as usize] as usize, id.span))
     }
 
+    /// Whether `name` is declared by a `beam`.
+    pub(super) fn is_beam(&self, name: &str) -> bool {
+        self.position(name)
+            .is_some_and(|i| matches!(self.file.decls[i as usize], ast::Decl::Beam(_)))
+    }
+
     /// The registered names of `kind`, in file order (a duplicate is left
     /// out: only its first declaration is registered).
     pub(super) fn of_kind(&self, kind: NameKind) -> impl Iterator<Item = &'a str> + '_ {
