@@ -98,6 +98,34 @@ type Generator = fn(usize) -> String;
 #[global_allocator]
 static ALLOC: tikv_jemallocator::Jemalloc = tikv_jemallocator::Jemalloc;
 
+/// A long continuous beam on springs: `n` beams in a line, each node held
+/// up by a spring to the ground, a uniform load along every beam.
+fn beams(n: usize) -> String {
+    let mut s = String::with_capacity(n * 200);
+    s.push_str("material s { E = 200 GPa }\n");
+    for i in 0..=n {
+        s.push_str(&format!(
+            "node n{i} at ({i} m, 0 m)\nnode g{i} at ({i} m, -1 m)\nfix g{i}\n"
+        ));
+        s.push_str(&format!(
+            "part k{i} {{ stiffness = 5000 kN/m; ends = g{i}, n{i} }}\n"
+        ));
+    }
+    s.push_str("fix n0 x\n");
+    for i in 0..n {
+        s.push_str(&format!(
+            "beam b{i} {{ material = s; section = rect(b = 200 mm, h = 400 mm); ends = n{i}, n{} }}\n",
+            i + 1
+        ));
+    }
+    s.push_str("case dead {\n");
+    for i in 0..n {
+        s.push_str(&format!("  load b{i} = (0 kN/m, -5 kN/m)\n"));
+    }
+    s.push_str("}\n");
+    s
+}
+
 fn peak_rss_mib() -> f64 {
     std::fs::read_to_string("/proc/self/status")
         .ok()
@@ -116,15 +144,19 @@ fn main() {
         .skip(1)
         .find_map(|a| a.parse().ok())
         .unwrap_or(1_000_000);
-    // `chain`, `bundle` or `grid` among the arguments runs that kind only.
+    // `chain`, `bundle`, `grid` or `beams` among the arguments runs that kind only.
     let only: Vec<String> = std::env::args()
         .skip(1)
-        .filter(|a| ["chain", "bundle", "grid"].contains(&a.as_str()))
+        .filter(|a| ["chain", "bundle", "grid", "beams"].contains(&a.as_str()))
         .collect();
     println!("| assembly | parts | unknowns | text MiB | parse s | check s | solve s | peak RSS MiB | report s | report MiB | peak after report MiB |");
     println!("|---|---|---|---|---|---|---|---|---|---|---|");
-    let kinds: [(&str, Generator); 3] =
-        [("chain", chain), ("bundle", bundle), ("plane grid", grid)];
+    let kinds: [(&str, Generator); 4] = [
+        ("chain", chain),
+        ("bundle", bundle),
+        ("plane grid", grid),
+        ("beams on springs", beams),
+    ];
     for (name, make) in kinds {
         if !only.is_empty() && !only.iter().any(|o| name.contains(o.as_str())) {
             continue;
@@ -167,7 +199,15 @@ fn main() {
             }
             // As `tandem::check` does, the syntax tree goes once the model is built.
             tandem::release(file);
-            let sol = match tandem::solve::solve(&model) {
+            // beams are solved by the library's bending solve; the
+            // commands' report does not show bending yet, so none is timed
+            let bending = model.has_bending();
+            let solved = if bending {
+                tandem::solve::solve_bending(&model)
+            } else {
+                tandem::solve::solve(&model)
+            };
+            let sol = match solved {
                 Ok(s) => s,
                 Err(e) => {
                     eprintln!("{e}");
@@ -185,6 +225,16 @@ fn main() {
             }
             let unknowns = sol.unknowns;
             let rss_solved = peak_rss_mib();
+            if bending {
+                println!(
+                    "| {name} | {n} | {unknowns} | {mib:.1} | {:.3} | {:.3} | {:.3} | {rss_solved:.0} | — | — | — |",
+                    (tp - t0).as_secs_f64(),
+                    (t1 - tp).as_secs_f64(),
+                    (t2 - t1).as_secs_f64(),
+                );
+                n *= 10;
+                continue;
+            }
             // The full report: checks, every equation.
             let (report, report_mib) = {
                 let checks = tandem::checks::evaluate(&model, &sol).unwrap_or_default();

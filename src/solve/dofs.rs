@@ -382,8 +382,49 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
         }
         reduce(body);
     }
+    // Rotations: a node gets one where a beam end is rigidly joined. Its
+    // component comes after every translation; its unknown is numbered
+    // with the node's translations, so that the factorisation of a long
+    // beam stays banded.
+    let mut has_rot = vec![false; nn];
+    for p in &model.parts {
+        if let Some(b) = &p.bend {
+            for k in 0..2 {
+                if !b.hinge[k] {
+                    has_rot[p.ends[k]] = true;
+                }
+            }
+        }
+    }
+    let mut rot = vec![None; nn];
+    let mut ncomp = nn * ndof;
+    for i in 0..nn {
+        if !has_rot[i] {
+            continue;
+        }
+        if let Some(ri) = rigid_of[i] {
+            return Err(SolveError::BendingNotYet {
+                what: format!(
+                    "a beam rigidly joined to rigid body `{}`",
+                    model.rigids[ri].name
+                ),
+                is: "is",
+                span: model.nodes[i].span,
+            });
+        }
+        rot[i] = Some(ncomp);
+        ncomp += 1;
+    }
+    let number_rotation = |i: usize, terms: &mut Vec<Terms>, unknowns: &mut Vec<Unknown>| {
+        if let Some(c) = rot[i] {
+            if !model.nodes[i].fixed_rotation {
+                terms[c].push(unknowns.len(), 1.0);
+                unknowns.push(Unknown::Rotation(i));
+            }
+        }
+    };
     // Number the unknowns: plain nodes in node order, each body at its first node.
-    let mut terms = vec![Terms::default(); nn * ndof];
+    let mut terms = vec![Terms::default(); ncomp];
     let mut unknowns = Vec::new();
     let mut body_done = vec![false; bodies.len()];
     for i in 0..nn {
@@ -395,6 +436,7 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
                         unknowns.push(Unknown::Node(i, d));
                     }
                 }
+                number_rotation(i, &mut terms, &mut unknowns);
             }
             Some(b) => {
                 let b = b as usize;
@@ -423,43 +465,13 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
                         }
                     }
                 }
-            }
-        }
-    }
-    // Rotations: a node gets one where a beam end is rigidly joined.
-    let mut has_rot = vec![false; nn];
-    for p in &model.parts {
-        if let Some(b) = &p.bend {
-            for k in 0..2 {
-                if !b.hinge[k] {
-                    has_rot[p.ends[k]] = true;
+                // tied nodes keep rotations of their own
+                let members: Vec<usize> = body.members.iter().map(|m| m.0).collect();
+                for m in members {
+                    number_rotation(m, &mut terms, &mut unknowns);
                 }
             }
         }
-    }
-    let mut rot = vec![None; nn];
-    let mut ncomp = nn * ndof;
-    for i in 0..nn {
-        if !has_rot[i] {
-            continue;
-        }
-        if let Some(ri) = rigid_of[i] {
-            return Err(SolveError::BendingNotYet {
-                what: format!(
-                    "a beam rigidly joined to rigid body `{}`",
-                    model.rigids[ri].name
-                ),
-                is: "is",
-                span: model.nodes[i].span,
-            });
-        }
-        rot[i] = Some(ncomp);
-        terms.push(Terms::default());
-        if !model.nodes[i].fixed_rotation {
-            terms[ncomp].push(unknowns.len(), 1.0);
-            unknowns.push(Unknown::Rotation(i));
-        }
-        ncomp += 1;
     }
     Ok(DofMap {
         ndof,
