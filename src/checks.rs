@@ -462,13 +462,34 @@ pub fn evaluate_state(
             continue;
         }
         for (k, result) in solution.combinations.iter().enumerate() {
-            let sigma = result.parts[pi].stress.map_or(0.0, |s| s.value);
-            let (demand, limit, sense) = if sigma >= 0.0 {
-                (sigma, tension, "tension")
-            } else {
-                (-sigma, compression, "compression")
+            // a beam has two extreme fibres, N/A + M·c/I and N/A − M·c/I,
+            // each against the allowable of its own sense; the one nearer
+            // its allowable governs
+            let fibres = match (&part.bend, part.area()) {
+                (Some(bend), Some(area)) => {
+                    let axial = result.parts[pi].force.value / area.value;
+                    let bending = result
+                        .beams
+                        .binary_search_by_key(&pi, |b| b.part)
+                        .map_or(0.0, |b| {
+                            result.beams[b].moment_max.0.abs() * bend.fibre / bend.inertia
+                        });
+                    vec![axial + bending, axial - bending]
+                }
+                _ => vec![result.parts[pi].stress.map_or(0.0, |s| s.value)],
             };
-            let Some(limit) = limit else {
+            let governing = fibres
+                .iter()
+                .filter_map(|&sigma| {
+                    let (demand, limit, sense) = if sigma >= 0.0 {
+                        (sigma, tension, "tension")
+                    } else {
+                        (-sigma, compression, "compression")
+                    };
+                    limit.map(|l| (demand, l, sense))
+                })
+                .max_by(|a, b| (a.0 / a.1.value).total_cmp(&(b.0 / b.1.value)));
+            let Some((demand, limit, sense)) = governing else {
                 continue;
             };
             out.outcomes.push(outcome(
