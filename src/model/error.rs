@@ -235,6 +235,19 @@ pub enum ModelError {
         span: Span,
     },
 
+    #[error("{what} at `{node}` needs a beam rigidly joined there")]
+    #[diagnostic(
+        code(tandem::model::no_rotation),
+        help("only a node a beam frames into without a hinge turns and carries a moment; join a beam at `{node}`, or load the node with a force")
+    )]
+    NoRotation {
+        /// "a moment", "a prescribed rotation".
+        what: &'static str,
+        node: String,
+        #[label("no beam is rigidly joined at `{node}`")]
+        span: Span,
+    },
+
     #[error("a distributed load needs a beam; `{part}` is a pin-ended part")]
     #[diagnostic(
         code(tandem::model::distributed_on_part),

@@ -616,7 +616,7 @@ fn bending_is_refused_by_the_solver_not_dropped() {
         );
         assert!(out.stdout.is_empty(), "{cmd:?} printed results");
     }
-    // a moment alone (no beam) is refused the same way
+    // a moment at a node no beam frames into is an error of the file
     let only_moment = dir.path().join("moment.tandem");
     std::fs::write(
         &only_moment,
@@ -624,7 +624,8 @@ fn bending_is_refused_by_the_solver_not_dropped() {
          part p { material = s; area = 100 mm^2; ends = a, b }\nfix b y\nmoment b = 1 kN*m\n",
     )
     .expect("write");
-    let out = run(&["solve", only_moment.to_str().expect("utf-8")]);
+    let out = run(&["check", only_moment.to_str().expect("utf-8")]);
     assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("a moment is checked but not yet solved"));
+    assert!(String::from_utf8_lossy(&out.stderr)
+        .contains("a moment at `b` needs a beam rigidly joined there"));
 }

@@ -18,6 +18,12 @@ impl InCase<'_, '_, '_> {
         b.ok(typed(e, dim, || what.to_string(), self.scope))
     }
 
+    /// Whether a beam end is rigidly joined at node `i` (so it turns and
+    /// carries a moment).
+    fn turns(&self, i: usize) -> bool {
+        self.built.turns[i]
+    }
+
     fn part_of(&self, id: &Ident, b: &mut Builder) -> Option<usize> {
         let i = b.ok(self.names.resolve(id, NameKind::Part))?;
         place(self.built.part_at, i)
@@ -305,6 +311,14 @@ impl Builder {
         let Some(i) = self.ok(c.names.resolve(node, NameKind::Node)) else {
             return;
         };
+        if !c.turns(i) {
+            self.errors.push(ModelError::NoRotation {
+                what: "a moment",
+                node: node.name.to_string(),
+                span,
+            });
+            return;
+        }
         let what = format!("the moment at `{}`", node.name);
         let torque = Dimension::FORCE.mul(Dimension::LENGTH);
         if let Some(q) = c.typed(value, torque, &what, self) {
@@ -435,6 +449,14 @@ impl Builder {
             (Kind::Axial, None) | (Kind::Plane, Some((Axis::X, _))) => 0,
             (Kind::Plane, Some((Axis::Y, _))) => 1,
             (Kind::Plane, Some((Axis::Rotation, _))) => {
+                if !c.turns(i) {
+                    self.errors.push(ModelError::NoRotation {
+                        what: "a prescribed rotation",
+                        node: node.name.to_string(),
+                        span,
+                    });
+                    return;
+                }
                 if !c.built.nodes[i].fixed_rotation {
                     self.errors.push(ModelError::SettleFree {
                         node: node.name.to_string(),

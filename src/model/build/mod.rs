@@ -114,6 +114,9 @@ struct Built<'m> {
     part_at: &'m [Option<usize>],
     nodes: &'m [Node],
     kind: Kind,
+    /// Per node: a beam end is rigidly joined there (it turns and carries
+    /// a moment).
+    turns: &'m [bool],
 }
 
 /// The materials that built, and their places (see [`places`]).
@@ -229,12 +232,23 @@ impl Builder {
             parts.iter().map(|p| p.name.as_str()),
         );
         let (rigids, ties) = self.rigids_and_ties(file, &names, kind, &nodes);
+        let mut turns = vec![false; nodes.len()];
+        for p in &parts {
+            if let Some(b) = &p.bend {
+                for k in 0..2 {
+                    if !b.hinge[k] {
+                        turns[p.ends[k]] = true;
+                    }
+                }
+            }
+        }
         let built = Built {
             materials: &materials,
             parts: &parts,
             part_at: &part_at,
             nodes: &nodes,
             kind,
+            turns: &turns,
         };
         let cases = self.cases(file, &scope, &names, built);
         let combinations = self.combinations(file, &names, &cases);
