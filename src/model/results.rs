@@ -20,17 +20,10 @@ pub const PART_RESULTS: &[(&str, Dimension)] = &[
 /// A moment's dimension, force times length.
 const MOMENT: Dimension = Dimension::new(2, 1, -2, 0);
 
-/// A beam's results: a part's, and its bending (moments positive where the
-/// fibre on the beam's right-hand side, looking from end A to B, is in
-/// tension: sagging for a beam drawn left to right).
-pub const BEAM_RESULTS: &[(&str, Dimension)] = &[
-    ("force", Dimension::FORCE),
-    ("stress", Dimension::PRESSURE),
-    ("strain", Dimension::NONE),
-    ("elongation", Dimension::LENGTH),
-    ("length", Dimension::LENGTH),
-    ("euler_load", Dimension::FORCE),
-    ("slenderness", Dimension::NONE),
+/// A beam's results beyond a part's ([`PART_RESULTS`]): its bending
+/// (moments positive where the fibre on the beam's right-hand side, looking
+/// from end A to B, is in tension: sagging for a beam drawn left to right).
+pub const BENDING_RESULTS: &[(&str, Dimension)] = &[
     ("moment_a", MOMENT),
     ("moment_b", MOMENT),
     ("moment", MOMENT),

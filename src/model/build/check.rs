@@ -31,16 +31,18 @@ impl Scope for CheckScope<'_, '_> {
 
     fn field(&self, object: &Ident, field: &Ident) -> Result<Quantity, ModelError> {
         let (on, fields) = match self.lets.names.get(&object.name) {
-            Some((NameKind::Part, _, _)) if self.lets.names.is_beam(&object.name) => {
-                ("beam", crate::model::results::BEAM_RESULTS)
-            }
-            Some((NameKind::Part, _, _)) => ("part", crate::model::results::PART_RESULTS),
+            Some((NameKind::Part, _, _)) if self.lets.names.is_beam(&object.name) => (
+                "beam",
+                crate::model::results::PART_RESULTS
+                    .iter()
+                    .chain(crate::model::results::BENDING_RESULTS)
+                    .copied()
+                    .collect(),
+            ),
+            Some((NameKind::Part, _, _)) => ("part", crate::model::results::PART_RESULTS.to_vec()),
             Some((NameKind::Node, _, _)) => (
                 "node",
-                match self.kind {
-                    Kind::Axial => crate::model::results::AXIAL_NODE_RESULTS,
-                    Kind::Plane => crate::model::results::PLANE_NODE_RESULTS,
-                },
+                crate::model::results::node_results(self.kind).to_vec(),
             ),
             Some((k, _, _)) => {
                 return Err(ModelError::WrongKind {
