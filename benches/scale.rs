@@ -199,14 +199,9 @@ fn main() {
             }
             // As `tandem::check` does, the syntax tree goes once the model is built.
             tandem::release(file);
-            // beams are solved by the library's bending solve; the
-            // commands' report does not show bending yet, so none is timed
+            // the report of beams is not timed yet
             let bending = model.has_bending();
-            let solved = if bending {
-                tandem::solve::solve_bending(&model)
-            } else {
-                tandem::solve::solve(&model)
-            };
+            let solved = tandem::solve::solve(&model);
             let sol = match solved {
                 Ok(s) => s,
                 Err(e) => {

@@ -306,16 +306,11 @@ impl Scope for ResultScope<'_> {
                     }
                 }
                 "moment_a" | "moment_b" | "moment" | "shear" | "deflection" => {
-                    let b = self
-                        .result
-                        .beams
-                        .binary_search_by_key(&i, |b| b.part)
-                        .map(|k| &self.result.beams[k])
-                        .map_err(|_| ModelError::poisoned())?;
-                    let moment = Dimension::FORCE.mul(Dimension::LENGTH);
+                    let b = self.result.beam(i).ok_or_else(ModelError::poisoned)?;
+                    let moment = Dimension::MOMENT;
                     match field.name.as_str() {
-                        "moment_a" => Quantity::new(b.moment_at(0.0), moment),
-                        "moment_b" => Quantity::new(b.end_moments[1], moment),
+                        "moment_a" => Quantity::new(b.end_moments_along()[0], moment),
+                        "moment_b" => Quantity::new(b.end_moments_along()[1], moment),
                         "moment" => Quantity::new(b.moment_max.0, moment),
                         "shear" => Quantity::new(b.shear_max, Dimension::FORCE),
                         _ => Quantity::new(b.deflection_max.0, Dimension::LENGTH),
@@ -336,9 +331,7 @@ impl Scope for ResultScope<'_> {
                 (Kind::Plane, "dy") => Quantity::new(n.displacement[1].value, Dimension::LENGTH),
                 (Kind::Plane, "ry") => Quantity::new(n.reaction[1].value, Dimension::FORCE),
                 (Kind::Plane, "rotation") => Quantity::number(n.rotation),
-                (Kind::Plane, "mz") => {
-                    Quantity::new(n.reaction_moment, Dimension::FORCE.mul(Dimension::LENGTH))
-                }
+                (Kind::Plane, "mz") => Quantity::new(n.reaction_moment, Dimension::MOMENT),
                 _ => Quantity::new(n.reaction[0].value, Dimension::FORCE),
             });
         }

@@ -513,6 +513,13 @@ impl Model {
                 .any(|c| !c.moments.is_empty() || !c.distributed.is_empty() || !c.twists.is_empty())
     }
 
+    /// For each node, whether it has a rotation: some beam end is rigidly
+    /// joined to it (not through a `hinge`).
+    #[must_use]
+    pub fn rotating_nodes(&self) -> Vec<bool> {
+        rotating_nodes(&self.parts, self.nodes.len())
+    }
+
     /// A node by name, by a scan: for a single lookup, not in a loop.
     #[must_use]
     pub fn node_index(&self, name: &str) -> Option<usize> {
@@ -527,6 +534,22 @@ impl Model {
 }
 
 pub(crate) use crate::words::did_you_mean;
+
+/// For each of `nodes` nodes, whether some beam end of `parts` is rigidly
+/// joined to it (not through a `hinge`), so that it turns.
+pub(crate) fn rotating_nodes(parts: &[Part], nodes: usize) -> Vec<bool> {
+    let mut has = vec![false; nodes];
+    for p in parts {
+        if let Some(b) = &p.bend {
+            for k in 0..2 {
+                if !b.hinge[k] {
+                    has[p.ends[k]] = true;
+                }
+            }
+        }
+    }
+    has
+}
 
 /// Names a check may use for the load factors of its combination's
 /// capacity path: λ at first yield and at the plastic limit.

@@ -17,16 +17,13 @@ pub const PART_RESULTS: &[(&str, Dimension)] = &[
     ("slenderness", Dimension::NONE),
 ];
 
-/// A moment's dimension, force times length.
-const MOMENT: Dimension = Dimension::new(2, 1, -2, 0);
-
 /// A beam's results beyond a part's ([`PART_RESULTS`]): its bending
 /// (moments positive where the fibre on the beam's right-hand side, looking
 /// from end A to B, is in tension: sagging for a beam drawn left to right).
 pub const BENDING_RESULTS: &[(&str, Dimension)] = &[
-    ("moment_a", MOMENT),
-    ("moment_b", MOMENT),
-    ("moment", MOMENT),
+    ("moment_a", Dimension::MOMENT),
+    ("moment_b", Dimension::MOMENT),
+    ("moment", Dimension::MOMENT),
     ("shear", Dimension::FORCE),
     ("deflection", Dimension::LENGTH),
 ];
@@ -44,7 +41,7 @@ pub const PLANE_NODE_RESULTS: &[(&str, Dimension)] = &[
     ("rx", Dimension::FORCE),
     ("ry", Dimension::FORCE),
     ("rotation", Dimension::NONE),
-    ("mz", MOMENT),
+    ("mz", Dimension::MOMENT),
 ];
 
 /// A node's results in a model of this kind.

@@ -34,6 +34,14 @@ impl Shown {
         }
     }
 
+    /// A product such as `kip·ft` from its parts.
+    fn product(a: &Shown, b: &Shown) -> Self {
+        Self {
+            name: format!("{}·{}", a.name, b.name),
+            factor: a.factor * b.factor,
+        }
+    }
+
     fn squared(a: &Shown) -> Self {
         Self {
             name: format!("{}²", a.name),
@@ -59,6 +67,9 @@ pub struct Display {
     pub area: Shown,
     pub stiffness: Shown,
     pub temperature: Shown,
+    /// Bending moments: the force unit times the length unit (`kip·ft`,
+    /// `kN·m`) unless a moment unit is listed.
+    pub moment: Shown,
     /// Significant figures.
     pub digits: usize,
 }
@@ -79,6 +90,7 @@ impl Display {
             stiffness: Shown::ratio(&Shown::of("kip"), &small),
             small,
             temperature: Shown::named("°F", "degF"),
+            moment: Shown::product(&Shown::of("kip"), &Shown::of("ft")),
             digits,
         }
     }
@@ -94,6 +106,7 @@ impl Display {
             stiffness: Shown::ratio(&Shown::of("kN"), &small),
             small,
             temperature: Shown::named("°C", "degC"),
+            moment: Shown::product(&Shown::of("kN"), &Shown::of("m")),
             digits,
         }
     }
@@ -126,6 +139,10 @@ impl Display {
                 d.length = d.small.clone();
             }
         }
+        if !matches!(choice, UnitChoice::List(l) if l.iter().any(|(_, q)| q.dim == Dimension::MOMENT))
+        {
+            d.moment = Shown::product(&d.force, &d.length);
+        }
         d
     }
 
@@ -154,6 +171,8 @@ impl Display {
                         .filter(|(n, _)| {
                             lookup(n).is_some_and(|u| u.dim == dim)
                                 && US.contains(&n.as_str()) == system_us
+                                // GPa is written for moduli; stresses read in MPa
+                                && n != "GPa"
                         })
                         .max_by_key(|(_, c)| *c)
                         .map(|(n, _)| Shown::of(n))
@@ -198,6 +217,7 @@ impl Display {
                             d.length = s;
                         }
                         Dimension::AREA => d.area = s,
+                        Dimension::MOMENT => d.moment = s,
                         Dimension::STIFFNESS => d.stiffness = s,
                         Dimension::TEMPERATURE => {
                             d.temperature = match s.name.as_str() {
@@ -223,6 +243,7 @@ impl Display {
             Dimension::AREA => &self.area,
             Dimension::STIFFNESS => &self.stiffness,
             Dimension::TEMPERATURE => &self.temperature,
+            Dimension::MOMENT => &self.moment,
             _ => return None,
         })
     }
@@ -295,6 +316,8 @@ pub struct Scales {
     /// Displacements and elongations.
     pub small: f64,
     pub strain: f64,
+    /// Bending moments.
+    pub moment: f64,
 }
 
 impl Scales {
@@ -314,6 +337,12 @@ impl Scales {
             for d in 0..2 {
                 s.small = s.small.max(n.displacement[d].value.abs());
             }
+            s.moment = s.moment.max(n.reaction_moment.abs());
+        }
+        for b in &r.beams {
+            s.moment = s.moment.max(b.moment_max.0.abs());
+            s.force = s.force.max(b.shear_max.abs());
+            s.small = s.small.max(b.deflection_max.0.abs());
         }
         s
     }
@@ -333,6 +362,10 @@ impl Scales {
     #[must_use]
     pub fn strain(&self, v: f64) -> f64 {
         chop(v, self.strain)
+    }
+    #[must_use]
+    pub fn moment(&self, v: f64) -> f64 {
+        chop(v, self.moment)
     }
 }
 

@@ -75,16 +75,62 @@ struct Parts<'a>(&'a Model, &'a CombinationResult);
 #[derive(Serialize, JsonSchema)]
 struct PartRecord<'a> {
     name: &'a str,
+    /// `part` (pin-ended: force along it only) or `beam` (it bends too).
+    kind: &'static str,
+    /// Axial force, tension positive.
     force_N: f64,
     #[serde(skip_serializing_if = "Option::is_none")]
     stress_Pa: Option<f64>,
     /// Total: elongation over length (free elongation and gap included).
     strain: f64,
-    /// From force alone: σ/E (members only).
+    /// From force alone: σ/E (members only; a beam's from its axial force, N/(E·A)).
     #[serde(skip_serializing_if = "Option::is_none")]
     strain_from_force: Option<f64>,
     elongation_m: f64,
     state: &'static str,
+    #[serde(flatten, skip_serializing_if = "Option::is_none")]
+    bending: Option<BeamRecord>,
+}
+
+/// A beam's bending. Moments are those along the beam (as its moment
+/// diagram and the checks' `.moment_a`, `.moment_b` read them): positive
+/// where the fibre on the right of the direction from end A to end B is in
+/// tension, sagging for a beam drawn left to right.
+#[derive(Serialize, JsonSchema)]
+struct BeamRecord {
+    moment_a_Nm: f64,
+    moment_b_Nm: f64,
+    /// The moment of largest magnitude along the beam.
+    moment_max_Nm: f64,
+    /// Where it is, from end A.
+    moment_max_at_m: f64,
+    /// The shear along the beam at each end, V = dM/dx (the end force
+    /// across the beam at A, and minus it at B; across is a quarter turn
+    /// counter-clockwise from the direction A to B).
+    shear_a_N: f64,
+    shear_b_N: f64,
+    /// The shear of largest magnitude along the beam.
+    shear_max_N: f64,
+    /// The largest deflection across the chord between the displaced ends.
+    deflection_max_m: f64,
+    /// Where it is, from end A.
+    deflection_max_at_m: f64,
+}
+
+impl BeamRecord {
+    fn of(b: &crate::solve::BeamResult) -> Self {
+        BeamRecord {
+            moment_a_Nm: b.end_moments_along()[0],
+            moment_b_Nm: b.end_moments_along()[1],
+            moment_max_Nm: b.moment_max.0,
+            moment_max_at_m: b.moment_max.1,
+            shear_a_N: b.end_shears_along()[0],
+            shear_b_N: b.end_shears_along()[1],
+            shear_max_N: b.shear_max,
+            deflection_max_m: b.deflection_max.0,
+            deflection_max_at_m: b.deflection_max.1,
+        }
+    }
 }
 
 impl Serialize for Parts<'_> {
@@ -94,14 +140,17 @@ impl Serialize for Parts<'_> {
                 .parts
                 .iter()
                 .zip(&self.1.parts)
-                .map(|(p, pr)| PartRecord {
+                .enumerate()
+                .map(|(i, (p, pr))| PartRecord {
                     name: &p.name,
+                    kind: if p.bend.is_some() { "beam" } else { "part" },
                     force_N: pr.force.value,
                     stress_Pa: pr.stress.map(|s| s.value),
                     strain: pr.strain,
                     strain_from_force: super::text::force_strain(self.0, p, pr),
                     elongation_m: pr.elongation.value,
                     state: pr.state.name(),
+                    bending: self.1.beam(i).map(BeamRecord::of),
                 }),
         )
     }
@@ -150,6 +199,12 @@ struct PlaneNode<'a> {
     name: &'a str,
     displacement_m: [f64; 2],
     reaction_N: [f64; 2],
+    /// Counter-clockwise, where a beam end is rigidly joined.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    rotation_rad: Option<f64>,
+    /// Counter-clockwise, where that rotation is held.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    reaction_moment_Nm: Option<f64>,
 }
 
 impl Serialize for Nodes<'_> {
@@ -157,12 +212,15 @@ impl Serialize for Nodes<'_> {
         use serde::ser::SerializeSeq;
         let (model, r) = (self.0, self.1);
         let mut seq = s.serialize_seq(Some(model.nodes.len()))?;
-        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+        let turns = model.rotating_nodes();
+        for ((n, nr), turns) in model.nodes.iter().zip(&r.nodes).zip(turns) {
             if model.kind == Kind::Plane {
                 seq.serialize_element(&PlaneNode {
                     name: &n.name,
                     displacement_m: [nr.displacement[0].value, nr.displacement[1].value],
                     reaction_N: [nr.reaction[0].value, nr.reaction[1].value],
+                    rotation_rad: turns.then_some(nr.rotation),
+                    reaction_moment_Nm: (turns && n.fixed_rotation).then_some(nr.reaction_moment),
                 })?;
             } else {
                 seq.serialize_element(&AxialNode {

@@ -75,13 +75,18 @@ pub fn combination_text(model: &Model, index: usize) -> String {
 }
 
 /// The text `tandem solve` prints.
-/// The strain from force alone, σ/E, of a member (springs have none).
+/// The strain from force alone, σ/E, of a member (springs have none); a
+/// beam's from its axial force, N/(E·A).
 pub fn force_strain(
     model: &Model,
     p: &crate::model::Part,
     pr: &crate::solve::PartResult,
 ) -> Option<f64> {
     let e = model.materials[p.material()?].e.value;
+    if p.bend.is_some() {
+        // a beam's stress is its extreme fibre's: the force's strain is N/(E·A)
+        return Some(pr.force.value / p.area()?.value / e);
+    }
     Some(pr.stress?.value / e)
 }
 
@@ -157,6 +162,12 @@ fn combination_tables(
         ]);
     }
     out.push_str(&aligned(&rows, &[0, 6], "  "));
+    if !r.beams.is_empty() {
+        out.push('\n');
+        out.push_str(&aligned(&beam_rows(model, r, d, &sc), &[0], "  "));
+    }
+    let turns = model.rotating_nodes();
+    let any_turns = turns.contains(&true);
     let mut rows = match model.kind {
         Kind::Axial => vec![vec![
             "node".to_string(),
@@ -171,7 +182,11 @@ fn combination_tables(
             format!("ry ({})", d.force.name),
         ]],
     };
-    for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+    if any_turns {
+        rows[0].push("rotation (rad)".into());
+        rows[0].push(format!("mz ({})", d.moment.name));
+    }
+    for ((n, nr), turns) in model.nodes.iter().zip(&r.nodes).zip(&turns) {
         let react = |k: usize| {
             if n.fixed[k] {
                 number(d.force.value(sc.force(nr.reaction[k].value)), d.digits)
@@ -193,6 +208,19 @@ fn combination_tables(
         } else {
             row.push(react(0));
         }
+        if any_turns {
+            let dash = || "—".to_string();
+            row.push(if *turns {
+                number(nr.rotation, d.digits)
+            } else {
+                dash()
+            });
+            row.push(if *turns && n.fixed_rotation {
+                number(d.moment.value(sc.moment(nr.reaction_moment)), d.digits)
+            } else {
+                dash()
+            });
+        }
         rows.push(row);
     }
     out.push('\n');
@@ -213,6 +241,41 @@ fn combination_tables(
         number(d.force.value(r.force_scale.value), d.digits),
         d.force.name
     ));
+}
+
+/// The beams' table: moments at the ends and the largest along the span
+/// (sagging positive), the largest shear and deflection, and where.
+pub(crate) fn beam_rows(
+    model: &Model,
+    r: &crate::solve::CombinationResult,
+    d: &Display,
+    sc: &Scales,
+) -> Vec<Vec<String>> {
+    let mut rows = vec![vec![
+        "beam".to_string(),
+        format!("M at A ({})", d.moment.name),
+        format!("M at B ({})", d.moment.name),
+        format!("largest M ({})", d.moment.name),
+        format!("at ({})", d.length.name),
+        format!("largest V ({})", d.force.name),
+        format!("deflection ({})", d.small.name),
+        format!("at ({})", d.length.name),
+    ]];
+    for b in &r.beams {
+        let m = |v: f64| number(d.moment.value(sc.moment(v)), d.digits);
+        let [ma, mb] = b.end_moments_along();
+        rows.push(vec![
+            model.parts[b.part].name.to_string(),
+            m(ma),
+            m(mb),
+            m(b.moment_max.0),
+            number(d.length.value(b.moment_max.1), d.digits),
+            number(d.force.value(sc.force(b.shear_max)), d.digits),
+            number(d.small.value(sc.small(b.deflection_max.0)), d.digits),
+            number(d.length.value(b.deflection_max.1), d.digits),
+        ]);
+    }
+    rows
 }
 
 /// The load factors at first yield and at the plastic limit.

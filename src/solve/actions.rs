@@ -230,6 +230,9 @@ impl System<'_> {
                     let row = body.kin(d, px, py);
                     u0[m * nd + d] = row.iter().zip(q).map(|(a, b)| a * b).sum();
                 }
+                if let (Some(_), Some(c)) = (map.rigid_of[m], map.rot[m]) {
+                    u0[c] = q[2];
+                }
             }
         }
         // a beam's load along it, as the loads it puts on its end nodes

@@ -138,6 +138,9 @@ pub(crate) struct DofMap {
     pub rot: Vec<Option<usize>>,
     /// Node components: translations, then rotations.
     pub ncomp: usize,
+    /// Each node's rigid body, if it is one of a body's listed nodes (it
+    /// then turns with the body).
+    pub rigid_of: Vec<Option<usize>>,
 }
 
 struct UnionFind(Vec<usize>);
@@ -386,27 +389,18 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
     // component comes after every translation; its unknown is numbered
     // with the node's translations, so that the factorisation of a long
     // beam stays banded.
-    let mut has_rot = vec![false; nn];
-    for p in &model.parts {
-        if let Some(b) = &p.bend {
-            for k in 0..2 {
-                if !b.hinge[k] {
-                    has_rot[p.ends[k]] = true;
-                }
-            }
-        }
-    }
+    let has_rot = model.rotating_nodes();
     let mut rot = vec![None; nn];
     let mut ncomp = nn * ndof;
     for i in 0..nn {
         if !has_rot[i] {
             continue;
         }
-        if let Some(ri) = rigid_of[i] {
+        if let (Some(ri), true) = (rigid_of[i], model.nodes[i].fixed_rotation) {
             return Err(SolveError::BendingNotYet {
                 what: format!(
-                    "a beam rigidly joined to rigid body `{}`",
-                    model.rigids[ri].name
+                    "holding the rotation of node `{}` of rigid body `{}`",
+                    model.nodes[i].name, model.rigids[ri].name
                 ),
                 is: "is",
                 span: model.nodes[i].span,
@@ -465,10 +459,18 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
                         }
                     }
                 }
-                // tied nodes keep rotations of their own
+                // a node of a rigid body turns with it; a tied node (a pin)
+                // keeps a rotation of its own
                 let members: Vec<usize> = body.members.iter().map(|m| m.0).collect();
                 for m in members {
-                    number_rotation(m, &mut terms, &mut unknowns);
+                    match (rigid_of[m], rot[m]) {
+                        (Some(_), Some(c)) => {
+                            for (k, nv) in body.null.iter().enumerate() {
+                                terms[c].push(body.first_free + k, nv[2]);
+                            }
+                        }
+                        _ => number_rotation(m, &mut terms, &mut unknowns),
+                    }
                 }
             }
         }
@@ -482,6 +484,7 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
         unknowns,
         rot,
         ncomp,
+        rigid_of,
     })
 }
 

@@ -61,58 +61,12 @@ pub fn solve(model: &Model) -> Result<Solution, SolveError> {
     solve_with(model, MAX_TRIALS)
 }
 
-/// Beams, moments, distributed loads and prescribed rotations are read and
-/// checked by the model, but the solver does not yet carry bending: it
-/// says so (exit 2) rather than solve the assembly without them.
-fn refuse_bending(model: &Model) -> Result<(), SolveError> {
-    if let Some(p) = model.parts.iter().find(|p| p.bend.is_some()) {
-        return Err(SolveError::BendingNotYet {
-            what: format!("beam `{}`", p.name),
-            is: "is",
-            span: p.span,
-        });
-    }
-    for c in &model.cases {
-        let first = c
-            .moments
-            .first()
-            .map(|m| ("a moment", m.span))
-            .or_else(|| {
-                c.distributed
-                    .first()
-                    .map(|d| ("a distributed load", d.span))
-            })
-            .or_else(|| c.twists.first().map(|t| ("a prescribed rotation", t.span)));
-        if let Some((what, span)) = first {
-            return Err(SolveError::BendingNotYet {
-                what: what.into(),
-                is: "is",
-                span,
-            });
-        }
-    }
-    Ok(())
-}
-
 /// [`solve`] with a given limit on active-set trials per combination.
 ///
 /// # Errors
 /// As [`solve`].
 pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
-    refuse_bending(model)?;
     solve_any(model, max_trials)
-}
-
-/// The solve of an assembly with beams (members that bend): end moments,
-/// shears, moments and deflections along each beam, node rotations and
-/// reaction moments. Not yet used by the commands, whose reports and JSON
-/// do not yet show bending; the library's tests check it against closed
-/// forms.
-///
-/// # Errors
-/// As [`solve`].
-pub fn solve_bending(model: &Model) -> Result<Solution, SolveError> {
-    solve_any(model, MAX_TRIALS)
 }
 
 fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {

@@ -173,7 +173,7 @@ pub struct BeamResult {
     /// The moment of largest magnitude along the beam (N·m) and where it
     /// is, as a distance from end A (m).
     pub moment_max: (f64, f64),
-    /// The shear of largest magnitude (N).
+    /// The shear along the beam (V = dM/dx) of largest magnitude (N).
     pub shear_max: f64,
     /// The largest deflection across the chord between the deflected ends
     /// (m, along local y) and where it is (m from end A).
@@ -181,6 +181,21 @@ pub struct BeamResult {
 }
 
 impl BeamResult {
+    /// The moments at the two ends as the moment along the beam reads them
+    /// (sagging positive): `[M(0), M(L)] = [−Ma, Mb]`.
+    #[must_use]
+    pub fn end_moments_along(&self) -> [f64; 2] {
+        // `+ 0.0` keeps −0 out
+        [-self.end_moments[0] + 0.0, self.end_moments[1]]
+    }
+
+    /// The shears at the two ends as the shear along the beam reads them,
+    /// V = dM/dx: `[V(0), V(L)] = [Va, −Vb]`.
+    #[must_use]
+    pub fn end_shears_along(&self) -> [f64; 2] {
+        [self.end_shears[0], -self.end_shears[1] + 0.0]
+    }
+
     /// The moment at `x` from end A (sagging positive).
     #[must_use]
     pub fn moment_at(&self, x: f64) -> f64 {
@@ -250,6 +265,17 @@ pub struct CombinationResult {
     pub force_scale: Force,
     /// Active-set trials used (1 for a linear model).
     pub trials: usize,
+}
+
+impl CombinationResult {
+    /// The bending results of part `part`, when it is a beam.
+    #[must_use]
+    pub fn beam(&self, part: usize) -> Option<&BeamResult> {
+        self.beams
+            .binary_search_by_key(&part, |b| b.part)
+            .ok()
+            .map(|i| &self.beams[i])
+    }
 }
 
 /// Results of every combination.
@@ -387,6 +413,10 @@ pub(super) fn gather_results(
                     rq[c] += row[c] * net[m * nd + d];
                 }
             }
+            // a beam end joined to the body turns it
+            if let (Some(_), Some(c)) = (map.rigid_of[m], map.rot[m]) {
+                rq[2] += net[c];
+            }
         }
         let k = body.pivot_rows.len();
         for a in 0..k {
@@ -523,7 +553,9 @@ fn equilibrium_residual(
     // a free rotation must balance too, its moment over the model's extent
     if extent > 0.0 {
         for i in 0..nn {
-            if let (Some(c), false) = (map.rot[i], model.nodes[i].fixed_rotation) {
+            if let (Some(c), false, None) =
+                (map.rot[i], model.nodes[i].fixed_rotation, map.rigid_of[i])
+            {
                 residual = residual.max(net[c].abs() / extent);
             }
         }

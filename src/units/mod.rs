@@ -44,6 +44,8 @@ impl Dimension {
     pub const FORCE: Self = Self::new(1, 1, -2, 0);
     pub const PRESSURE: Self = Self::new(-1, 1, -2, 0);
     pub const STIFFNESS: Self = Self::new(0, 1, -2, 0);
+    /// Force times length: a bending moment.
+    pub const MOMENT: Self = Self::new(2, 1, -2, 0);
     pub const TEMPERATURE: Self = Self::new(0, 0, 0, 1);
     pub const PER_TEMPERATURE: Self = Self::new(0, 0, 0, -1);
 
@@ -67,6 +69,7 @@ impl Dimension {
             d if d == Self::AREA => "m^2".into(),
             d if d == Self::SECOND_MOMENT => "m^4".into(),
             d if d == Self::STIFFNESS => "N/m".into(),
+            d if d == Self::MOMENT => "N*m".into(),
             d if d == Self::TEMPERATURE => "K".into(),
             d if d == Self::PER_TEMPERATURE => "1/K".into(),
             d => d.to_string(),
@@ -151,7 +154,7 @@ const NAMES: &[(Dimension, &str)] = &[
     (Dimension::FORCE, "a force"),
     (Dimension::PRESSURE, "a pressure or stress"),
     (Dimension::STIFFNESS, "a force per length (stiffness)"),
-    (Dimension::new(2, 1, -2, 0), "a moment"),
+    (Dimension::MOMENT, "a moment"),
     (
         Dimension::new(-2, 1, -2, 0),
         "a force per volume (unit weight)",

@@ -1,11 +1,10 @@
-//! Members that bend, solved by `solve::solve_bending` (the commands do not
-//! yet use it: their reports and JSON do not yet show bending), against
+//! Members that bend, solved by `solve::solve`, against
 //! closed forms of beam theory. Each case names its source; the standard
 //! beam-diagram cases are as tabulated in the AISC Steel Construction
 //! Manual, Table 3-23 (from memory), and follow from Euler–Bernoulli
 //! theory by integration.
 
-use tandem::solve::{solve_bending, BeamResult, Solution};
+use tandem::solve::{BeamResult, Solution};
 
 const E: f64 = 200e9;
 // rect(b = 100 mm, h = 300 mm): I = b·h³/12
@@ -19,7 +18,7 @@ fn solve(text: &str) -> (tandem::model::Model, Solution) {
         Ok(m) => m,
         Err(e) => panic!("{}", tandem::diagnostic::render(&e, &src, 100, false)),
     };
-    let s = solve_bending(&model).unwrap_or_else(|e| panic!("{e}"));
+    let s = tandem::solve::solve(&model).unwrap_or_else(|e| panic!("{e}"));
     (model, s)
 }
 
@@ -258,19 +257,6 @@ fn flitch_beam_shares_by_flexural_stiffness() {
     );
 }
 
-/// The commands still refuse bending: `solve::solve` says so, and does
-/// not solve the assembly without it.
-#[test]
-fn the_commands_solve_still_refuses_bending() {
-    let text = format!(
-        "{HEAD}node a at (0 m, 0 m)\nnode b at (6 m, 0 m)\nfix a\n{}load b = (0 kN, -5 kN)\n",
-        beam("g", "a, b", "")
-    );
-    let src = tandem::source::Source::new("b.tandem", text);
-    let model = tandem::check(&src).expect("checks");
-    assert!(tandem::solve::solve(&model).is_err());
-}
-
 /// A member of a frame: (a, b, EA, EI or `None` for a part, [wx, wy]
 /// along it).
 type Member = (usize, usize, f64, Option<f64>, [f64; 2]);
@@ -476,7 +462,7 @@ fn random_frames_agree_with_a_dense_reference() {
                 tandem::diagnostic::render(&e, &src, 100, false)
             )
         });
-        let s = solve_bending(&model).unwrap_or_else(|e| panic!("{e}\n{}", f.text));
+        let s = tandem::solve::solve(&model).unwrap_or_else(|e| panic!("{e}\n{}", f.text));
         let want = dense(&f);
         let c = &s.combinations[0];
         let scale = want
@@ -581,4 +567,66 @@ fn a_beams_allowable_check_takes_each_fibre_against_its_own_sense() {
         -2e6 - bending,
         "fibre stress",
     );
+}
+
+/// The commands show a beam's bending: `solve` a table of it, `solve
+/// --json` the keys of the layout. A propped cantilever under a uniform
+/// load (Table 3-23, case 12): wL²/8 at the fixed end, 3wL/8 and 5wL/8 at
+/// the supports.
+#[test]
+fn the_commands_show_a_beams_bending() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let file = dir.path().join("lintel.tandem");
+    std::fs::write(
+        &file,
+        "material oak { E = 11 GPa }\nnode a at (0 m, 0 m)\nnode b at (4 m, 0 m)\npin a\nfix b\n\
+         beam lintel {\n  material = oak\n  section  = rect(b = 100 mm, h = 250 mm)\n  ends     = a, b\n}\n\
+         load lintel = (0 kN/m, -3 kN/m)\n\
+         check \"lintel moment\" : abs(lintel.moment) <= 10 kN*m\n",
+    )
+    .expect("write");
+    let path = file.to_str().expect("utf-8");
+    let (w, l) = (3e3, 4.0);
+    let out = super::common::tandem(&["solve", "--json", path]);
+    assert_eq!(out.status.code(), Some(0));
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let c = &j["combinations"][0];
+    let beam = &c["parts"][0];
+    assert_eq!(beam["kind"], "beam");
+    let num = |v: &serde_json::Value| v.as_f64().expect("number");
+    close(num(&beam["moment_a_Nm"]), 0.0, "moment at the pin");
+    close(
+        num(&beam["moment_b_Nm"]),
+        -w * l * l / 8.0,
+        "moment at the wall",
+    );
+    close(
+        num(&beam["moment_max_Nm"]),
+        -w * l * l / 8.0,
+        "largest moment",
+    );
+    close(
+        num(&beam["shear_a_N"]),
+        3.0 * w * l / 8.0,
+        "shear at the pin",
+    );
+    close(
+        num(&beam["shear_b_N"]),
+        -5.0 * w * l / 8.0,
+        "shear at the wall",
+    );
+    assert!(num(&beam["deflection_max_m"]) < 0.0);
+    let b = &c["nodes"][1];
+    close(
+        num(&b["reaction_moment_Nm"]),
+        -w * l * l / 8.0,
+        "reaction moment",
+    );
+    assert!(c["nodes"][0].get("reaction_moment_Nm").is_none());
+    assert!(c["nodes"][0].get("rotation_rad").is_some());
+    let out = super::common::tandem(&["solve", path]);
+    assert_eq!(out.status.code(), Some(0));
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(text.contains("M at A (kN·m)"), "{text}");
+    assert!(text.contains("rotation (rad)"), "{text}");
 }

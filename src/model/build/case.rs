@@ -320,7 +320,7 @@ impl Builder {
             return;
         }
         let what = format!("the moment at `{}`", node.name);
-        let torque = Dimension::FORCE.mul(Dimension::LENGTH);
+        let torque = Dimension::MOMENT;
         if let Some(q) = c.typed(value, torque, &what, self) {
             out.moments.push(NodeMoment {
                 node: i,

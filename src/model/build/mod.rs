@@ -232,16 +232,7 @@ impl Builder {
             parts.iter().map(|p| p.name.as_str()),
         );
         let (rigids, ties) = self.rigids_and_ties(file, &names, kind, &nodes);
-        let mut turns = vec![false; nodes.len()];
-        for p in &parts {
-            if let Some(b) = &p.bend {
-                for k in 0..2 {
-                    if !b.hinge[k] {
-                        turns[p.ends[k]] = true;
-                    }
-                }
-            }
-        }
+        let turns = super::rotating_nodes(&parts, nodes.len());
         let built = Built {
             materials: &materials,
             parts: &parts,
