@@ -27,8 +27,8 @@ pub use results::{
     EQUILIBRIUM_TOLERANCE,
 };
 
+pub(crate) use actions::{equivalent_loads, Actions, Take};
 pub use actions::{free_sources, FreeSource};
-pub(crate) use actions::{Actions, Take};
 pub(crate) use system::System;
 
 // What the parts of the solver share (they see it through `use super::*`).

@@ -475,6 +475,60 @@ fn substituted_equations_add_up() {
     assert!(checked > 100, "only {checked} equations checked");
 }
 
+/// Every equation a beam adds (stiffness terms, fixed-end moments, the
+/// slope-deflection equations, end shears, the moment along it, its fibre
+/// stress, ΣM at nodes and about the origin) is one the verifier reads:
+/// its substituted numbers parse, so `substituted_equations_add_up` checks
+/// them rather than passing them over.
+#[test]
+fn beam_equations_are_all_read_by_the_verifier() {
+    let kinds = [
+        "4EI/L",
+        "2EI/L",
+        "6EI/L²",
+        "3EI/L",
+        "EA/L",
+        "w⊥",
+        "FEM_",
+        "Δ",
+        "M_AB",
+        "M_BA",
+        "V_A",
+        "V_B",
+        "M(0)",
+        "M(L)",
+        "x₀",
+        "M(x₀)",
+        "σ = N/A",
+        "ΣM at",
+        "ΣM about",
+    ];
+    let mut seen = std::collections::HashSet::new();
+    for name in ["flitch_lintel", "mezzanine_edge"] {
+        let (md, _) = render(&root().join(format!("examples/{name}.tandem")));
+        for line in md.lines().filter_map(|l| l.strip_prefix("- ")) {
+            let Some(kind) = kinds.iter().find(|k| line.starts_with(*k)) else {
+                continue;
+            };
+            if line.contains("is hinged") || line.contains("are hinged") {
+                continue;
+            }
+            let numeric = line
+                .split(" = ")
+                .skip(1)
+                .filter(|s| Eval::new(s.trim(), 4).whole().is_some())
+                .count();
+            assert!(numeric >= 2, "{name}: not verified: {line}");
+            seen.insert(*kind);
+        }
+    }
+    for k in kinds {
+        if k != "3EI/L" {
+            assert!(seen.contains(k), "no `{k}` equation in the beam examples");
+        }
+    }
+}
+
 /// The verifier itself catches arithmetic that does not add up.
 #[test]
 fn verifier_rejects_wrong_arithmetic() {

@@ -5,6 +5,8 @@
 
 use super::*;
 
+use super::equilibrium::{equilibrium, reactions};
+
 /// For each node, the parts meeting there: (part, sign, direction); a part
 /// in tension pulls its end A toward B (+ĉ) and its end B toward A (−ĉ).
 pub(super) fn incidence(model: &Model) -> Vec<Vec<(usize, f64, [f64; 2])>> {
@@ -85,25 +87,26 @@ pub(super) fn combination_body(
     equilibrium(doc, &c);
     compatibility(doc, &c);
     part_forces(doc, &c);
+    super::beams::bending(doc, &c);
     parallel_share(doc, &c);
     reactions(doc, &c);
 }
 
 /// What every section of a combination reads.
 #[derive(Clone, Copy)]
-struct Combo<'a> {
-    f: &'a Fmt<'a>,
-    model: &'a Model,
-    r: &'a crate::solve::CombinationResult,
-    ci: usize,
-    incidence: &'a [Vec<(usize, f64, [f64; 2])>],
+pub(super) struct Combo<'a> {
+    pub(super) f: &'a Fmt<'a>,
+    pub(super) model: &'a Model,
+    pub(super) r: &'a crate::solve::CombinationResult,
+    pub(super) ci: usize,
+    pub(super) incidence: &'a [Vec<(usize, f64, [f64; 2])>],
     /// The combined load on each node component.
-    loads: &'a [[f64; 2]],
+    pub(super) loads: &'a [[f64; 2]],
     /// Whether each node belongs to a rigid body or a tie.
-    in_body: &'a [bool],
-    nd: usize,
+    pub(super) in_body: &'a [bool],
+    pub(super) nd: usize,
     /// Parts that span the same two nodes (and share one elongation).
-    groups: &'a [(usize, usize, Vec<usize>)],
+    pub(super) groups: &'a [(usize, usize, Vec<usize>)],
 }
 
 /// The parts that span each pair of nodes, in the order first met.
@@ -122,145 +125,6 @@ fn parallel_groups(model: &Model) -> Vec<(usize, usize, Vec<usize>)> {
         }
     }
     groups
-}
-
-/// Equilibrium at every free node component, with its numbers.
-fn equilibrium(doc: &mut Doc, c: &Combo<'_>) {
-    let (f, model, r, incidence, loads, in_body, nd) =
-        (c.f, c.model, c.r, c.incidence, c.loads, c.in_body, c.nd);
-    let axis = ["x", "y"];
-    doc.h(3, "Equilibrium");
-    let mut first_equation = true;
-    for (n, node) in model.nodes.iter().enumerate() {
-        if in_body[n] {
-            continue;
-        }
-        for d in 0..nd {
-            if node.fixed[d] {
-                continue;
-            }
-            let terms = &incidence[n];
-            let mut sym = Vec::new();
-            let mut num = Vec::new();
-            for (i, sign, dir) in terms {
-                let c = sign * dir[d];
-                if c == 0.0 {
-                    continue;
-                }
-                let name = &model.parts[*i].name;
-                let force = r.parts[*i].force.value;
-                if model.kind == Kind::Axial {
-                    sym.push(format!("{}N({name})", if c > 0.0 { "+ " } else { "- " }));
-                    num.push(format!(
-                        "{}{}",
-                        if c > 0.0 { "+ " } else { "- " },
-                        f.force_t(force)
-                    ));
-                } else {
-                    sym.push(format!("+ N({name})·c{}({name})", axis[d]));
-                    num.push(format!("+ {} · {}", f.force_t(force), f.plain(c)));
-                }
-            }
-            if loads[n][d] != 0.0 {
-                sym.push(format!("+ P{}", if nd == 2 { axis[d] } else { "" }));
-                num.push(format!("+ {}", f.force_t(loads[n][d])));
-            }
-            if num.is_empty() {
-                continue;
-            }
-            let clean = |v: Vec<String>| {
-                let s = v.join(" ");
-                s.strip_prefix("+ ").map_or(s.clone(), str::to_string)
-            };
-            let label = if nd == 2 {
-                format!("ΣF{} at `{}`", axis[d], node.name)
-            } else {
-                format!("ΣF at `{}`", node.name)
-            };
-            if first_equation {
-                doc.p("At each free node the part forces (N, tension positive, pulling the node toward the part's other end) and the loads (P) balance:");
-                first_equation = false;
-            }
-            doc.eq(&format!(
-                "{label}: {} = {} = {}",
-                clean(sym),
-                clean(num),
-                f.force(0.0)
-            ));
-        }
-    }
-    if !first_equation {
-        doc.end_list();
-    }
-    for b in &model.rigids {
-        if model.kind != Kind::Plane {
-            continue;
-        }
-        let x0 = model.nodes[b.nodes[0]].x.value;
-        let y0 = model.nodes[b.nodes[0]].y.value;
-        // Net force on each member from parts, loads and reactions.
-        let mut fx = Vec::new();
-        let mut moment_terms = Vec::new();
-        let mut fsum = [Vec::new(), Vec::new()];
-        for &n in &b.nodes {
-            let mut net = [loads[n][0], loads[n][1]];
-            for &(i, sign, dir) in &incidence[n] {
-                for d in 0..2 {
-                    net[d] += sign * dir[d] * r.parts[i].force.value;
-                }
-            }
-            for d in 0..2 {
-                net[d] += r.nodes[n].reaction[d].value;
-            }
-            fx.push((n, net));
-        }
-        for (n, net) in &fx {
-            for d in 0..2 {
-                if net[d] != 0.0 {
-                    fsum[d].push(f.force_t(net[d]));
-                }
-            }
-            let (dx, dy) = (model.nodes[*n].x.value - x0, model.nodes[*n].y.value - y0);
-            if dx != 0.0 && net[1] != 0.0 {
-                moment_terms.push(format!("{} · {}", f.small_t(dx), f.force_t(net[1])));
-            }
-            if dy != 0.0 && net[0] != 0.0 {
-                moment_terms.push(format!("- {} · {}", f.small_t(dy), f.force_t(net[0])));
-            }
-        }
-        doc.p(&format!(
-            "Rigid body `{}`: the net forces on its nodes (parts, loads and reactions) balance in both directions and in moment about `{}`:",
-            b.name,
-            model.nodes[b.nodes[0]].name
-        ));
-        for d in 0..2 {
-            if fsum[d].is_empty() {
-                // Said rather than left out, so that the reader sees both
-                // directions were looked at.
-                doc.eq(&format!(
-                    "ΣF{} = {}: no net force in {} on any of its nodes",
-                    axis[d],
-                    f.force(0.0),
-                    axis[d]
-                ));
-            } else {
-                doc.eq(&format!(
-                    "ΣF{} = {} = {}",
-                    axis[d],
-                    fsum[d].join(" + "),
-                    f.force(0.0)
-                ));
-            }
-        }
-        if !moment_terms.is_empty() {
-            let joined = moment_terms.join(" + ").replace("+ - ", "- ");
-            doc.eq(&format!(
-                "ΣM = Σ (Δx·Fy − Δy·Fx) = {joined} = 0 {}·{}",
-                f.d.force.name, f.d.small.name
-            ));
-        }
-        doc.end_list();
-    }
 }
 
 /// Compatibility: the elongation of each part from its ends' movements.
@@ -435,11 +299,18 @@ fn part_forces(doc: &mut Doc, c: &Combo<'_>) {
                     ));
                 }
                 if let (Some(area), Some(stress)) = (p.area(), pr.stress) {
+                    // a beam's stress is its extreme fibre's, written with
+                    // its bending; here the axial part alone
+                    let (symbol, stress) = if p.bend.is_some() {
+                        ("σ_N", pr.force.value / area.value)
+                    } else {
+                        ("σ", stress.value)
+                    };
                     doc.eq(&format!(
-                        "σ = N / A = {} / {} = {}",
+                        "{symbol} = N / A = {} / {} = {}",
                         f.force_t(pr.force.value),
                         f.area(area.value),
-                        f.stress(stress.value)
+                        f.stress(stress)
                     ));
                     let e = p.material().map_or(0.0, |m| model.materials[m].e.value);
                     let extra = if offset == 0.0 {
@@ -540,71 +411,6 @@ fn parallel_share(doc: &mut Doc, c: &Combo<'_>) {
         }
         doc.end_list();
     }
-}
-
-/// The reactions, and overall equilibrium of reactions and loads.
-fn reactions(doc: &mut Doc, c: &Combo<'_>) {
-    let (f, model, r, loads, nd) = (c.f, c.model, c.r, c.loads, c.nd);
-    let axis = ["x", "y"];
-    doc.h(3, "Reactions");
-    let mut rows = Vec::new();
-    let mut sum_r = [Vec::new(), Vec::new()];
-    let mut sum_p = [Vec::new(), Vec::new()];
-    for (n, node) in model.nodes.iter().enumerate() {
-        for d in 0..nd {
-            if loads[n][d] != 0.0 {
-                sum_p[d].push(f.force_t(loads[n][d]));
-            }
-        }
-        if !node.fixed.iter().take(nd).any(|x| *x) {
-            continue;
-        }
-        let mut row = vec![format!("`{}`", node.name)];
-        for d in 0..nd {
-            if node.fixed[d] {
-                row.push(f.force_bare(r.nodes[n].reaction[d].value));
-                if r.nodes[n].reaction[d].value != 0.0 {
-                    sum_r[d].push(f.force_t(r.nodes[n].reaction[d].value));
-                }
-            } else {
-                row.push("—".into());
-            }
-        }
-        rows.push(row);
-    }
-    if nd == 1 {
-        doc.table(&["Node", &head("R", &f.d.force)], &rows, &[1]);
-    } else {
-        doc.table(
-            &["Node", &head("Rx", &f.d.force), &head("Ry", &f.d.force)],
-            &rows,
-            &[1, 2],
-        );
-    }
-    doc.p("Overall equilibrium, reactions and loads together:");
-    for d in 0..nd {
-        let mut all: Vec<String> = sum_r[d].clone();
-        all.extend(sum_p[d].iter().cloned());
-        if all.is_empty() {
-            all.push(f.force(0.0));
-        }
-        let label = if nd == 2 {
-            format!("ΣR{} + ΣP{}", axis[d], axis[d])
-        } else {
-            "ΣR + ΣP".into()
-        };
-        doc.eq(&format!("{label} = {} = {}", all.join(" + "), f.force(0.0)));
-    }
-    doc.end_list();
-    doc.p(&format!(
-        "Largest out-of-balance force computed from the unrounded part forces, loads and reactions: {} (largest force in the combination {}).",
-        if r.equilibrium_residual.value == 0.0 {
-            format!("0 {}", f.d.force.name)
-        } else {
-            format!("{:.1e} {}", f.d.force.value(r.equilibrium_residual.value), f.d.force.name)
-        },
-        f.force(r.force_scale.value)
-    ));
 }
 
 impl Fmt<'_> {

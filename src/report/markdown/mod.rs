@@ -17,8 +17,10 @@ use crate::units::Dimension;
 pub use crate::report::drawing::Drawing;
 use crate::report::drawing::{drawable, sketch, MAX_DRAWN};
 
+mod beams;
 mod capacity;
 mod combination;
+mod equilibrium;
 mod inputs;
 mod long_term;
 mod stability;
@@ -33,7 +35,7 @@ use title::{contents, title_block};
 /// The cautions every report carries.
 pub const CAUTIONS: &[&str] = &[
     "This calculation was prepared with tandem, a design aid. Its results must be checked by a qualified engineer before they are relied on; local codes and licensed practice govern.",
-    "The model is linear-elastic and small-displacement; parts are pin-ended axial members or springs, and parts that share nodes are taken as perfectly bonded.",
+    "The model is linear-elastic and small-displacement; parts are pin-ended axial members or springs, beams are Euler–Bernoulli members (plane sections stay plane; shear deformation is neglected), and members that share nodes are taken as perfectly bonded there.",
     "Checks are only those written in the calc file and the material allowables it gives; they do not replace the checks the governing code requires.",
 ];
 
@@ -180,6 +182,17 @@ impl Fmt<'_> {
     }
     fn stiffness(&self, si: f64) -> String {
         self.with(si, &self.d.stiffness)
+    }
+    fn moment(&self, si: f64) -> String {
+        self.with(self.scales.get().moment(si), &self.d.moment)
+    }
+    fn moment_t(&self, si: f64) -> String {
+        self.term(self.scales.get().moment(si), &self.d.moment)
+    }
+    /// A second moment of area, in the small length unit to the fourth.
+    fn inertia(&self, si: f64) -> String {
+        let u = &self.d.small;
+        format!("{} {}⁴", self.n(si / u.factor.powi(4)), u.name)
     }
     fn temp(&self, si: f64) -> String {
         self.term(si, &self.d.temperature)
