@@ -178,6 +178,9 @@ pub struct BeamResult {
     /// The largest deflection across the chord between the deflected ends
     /// (m, along local y) and where it is (m from end A).
     pub deflection_max: (f64, f64),
+    /// Its length (m) and flexural stiffness E·I (N·m²).
+    pub length: f64,
+    pub ei: f64,
 }
 
 impl BeamResult {
@@ -194,6 +197,21 @@ impl BeamResult {
     #[must_use]
     pub fn end_shears_along(&self) -> [f64; 2] {
         [self.end_shears[0], -self.end_shears[1] + 0.0]
+    }
+
+    /// The deflection at `x` from end A across the chord between the
+    /// deflected ends (m, along local y): E·I·v″ = M(x) with v = 0 at both
+    /// ends, integrated exactly.
+    #[must_use]
+    pub fn deflection_at(&self, x: f64) -> f64 {
+        let (m, va, wt, l) = (
+            self.end_moments[0],
+            self.end_shears[0],
+            self.load[1],
+            self.length,
+        );
+        let raw = |x: f64| -m * x * x / 2.0 + va * x.powi(3) / 6.0 + wt * x.powi(4) / 24.0;
+        (raw(x) - x / l * raw(l)) / self.ei
     }
 
     /// The moment at `x` from end A (sagging positive).
@@ -226,27 +244,27 @@ fn beam_result(part: usize, m: [f64; 2], w: [f64; 2], l: f64, ei: f64) -> BeamRe
             consider(x);
         }
     }
-    // EI·v'' = M with v = 0 at both ends (the chord), integrated exactly
-    let vraw = |x: f64| -m[0] * x * x / 2.0 + va * x.powi(3) / 6.0 + wt * x.powi(4) / 24.0;
-    let at_end = vraw(l);
-    let v = |x: f64| (vraw(x) - x / l * at_end) / ei;
-    let mut defl = (0.0f64, 0.0);
-    for k in 1..DEFLECTION_STEPS {
-        let x = l * f64::from(k) / f64::from(DEFLECTION_STEPS);
-        let d = v(x);
-        if d.abs() > defl.0.abs() {
-            defl = (d, x);
-        }
-    }
-    BeamResult {
+    let mut b = BeamResult {
         part,
         end_moments: m,
         end_shears: [va, vb],
         load: w,
         moment_max: best,
         shear_max: if va.abs() >= vb.abs() { va } else { -vb },
-        deflection_max: defl,
+        deflection_max: (0.0, 0.0),
+        length: l,
+        ei,
+    };
+    let mut defl = (0.0f64, 0.0);
+    for k in 1..DEFLECTION_STEPS {
+        let x = l * f64::from(k) / f64::from(DEFLECTION_STEPS);
+        let d = b.deflection_at(x);
+        if d.abs() > defl.0.abs() {
+            defl = (d, x);
+        }
     }
+    b.deflection_max = defl;
+    b
 }
 
 /// Results of one combination.

@@ -52,8 +52,18 @@ fn every_drawing_is_well_formed_and_draws_every_item_once() {
         let d = Display::for_model(m, 4);
         let s = sketch(m, &d).svg;
         let name = path.display();
-        assert_eq!(groups(&s, "part"), m.parts.len(), "parts of {name}");
+        let beams = m.parts.iter().filter(|p| p.bend.is_some()).count();
+        assert_eq!(groups(&s, "part"), m.parts.len() - beams, "parts of {name}");
+        assert_eq!(groups(&s, "beam"), beams, "beams of {name}");
         assert_eq!(groups(&s, "node"), m.nodes.len(), "nodes of {name}");
+        let along: usize = m.cases.iter().map(|c| c.distributed.len()).sum();
+        assert_eq!(
+            groups(&s, "line-load"),
+            along,
+            "loads along beams of {name}"
+        );
+        let moments: usize = m.cases.iter().map(|c| c.moments.len()).sum();
+        assert_eq!(groups(&s, "moment"), moments, "moments of {name}");
         let supported = m.nodes.iter().filter(|n| n.fixed.contains(&true)).count();
         assert_eq!(groups(&s, "support"), supported, "supports of {name}");
         let loads: usize = m.cases.iter().map(|c| c.loads.len()).sum();
@@ -67,7 +77,12 @@ fn every_drawing_is_well_formed_and_draws_every_item_once() {
         assert_eq!(groups(&s, "key"), 1, "key of {name}");
         for (ci, r) in a.solution.combinations.iter().enumerate() {
             let f = forces(m, r, ci, &d).svg;
-            assert_eq!(groups(&f, "part"), m.parts.len(), "parts of {name}");
+            assert_eq!(groups(&f, "part"), m.parts.len() - beams, "parts of {name}");
+            assert_eq!(groups(&f, "beam"), beams, "beams of {name}");
+            // every beam that bends has its moment diagram
+            if r.beams.iter().any(|b| b.moment_max.0 != 0.0) {
+                assert_eq!(groups(&f, "moment-diagram"), beams, "diagrams of {name}");
+            }
             assert_eq!(groups(&f, "node"), m.nodes.len(), "nodes of {name}");
             assert_eq!(groups(&f, "support"), supported, "supports of {name}");
             // a part's force is written beside it, with the unit
@@ -76,7 +91,7 @@ fn every_drawing_is_well_formed_and_draws_every_item_once() {
                 let g = doc
                     .descendants()
                     .find(|n| {
-                        n.attribute("class") == Some("part")
+                        matches!(n.attribute("class"), Some("part" | "beam"))
                             && n.attribute("data-name") == Some(p.name.as_str())
                     })
                     .expect("part drawn");
@@ -95,7 +110,10 @@ fn every_drawing_is_well_formed_and_draws_every_item_once() {
                     .count();
                 let n = r.parts[i].force.value;
                 let tiny = 1e-9 * r.force_scale.value;
-                if n < -tiny && r.parts[i].state == tandem::solve::PartState::Elastic {
+                if n < -tiny
+                    && r.parts[i].state == tandem::solve::PartState::Elastic
+                    && p.bend.is_none()
+                {
                     assert!(lines >= 2, "{name} {} in compression", p.name);
                 }
             }
@@ -136,7 +154,7 @@ fn drawings_are_deterministic_at_true_geometry_and_escaped() {
 fn golden_drawings() {
     let update = std::env::var_os("UPDATE_GOLDEN").is_some();
     let mut changed = Vec::new();
-    for stem in ["filled_post", "hung_platform"] {
+    for stem in ["filled_post", "hung_platform", "mezzanine_edge"] {
         let a = analyse(&root().join(format!("examples/{stem}.tandem")));
         let d = Display::for_model(&a.model, 4);
         let mut all = vec![sketch(&a.model, &d)];
@@ -243,4 +261,80 @@ fn a_report_written_to_a_file_links_its_capacity_paths() {
     let md = std::fs::read_to_string(&out).expect("report");
     assert!(md.contains("](sleeve.capacity.surge.svg)"), "{md}");
     assert!(dir.path().join("sleeve.capacity.surge.svg").is_file());
+}
+
+/// Beams in the drawings: drawn heavier than parts, a hinge as an open
+/// circle, a clamped support, a moment at a node as a turning arrow; the
+/// moment diagram of a simply supported beam under a downward load lies
+/// below it, on the side of the fibre in tension (sagging), and reaches
+/// its peak, wL²/8, at mid-span (beam tables, from memory).
+#[test]
+fn beams_are_drawn_with_their_moments_on_the_tension_side() {
+    let text = "material s { E = 200 GPa }\n\
+                node a at (0 m, 0 m)\nnode b at (4 m, 0 m)\nnode c at (6 m, 0 m)\nnode d at (6 m, -2 m)\n\
+                pin a\nfix b y\nfix d\n\
+                beam g { material = s; section = rect(b = 100 mm, h = 300 mm); ends = a, b }\n\
+                beam h { material = s; section = rect(b = 100 mm, h = 300 mm); ends = b, c; hinge = c }\n\
+                beam k { material = s; section = rect(b = 100 mm, h = 300 mm); ends = d, c }\n\
+                case w { load g = (0 kN/m, -10 kN/m)\n moment b = 1 kN*m }\n";
+    let src = Source::new("beams.tandem", text.to_string());
+    let a = tandem::analyse(&src).expect("analyses");
+    let d = Display::for_model(&a.model, 4);
+    let s = sketch(&a.model, &d).svg;
+    assert_eq!(groups(&s, "beam"), 3);
+    assert_eq!(groups(&s, "line-load"), 1);
+    assert_eq!(groups(&s, "moment"), 1);
+    let doc = roxmltree::Document::parse(&s).expect("well-formed");
+    let in_group = |class: &str, name: &str, tag: &str| {
+        doc.descendants()
+            .find(|n| n.attribute("class") == Some(class) && n.attribute("data-name") == Some(name))
+            .map_or(0, |g| {
+                g.descendants()
+                    .filter(|n| n.tag_name().name() == tag)
+                    .count()
+            })
+    };
+    // the hinge of `h` is an open circle; the clamp at `d` a filled bar
+    assert_eq!(in_group("beam", "h", "circle"), 1);
+    assert_eq!(in_group("beam", "g", "circle"), 0);
+    assert_eq!(in_group("support", "d", "rect"), 1);
+    assert_eq!(in_group("support", "a", "rect"), 0);
+    let heavy = doc
+        .descendants()
+        .find(|n| n.attribute("class") == Some("beam"))
+        .and_then(|g| g.children().find(|n| n.tag_name().name() == "line"))
+        .and_then(|l| l.attribute("stroke-width"))
+        .and_then(|w| w.parse::<f64>().ok())
+        .expect("a beam's line");
+    assert!(heavy > 1.6, "beams are heavier than parts ({heavy})");
+    let f = forces(&a.model, &a.solution.combinations[0], 0, &d).svg;
+    let doc = roxmltree::Document::parse(&f).expect("well-formed");
+    let diagram = doc
+        .descendants()
+        .find(|n| {
+            n.attribute("class") == Some("moment-diagram") && n.attribute("data-name") == Some("g")
+        })
+        .expect("the diagram of g");
+    let pts: Vec<(f64, f64)> = diagram
+        .descendants()
+        .find(|n| n.tag_name().name() == "polyline")
+        .and_then(|p| p.attribute("points"))
+        .expect("points")
+        .split(' ')
+        .filter_map(|xy| {
+            let (x, y) = xy.split_once(',')?;
+            Some((x.parse().ok()?, y.parse().ok()?))
+        })
+        .collect();
+    let beam_y = pts[0].1;
+    let lowest = pts
+        .iter()
+        .copied()
+        .max_by(|p, q| p.1.total_cmp(&q.1))
+        .expect("points");
+    // below the beam on the page (y grows downward), near mid-span
+    assert!(lowest.1 > beam_y + 10.0, "{pts:?}");
+    let (x0, x1) = (pts[0].0, pts[pts.len() - 1].0);
+    let t = (lowest.0 - x0) / (x1 - x0);
+    assert!((0.3..0.6).contains(&t), "peak at {t} of the span");
 }

@@ -24,6 +24,13 @@ pub(super) enum Entry {
     Reaction,
     /// A scale bar of the given drawing length and label.
     Bar(f64, String),
+    Beam,
+    Hinge,
+    /// A support that holds the node's rotation too.
+    Clamped,
+    LineLoad,
+    Moment,
+    MomentDiagram(String),
 }
 
 impl Entry {
@@ -43,7 +50,12 @@ impl Entry {
             Entry::Tension => "tension (force shown +)".into(),
             Entry::Compression => "compression (force shown −)".into(),
             Entry::Idle => "no force (slack, let go, or zero)".into(),
-            Entry::Displaced(s) | Entry::Bar(_, s) => s.clone(),
+            Entry::Displaced(s) | Entry::Bar(_, s) | Entry::MomentDiagram(s) => s.clone(),
+            Entry::Beam => "beam (bends as well as stretching), with its name".into(),
+            Entry::Hinge => "hinge: the beam's end carries no moment".into(),
+            Entry::Clamped => "support, holding the node's rotation too (clamped)".into(),
+            Entry::LineLoad => "load along a beam, per unit length".into(),
+            Entry::Moment => "moment at a node, with its value".into(),
             Entry::Reaction => "support reaction, with its value".into(),
         }
     }
@@ -74,6 +86,28 @@ impl Entry {
             Entry::Compression => s.line(a, b, Stroke::Compression),
             Entry::Idle => s.line(a, b, Stroke::Idle),
             Entry::Displaced(_) => s.line(a, b, Stroke::Displaced),
+            Entry::Beam => s.line(a, b, Stroke::Beam),
+            Entry::Hinge => {
+                s.line(a, b, Stroke::Beam);
+                s.circle(
+                    at.add(18.0, 0.0),
+                    3.5,
+                    "fill=\"#fff\" stroke=\"#000\" stroke-width=\"1.2\"",
+                );
+            }
+            Entry::Clamped => super::beams::clamp(s, at.add(18.0, -6.0)),
+            Entry::LineLoad => {
+                for k in 0..4 {
+                    let x = 4.0 + 9.0 * f64::from(k);
+                    s.arrow(at.add(x, -9.0), at.add(x, 4.0));
+                }
+                s.line(at.add(4.0, -9.0), at.add(31.0, -9.0), Stroke::Thin);
+            }
+            Entry::Moment => super::beams::turning_arrow(s, at.add(18.0, 0.0), 7.0, true),
+            Entry::MomentDiagram(_) => s.polyline(
+                &[a, at.add(6.0, 6.0), at.add(30.0, 6.0), b, a],
+                "fill=\"#e8e8e8\" stroke=\"#000\" stroke-width=\"0.8\"",
+            ),
             Entry::Bar(len, _) => {
                 let end = at.add(*len, 0.0);
                 s.line(at, end, Stroke::Tension);

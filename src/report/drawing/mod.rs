@@ -6,6 +6,7 @@
 //! a key that explains the ones it uses. The bytes depend on the model and
 //! the display only.
 
+mod beams;
 pub mod chart;
 mod key;
 mod layout;
@@ -90,9 +91,17 @@ fn fixtures(s: &mut Svg, model: &Model, l: &Layout, entries: &mut Vec<Entry>) {
     if !model.ties.is_empty() {
         entries.push(Entry::Tie);
     }
-    let (mut fixed, mut roller) = (false, false);
+    let (mut fixed, mut roller, mut clamped) = (false, false, false);
+    let turns = model.rotating_nodes();
     for (i, n) in model.nodes.iter().enumerate() {
         if !n.fixed.iter().any(|&f| f) {
+            continue;
+        }
+        if model.kind == Kind::Plane && n.fixed == [true, true] && n.fixed_rotation && turns[i] {
+            s.open("support", &n.name);
+            beams::clamp(s, l.node[i]);
+            s.close();
+            clamped = true;
             continue;
         }
         s.open("support", &n.name);
@@ -130,6 +139,9 @@ fn fixtures(s: &mut Svg, model: &Model, l: &Layout, entries: &mut Vec<Entry>) {
     }
     if roller {
         entries.push(Entry::Roller);
+    }
+    if clamped {
+        entries.push(Entry::Clamped);
     }
 }
 
@@ -259,7 +271,11 @@ fn part_marks(s: &mut Svg, p: &crate::model::Part, a: P, b: P) {
 #[must_use]
 pub fn sketch(model: &Model, d: &Display) -> Drawing {
     let l = Layout::of(model);
-    let mut entries = vec![Entry::Node, Entry::Member];
+    let mut entries = vec![Entry::Node];
+    if model.parts.iter().any(|p| p.bend.is_none()) {
+        entries.push(Entry::Member);
+    }
+    entries.extend(beams::entries(model));
     if model
         .parts
         .iter()
@@ -272,12 +288,14 @@ pub fn sketch(model: &Model, d: &Display) -> Drawing {
     fixtures(&mut body, model, &l, &mut entries);
     for (i, p) in model.parts.iter().enumerate() {
         let (a, b) = l.part[i];
-        body.open("part", &p.name);
+        body.open(if p.bend.is_some() { "beam" } else { "part" }, &p.name);
         match p.law {
             Law::Spring { .. } => body.spring(a, b),
+            Law::Member { .. } if p.bend.is_some() => beams::beam_line(&mut body, a, b),
             Law::Member { .. } => body.line(a, b, Stroke::Part),
         }
         part_marks(&mut body, p, a, b);
+        beams::hinges(&mut body, p, a, b);
         let (_, n) = part_axes(a, b);
         if l.labels_fit() {
             part_label(&mut body, a.mid(b), n, &[p.name.to_string()]);
@@ -316,6 +334,7 @@ pub fn sketch(model: &Model, d: &Display) -> Drawing {
     if model.cases.iter().any(|c| !c.loads.is_empty()) {
         entries.push(Entry::Load);
     }
+    beams::sketch_loads(&mut body, model, &l, d, &mut entries);
     if model.kind == Kind::Plane {
         entries.push(geometry_bar(&l, d));
     }
@@ -372,10 +391,12 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
     let mut body = Svg::fragment();
     fixtures(&mut body, model, &l, &mut entries);
     // the displaced shape first, under the parts
+    // a beam's deflection from its chord counts too
     let umax = r
         .nodes
         .iter()
         .map(|n| n.displacement[0].value.hypot(n.displacement[1].value))
+        .chain(r.beams.iter().map(|b| b.deflection_max.0.abs()))
         .fold(0.0f64, f64::max);
     // displacements below a femtometre are round-off: no displaced shape
     if umax > 1e-15 {
@@ -396,6 +417,9 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
             }
             Kind::Plane => {
                 for (i, p) in model.parts.iter().enumerate() {
+                    if p.bend.is_some() {
+                        continue;
+                    }
                     let (a, b) = l.part[i];
                     body.line(
                         l.moved(a, u(p.ends[0]), k),
@@ -403,6 +427,7 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
                         Stroke::Displaced,
                     );
                 }
+                beams::displaced(&mut body, model, &l, r, k);
                 for b in &model.rigids {
                     let pts: Vec<P> = b
                         .nodes
@@ -419,12 +444,16 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
         body.close();
         entries.extend(entry);
     }
+    let diagram = beams::moment_diagrams(&mut body, model, &l, r, d);
     let tiny = 1e-9 * r.force_scale.value.max(f64::MIN_POSITIVE);
     let (mut tension, mut compression, mut idle) = (false, false, false);
     for (i, p) in model.parts.iter().enumerate() {
         let (a, b) = l.part[i];
         let n = r.parts[i].force.value;
-        let stroke = if r.parts[i].state == PartState::Slack || n.abs() <= tiny {
+        let stroke = if p.bend.is_some() {
+            // a beam is drawn as a beam; its axial force is written
+            Stroke::Beam
+        } else if r.parts[i].state == PartState::Slack || n.abs() <= tiny {
             idle = true;
             Stroke::Idle
         } else if n > 0.0 {
@@ -434,9 +463,10 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
             compression = true;
             Stroke::Compression
         };
-        body.open("part", &p.name);
+        body.open(if p.bend.is_some() { "beam" } else { "part" }, &p.name);
         body.line(a, b, stroke);
         part_marks(&mut body, p, a, b);
+        beams::hinges(&mut body, p, a, b);
         let shown = d.force.value(if n.abs() <= tiny { 0.0 } else { n });
         let value = if shown > 0.0 {
             format!("+{} {}", number(shown, d.digits), d.force.name)
@@ -446,6 +476,12 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
                 number(shown, d.digits).replace('-', "−"),
                 d.force.name
             )
+        };
+        // a beam's axial force is named, beside its moment diagram
+        let value = if p.bend.is_some() {
+            format!("N {value}")
+        } else {
+            value
         };
         let (_, nrm) = part_axes(a, b);
         if l.labels_fit() {
@@ -514,6 +550,8 @@ pub fn forces(model: &Model, r: &CombinationResult, ci: usize, d: &Display) -> D
         first.push(Entry::Idle);
     }
     entries.splice(1..1, first);
+    entries.extend(beams::entries(model));
+    entries.extend(diagram);
     entries.extend(kind_entries(model));
     if reactions {
         entries.push(Entry::Reaction);

@@ -73,6 +73,8 @@ pub enum Stroke {
     Tie,
     /// Thin construction lines (node lines of axial models, symbols).
     Thin,
+    /// A beam: heavier than a part.
+    Beam,
 }
 
 pub struct Svg {
@@ -155,6 +157,7 @@ impl Svg {
             Stroke::Displaced => "stroke=\"#555\" stroke-width=\"1.2\" stroke-dasharray=\"6 3\"",
             Stroke::Tie => "stroke=\"#000\" stroke-width=\"1\" stroke-dasharray=\"7 2 1 2\"",
             Stroke::Thin => "stroke=\"#000\" stroke-width=\"0.8\"",
+            Stroke::Beam => "stroke=\"#000\" stroke-width=\"3.4\" stroke-linecap=\"round\"",
         };
         let _ = writeln!(
             self.out,
