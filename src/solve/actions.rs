@@ -179,7 +179,8 @@ impl System<'_> {
                 for m in &case.moments {
                     let Some(c) = map.rot[m.node] else {
                         return Err(SolveError::Mechanism {
-                            what: format!("the rotation of node `{}`", model.nodes[m.node].name),
+                            what: format!("node `{}`", model.nodes[m.node].name),
+                            moves: "rotate",
                             when: String::new(),
                             span: m.span,
                             help: Some(format!(

@@ -8,10 +8,12 @@ use crate::source::Span;
 /// The assembly cannot be solved as written.
 #[derive(Debug, Error, Diagnostic, Clone, PartialEq)]
 pub enum SolveError {
-    #[error("the assembly is a mechanism{when}: {what} can move freely")]
+    #[error("the assembly is a mechanism{when}: {what} can {moves} freely")]
     #[diagnostic(code(tandem::solve::mechanism))]
     Mechanism {
         what: String,
+        /// `move` or `rotate`.
+        moves: &'static str,
         when: String,
         #[label("free to move")]
         span: Span,

@@ -9,7 +9,7 @@ pub(super) fn describe_unknown(
     model: &Model,
     map: &DofMap,
     index: usize,
-) -> (String, crate::source::Span, String) {
+) -> (String, &'static str, crate::source::Span, String) {
     let axis = |d: usize| match (model.kind, d) {
         (Kind::Axial, _) => String::new(),
         (Kind::Plane, 0) => " in x".into(),
@@ -25,6 +25,7 @@ pub(super) fn describe_unknown(
             let n = &model.nodes[*i];
             (
                 format!("node `{}`{}", n.name, axis(*d)),
+                "move",
                 n.span,
                 format!(
                     "add a support (`fix {}{}`) or a part that holds node `{}`{}",
@@ -38,7 +39,8 @@ pub(super) fn describe_unknown(
         Unknown::Rotation(i) => {
             let n = &model.nodes[*i];
             (
-                format!("the rotation of node `{}`", n.name),
+                format!("node `{}`", n.name),
+                "rotate",
                 n.span,
                 format!(
                     "hold it (`fix {} rotation`), or join another member that resists rotation at node `{}`",
@@ -50,6 +52,7 @@ pub(super) fn describe_unknown(
             let n = &model.nodes[*i];
             (
                 format!("the nodes tied to `{}`{}", n.name, axis(*d)),
+                "move",
                 n.span,
                 format!(
                     "add a support or a part that holds the tied nodes{}",
@@ -59,13 +62,14 @@ pub(super) fn describe_unknown(
         }
         Unknown::Rigid(r, c) => {
             let body = &model.rigids[*r];
-            let what = match c {
-                0 => "moving in x",
-                1 => "moving in y",
-                _ => "rotating",
+            let (what, moves) = match c {
+                0 => (" in x", "move"),
+                1 => (" in y", "move"),
+                _ => ("", "rotate"),
             };
             (
-                format!("rigid body `{}` ({what})", body.name),
+                format!("rigid body `{}`{what}", body.name),
+                moves,
                 body.span,
                 format!(
                     "support rigid body `{}` at another point, or add a part that holds it",
@@ -77,7 +81,7 @@ pub(super) fn describe_unknown(
 }
 
 pub(super) fn singular(model: &Model, map: &DofMap, index: usize, slack: &[usize]) -> SolveError {
-    let (what, span, help) = describe_unknown(model, map, index);
+    let (what, moves, span, help) = describe_unknown(model, map, index);
     let when = if slack.is_empty() {
         String::new()
     } else {
@@ -92,6 +96,7 @@ pub(super) fn singular(model: &Model, map: &DofMap, index: usize, slack: &[usize
     };
     SolveError::Mechanism {
         what,
+        moves,
         when,
         span,
         help: Some(help),

@@ -630,3 +630,187 @@ fn the_commands_show_a_beams_bending() {
     assert!(text.contains("M at A (kN·m)"), "{text}");
     assert!(text.contains("rotation (rad)"), "{text}");
 }
+
+/// Superposition and reciprocity (Maxwell–Betti) on random frames: the
+/// response to `2·one + 3·two` is twice the response to `one` and three
+/// times that to `two`; the movement at node q in the sense of its load
+/// under the load at node p equals the movement at p under the load at q,
+/// a force and a moment included (a displacement per newton equals a
+/// rotation per newton-metre).
+#[test]
+fn random_frames_superpose_and_are_reciprocal() {
+    let mut rng = super::common::Rng(0x0bad_5eed_1234);
+    for _ in 0..30 {
+        let f = random_frame(&mut rng);
+        let n = f.xy.len();
+        // the frame without its loads
+        let bare: String = f
+            .text
+            .lines()
+            .filter(|l| !l.starts_with("load ") && !l.starts_with("moment "))
+            .map(|l| format!("{l}\n"))
+            .collect();
+        let (p, q) = (1, n - 2);
+        let dir = rng.range(0.0, std::f64::consts::TAU);
+        let (cx, cy) = (dir.cos(), dir.sin());
+        let text = format!(
+            "{bare}case one {{ load n{p} = ({cx} kN, {cy} kN) }}\ncase two {{ moment n{q} = 1 kN*m }}\n\
+             combine alone_one = one\ncombine alone_two = two\ncombine both = 2 one + 3 two\n"
+        );
+        let src = tandem::source::Source::new("frame.tandem", text.clone());
+        let model = tandem::check(&src).unwrap_or_else(|e| {
+            panic!(
+                "{}\n{text}",
+                tandem::diagnostic::render(&e, &src, 100, false)
+            )
+        });
+        let s = tandem::solve::solve(&model).unwrap_or_else(|e| panic!("{e}\n{text}"));
+        let [one, two, both] = [0, 1, 2].map(|k| &s.combinations[k]);
+        let comps = |c: &tandem::solve::CombinationResult, i: usize| {
+            [
+                c.nodes[i].displacement[0].value,
+                c.nodes[i].displacement[1].value,
+                c.nodes[i].rotation,
+            ]
+        };
+        let scale = (0..n)
+            .flat_map(|i| comps(both, i))
+            .fold(0.0f64, |m, v| m.max(v.abs()));
+        for i in 0..n {
+            let (a, b, ab) = (comps(one, i), comps(two, i), comps(both, i));
+            for d in 0..3 {
+                let want = 2.0 * a[d] + 3.0 * b[d];
+                assert!(
+                    (ab[d] - want).abs() <= 1e-9 * scale,
+                    "superposition at n{i} component {d}: {} against {want}\n{text}",
+                    ab[d]
+                );
+            }
+        }
+        // the rotation at q under the force at p, against the movement of
+        // p along the force under the moment at q (per kN and per kN·m)
+        let theta_q = one.nodes[q].rotation;
+        let u = comps(two, p);
+        let along = u[0] * cx + u[1] * cy;
+        assert!(
+            (theta_q - along).abs() <= 1e-8 * theta_q.abs().max(along.abs()).max(1e-30),
+            "reciprocity: θ(n{q}) = {theta_q} against u(n{p}) = {along}\n{text}"
+        );
+    }
+}
+
+/// A cantilever propped at its tip by a hanger rod under a uniform load
+/// (superposition of the cantilever cases of beam tables, from memory):
+/// the tip sags wL⁴/(8EI) under the load and rises RL³/(3EI) under the
+/// rod's pull R, which stretches the rod R/k, so R = (wL⁴/8EI) / (L³/3EI
+/// + 1/k) with k = EA/L of the rod.
+#[test]
+fn cantilever_propped_by_a_hanger_rod() {
+    let text = format!(
+        "{HEAD}node a at (0 m, 0 m)\nnode b at (6 m, 0 m)\nnode top at (6 m, 3 m)\nfix a\nfix top\n{}\
+         part rod {{ material = s; area = 100 mm^2; ends = b, top }}\n\
+         load g = (0 kN/m, -10 kN/m)\n",
+        beam("g", "a, b", "")
+    );
+    let (_, s) = solve(&text);
+    let c = &s.combinations[0];
+    let ei = E * I;
+    let k = E * 100e-6 / 3.0;
+    let r = (W * L.powi(4) / (8.0 * ei)) / (L.powi(3) / (3.0 * ei) + 1.0 / k);
+    close(c.parts[1].force.value, r, "rod force");
+    close(c.nodes[1].displacement[1].value, -r / k, "tip deflection");
+    // the wall: R_wall = wL − R, M_wall = wL²/2 − R·L
+    close(c.nodes[0].reaction[1].value, W * L - r, "wall reaction");
+    close(
+        c.nodes[0].reaction_moment,
+        W * L * L / 2.0 - r * L,
+        "wall moment",
+    );
+}
+
+/// A cantilever joined to a rigid body held by two pins: the body does not
+/// turn, so the beam is clamped there; its tip sags PL³/(3EI) and the body
+/// carries PL as a couple on its pins (beam tables, from memory).
+#[test]
+fn a_beam_joined_to_a_rigid_body_turns_with_it() {
+    let p = 5e3;
+    let text = format!(
+        "{HEAD}node w1 at (0 m, -1 m)\nnode w2 at (0 m, 1 m)\nnode a at (0 m, 0 m)\nnode b at (6 m, 0 m)\n\
+         pin w1\npin w2\nrigid wall {{ nodes = w1, w2, a }}\n{}load b = (0 kN, -5 kN)\n",
+        beam("g", "a, b", "")
+    );
+    let (_, s) = solve(&text);
+    let c = &s.combinations[0];
+    close(
+        c.nodes[3].displacement[1].value,
+        -p * L.powi(3) / (3.0 * E * I),
+        "tip deflection",
+    );
+    close(c.rotations[0], 0.0, "the body does not turn");
+    close(
+        c.nodes[2].rotation,
+        0.0,
+        "the beam's end turns with the body",
+    );
+    // the couple on the pins, 2 m apart: ±PL / 2 m in x
+    close(c.nodes[0].reaction[0].value.abs(), p * L / 2.0, "couple");
+    close(
+        c.nodes[0].reaction[1].value + c.nodes[1].reaction[1].value,
+        p,
+        "vertical",
+    );
+    // a pin at `w1` only leaves body and beam free to swing about it: the
+    // mechanism names the node that moves most
+    let loose = text.replace("pin w2\n", "");
+    let src = tandem::source::Source::new("loose.tandem", loose);
+    let model = tandem::check(&src).expect("checks");
+    let err = tandem::solve::solve(&model)
+        .expect_err("a mechanism")
+        .to_string();
+    assert!(
+        err.contains("is a mechanism: node `b` in y can move freely"),
+        "{err}"
+    );
+    // a body whose only other hold is along the line to its pin turns
+    let turning = format!(
+        "{HEAD}node w1 at (0 m, -1 m)\nnode w2 at (0 m, 1 m)\nnode c at (0 m, 3 m)\n\
+         pin w1\nfix c\nrigid wall {{ nodes = w1, w2 }}\n\
+         part p {{ material = s; area = 100 mm^2; ends = w2, c }}\nload w2 = (0 kN, -5 kN)\n"
+    );
+    let src = tandem::source::Source::new("turning.tandem", turning);
+    let model = tandem::check(&src).expect("checks");
+    let err = tandem::solve::solve(&model)
+        .expect_err("a mechanism")
+        .to_string();
+    assert!(err.contains("rigid body `wall` can rotate freely"), "{err}");
+}
+
+/// A beam used as a column keeps the smaller second moment for buckling:
+/// rect(100 mm × 300 mm) bends about its strong axis but buckles about its
+/// weak one, Pe = π²·E·(h·b³/12)/(K·L)² (Euler).
+#[test]
+fn a_beam_buckles_about_its_weak_axis() {
+    let text = format!(
+        "{HEAD}node a at (0 m, 0 m)\nnode b at (0 m, 6 m)\nfix a\nfix b x\n{}load b = (0 kN, -100 kN)\n\
+         check \"euler\" : g.euler_load >= 1 kN\n",
+        beam("g", "a, b", "; buckling_factor = 1.0")
+    );
+    let (model, s) = solve(&text);
+    let checks = tandem::checks::evaluate(&model, &s).expect("checks evaluate");
+    let o = checks
+        .outcomes
+        .iter()
+        .find(|o| o.label == "euler")
+        .expect("the check");
+    let weak = 0.3 * 0.1f64.powi(3) / 12.0;
+    let pe = std::f64::consts::PI.powi(2) * E * weak / (L * L);
+    // `>=`: the capacity is the left side
+    close(o.capacity.value, pe, "Euler load about the weak axis");
+    // the column carries the load axially and no moment
+    close(
+        s.combinations[0].parts[0].force.value,
+        -100e3,
+        "axial force",
+    );
+    assert!(s.combinations[0].beams[0].moment_max.0.abs() < 1e-6);
+}

@@ -97,7 +97,9 @@ pub(super) fn sketch_loads(
             rows[w.part] += 1;
             s.open("line-load", &c.name);
             // an arrow about every 28 units, 3 to 40 of them
-            let span = ((a.x - b.x).hypot(a.y - b.y) / 28.0).ceil().clamp(3.0, 40.0);
+            let span = ((a.x - b.x).hypot(a.y - b.y) / 28.0)
+                .ceil()
+                .clamp(3.0, 40.0);
             #[allow(clippy::cast_possible_truncation, clippy::cast_sign_loss)]
             let n = span as u32;
             let mut tails = Vec::new();
