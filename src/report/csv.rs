@@ -45,7 +45,7 @@ fn finish(w: csv::Writer<Vec<u8>>) -> Vec<u8> {
 fn parts(a: &crate::Analysis, d: &Display) -> Vec<u8> {
     let (model, solution) = (&a.model, &a.solution);
     let mut w = writer();
-    let _ = w.write_record([
+    let mut header = vec![
         "combination".to_string(),
         "part".into(),
         head("force", &d.force),
@@ -54,10 +54,25 @@ fn parts(a: &crate::Analysis, d: &Display) -> Vec<u8> {
         "strain from force".into(),
         head("elongation", &d.small),
         "state".into(),
-    ]);
+    ];
+    // beams add their bending, moments as along the beam (sagging positive)
+    let bending = model.parts.iter().any(|p| p.bend.is_some());
+    if bending {
+        header.extend([
+            "kind".to_string(),
+            head("moment at A", &d.moment),
+            head("moment at B", &d.moment),
+            head("largest moment", &d.moment),
+            head("largest moment at", &d.length),
+            head("largest shear", &d.force),
+            head("largest deflection", &d.small),
+            head("largest deflection at", &d.length),
+        ]);
+    }
+    let _ = w.write_record(&header);
     for r in &solution.combinations {
-        for (p, pr) in model.parts.iter().zip(&r.parts) {
-            let _ = w.write_record([
+        for (i, (p, pr)) in model.parts.iter().zip(&r.parts).enumerate() {
+            let mut row = vec![
                 r.name.clone(),
                 p.name.to_string(),
                 v(pr.force.value, &d.force),
@@ -66,7 +81,29 @@ fn parts(a: &crate::Analysis, d: &Display) -> Vec<u8> {
                 super::text::force_strain(model, p, pr).map_or(String::new(), full),
                 v(pr.elongation.value, &d.small),
                 pr.state.name().into(),
-            ]);
+            ];
+            if bending {
+                match r.beam(i) {
+                    Some(b) => {
+                        let [ma, mb] = b.end_moments_along();
+                        row.extend([
+                            "beam".to_string(),
+                            v(ma, &d.moment),
+                            v(mb, &d.moment),
+                            v(b.moment_max.0, &d.moment),
+                            v(b.moment_max.1, &d.length),
+                            v(b.shear_max, &d.force),
+                            v(b.deflection_max.0, &d.small),
+                            v(b.deflection_max.1, &d.length),
+                        ]);
+                    }
+                    None => {
+                        row.push("part".into());
+                        row.extend(std::iter::repeat_n(String::new(), 7));
+                    }
+                }
+            }
+            let _ = w.write_record(&row);
         }
     }
     finish(w)
@@ -88,10 +125,16 @@ fn nodes(a: &crate::Analysis, d: &Display) -> Vec<u8> {
             header.push(head("reaction y", &d.force));
         }
     }
+    let turns = model.rotating_nodes();
+    let any_turns = turns.contains(&true);
+    if any_turns {
+        header.push("rotation (rad)".into());
+        header.push(head("reaction moment", &d.moment));
+    }
     let _ = w.write_record(&header);
     let nd = model.kind.dofs();
     for r in &solution.combinations {
-        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+        for ((n, nr), turns) in model.nodes.iter().zip(&r.nodes).zip(&turns) {
             let mut row = vec![r.name.clone(), n.name.to_string()];
             for k in 0..nd {
                 row.push(v(nr.displacement[k].value, &d.small));
@@ -100,6 +143,18 @@ fn nodes(a: &crate::Analysis, d: &Display) -> Vec<u8> {
             for k in 0..nd {
                 row.push(if n.fixed[k] {
                     v(nr.reaction[k].value, &d.force)
+                } else {
+                    String::new()
+                });
+            }
+            if any_turns {
+                row.push(if *turns {
+                    full(nr.rotation)
+                } else {
+                    String::new()
+                });
+                row.push(if *turns && n.fixed_rotation {
+                    v(nr.reaction_moment, &d.moment)
                 } else {
                     String::new()
                 });

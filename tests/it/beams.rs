@@ -648,7 +648,7 @@ fn random_frames_superpose_and_are_reciprocal() {
             .text
             .lines()
             .filter(|l| !l.starts_with("load ") && !l.starts_with("moment "))
-            .map(|l| format!("{l}\n"))
+            .flat_map(|l| [l, "\n"])
             .collect();
         let (p, q) = (1, n - 2);
         let dir = rng.range(0.0, std::f64::consts::TAU);

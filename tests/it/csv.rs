@@ -104,3 +104,62 @@ fn report_csv_for_several_files_writes_a_folder_each_and_quotes_labels() {
     let raw = std::fs::read_to_string(out.join("quoted/checks.csv")).expect("read");
     assert!(raw.contains("\"stress, \"\"rod\"\" p\""), "{raw}");
 }
+
+/// A model with beams adds their bending to parts.csv and the rotations to
+/// nodes.csv: the mezzanine example's moments over the post balance (the
+/// two beams' end moments there are one moment, as along each beam), and
+/// the reaction moment column is empty where no rotation is held.
+#[test]
+fn beams_add_their_bending_to_the_tables() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let out = dir.path().join("data");
+    let o = tandem(&[
+        "solve",
+        "examples/mezzanine_edge.tandem",
+        "--csv",
+        out.to_str().expect("utf-8"),
+    ]);
+    assert_eq!(o.status.code(), Some(0), "{o:?}");
+    let (head, rows) = read(&out.join("parts.csv"));
+    let col = |name: &str| {
+        head.iter()
+            .position(|h| h == name)
+            .unwrap_or_else(|| panic!("no column {name} in {head:?}"))
+    };
+    let (kind, at_a, at_b) = (
+        col("kind"),
+        col("moment at A (kip·ft)"),
+        col("moment at B (kip·ft)"),
+    );
+    let row = |part: &str| {
+        rows.iter()
+            .find(|r| r[0] == "service" && r[1] == part)
+            .expect("row")
+    };
+    assert_eq!(row("edge_west")[kind], "beam");
+    assert_eq!(row("column")[kind], "part");
+    assert_eq!(row("column")[at_a], "");
+    let num = |s: &str| s.parse::<f64>().expect("number");
+    // continuous over the post: the moment at the end of one is the moment
+    // at the start of the next
+    let (west_b, east_a) = (num(&row("edge_west")[at_b]), num(&row("edge_east")[at_a]));
+    assert!(
+        (west_b - east_a).abs() <= 1e-9 * west_b.abs(),
+        "{west_b} {east_a}"
+    );
+    assert!(west_b < 0.0, "hogging over the post");
+    let (head, rows) = read(&out.join("nodes.csv"));
+    let rot = head
+        .iter()
+        .position(|h| h == "rotation (rad)")
+        .expect("rotation column");
+    let held = head
+        .iter()
+        .position(|h| h == "reaction moment (kip·ft)")
+        .expect("reaction moment column");
+    let ledger = rows.iter().find(|r| r[1] == "ledger").expect("ledger");
+    assert!(num(&ledger[rot]) < 0.0, "the ledger end turns");
+    assert_eq!(ledger[held], "", "a pin holds no moment");
+    let base = rows.iter().find(|r| r[1] == "base").expect("base");
+    assert_eq!(base[rot], "", "no beam turns the post's base");
+}
