@@ -59,6 +59,12 @@ pub fn is_part_result(field: &str) -> bool {
     PART_RESULTS.iter().any(|(n, _)| *n == field)
 }
 
+/// Whether `field` is a result only a beam has (its bending).
+#[must_use]
+pub fn is_beam_result(field: &str) -> bool {
+    BENDING_RESULTS.iter().any(|(n, _)| *n == field)
+}
+
 /// Whether `field` is a result of a node in a model of this kind.
 #[must_use]
 pub fn is_node_result(kind: Kind, field: &str) -> bool {

@@ -127,13 +127,16 @@ impl<'a> Sweeper<'a> {
             let Some((object, field)) = s.split_once('.') else {
                 return Err(Err(format!("`{s}` is not a result such as `core.stress`")));
             };
-            let ok_part =
-                model.part_index(object).is_some() && crate::model::results::is_part_result(field);
+            let ok_part = model.part_index(object).is_some_and(|i| {
+                crate::model::results::is_part_result(field)
+                    || (model.parts[i].bend.is_some()
+                        && crate::model::results::is_beam_result(field))
+            });
             let ok_node = model.node_index(object).is_some()
                 && crate::model::results::is_node_result(model.kind, field);
             if !ok_part && !ok_node {
                 return Err(Err(format!(
-                    "`{s}` is not a result of a part or node of {}",
+                    "`{s}` is not a result of a part, beam or node of {}",
                     source.name
                 )));
             }

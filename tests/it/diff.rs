@@ -13,7 +13,13 @@ fn root() -> PathBuf {
 
 use super::common::tandem;
 
-const PAIRS: &[(&str, i32)] = &[("wall", 0), ("part", 0), ("rename", 0), ("flip", 1)];
+const PAIRS: &[(&str, i32)] = &[
+    ("wall", 0),
+    ("part", 0),
+    ("rename", 0),
+    ("flip", 1),
+    ("flitch", 0),
+];
 
 #[test]
 fn golden_diffs() {
@@ -55,6 +61,21 @@ fn what_each_pair_shows() {
         )
         .to_string()
     };
+    // a thicker flitch plate: its section's area and inertia change, it
+    // takes more of the moment and the timber less
+    let flitch = run("flitch");
+    assert!(
+        flitch.contains("| beam `p1` inertia | 5333000 mm⁴ | 8000000 mm⁴ |"),
+        "{flitch}"
+    );
+    assert!(
+        flitch.contains("| beam `p1` moment | 7.249 kN·m | 8.758 kN·m | +20.8 % |"),
+        "{flitch}"
+    );
+    assert!(
+        flitch.contains("| beam `t1` moment | 7.751 kN·m | 6.242 kN·m | -19.5 % |"),
+        "{flitch}"
+    );
     let wall = run("wall");
     assert!(
         wall.contains("| part `shell` area | 11.91 in² | 16.10 in² |"),

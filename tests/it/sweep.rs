@@ -374,3 +374,48 @@ fn show_takes_every_result_a_check_can_name() {
     );
     assert!(text.contains("2.54"), "100 in is 2.54 m: {text}");
 }
+
+/// `--show` takes a beam's bending: on the flitch lintel the moment in the
+/// glulam over a bolt line is proportional to the total line load (dead
+/// 4.2 kN/m plus the swept live load), as a linear model gives.
+#[test]
+fn a_sweep_shows_a_beams_moment() {
+    let out = super::common::tandem(&[
+        "sweep",
+        "examples/flitch_lintel.tandem",
+        "--vary",
+        "floor_live=2 kN/m..8 kN/m",
+        "--steps",
+        "4",
+        "--show",
+        "g2.moment,b.rotation",
+        "--json",
+    ]);
+    assert_eq!(out.status.code(), Some(0), "{out:?}");
+    let j: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    let steps = j["steps"].as_array().expect("steps");
+    let ratio: Vec<f64> = steps
+        .iter()
+        .map(|s| {
+            let live = s["value_si"].as_f64().expect("value");
+            let m = s["shown"][0]["value_si"].as_f64().expect("moment");
+            m / (4.2e3 + live)
+        })
+        .collect();
+    for r in &ratio {
+        assert!((r - ratio[0]).abs() <= 1e-9 * ratio[0].abs(), "{ratio:?}");
+    }
+    // a beam result on a plain part is refused
+    let out = super::common::tandem(&[
+        "sweep",
+        "examples/mezzanine_edge.tandem",
+        "--vary",
+        "live=0.5 kip/ft..0.7 kip/ft",
+        "--show",
+        "column.moment",
+    ]);
+    assert_eq!(out.status.code(), Some(2));
+    assert!(
+        String::from_utf8_lossy(&out.stderr).contains("is not a result of a part, beam or node")
+    );
+}

@@ -138,7 +138,8 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
         v.push((format!("{name} support"), sup.into()));
     }
     for part in &model.parts {
-        let name = format!("part `{}`", part.name);
+        let kind = if part.bend.is_some() { "beam" } else { "part" };
+        let name = format!("{kind} `{}`", part.name);
         v.push((
             format!("{name} ends"),
             format!(
@@ -163,6 +164,23 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
                     d.quantity(Quantity::new(stiffness.value, Dimension::STIFFNESS)),
                 ));
             }
+        }
+        if let Some(b) = &part.bend {
+            v.push((
+                format!("{name} inertia"),
+                d.quantity(Quantity::new(b.inertia, Dimension::SECOND_MOMENT)),
+            ));
+            v.push((format!("{name} depth"), len(2.0 * b.fibre)));
+            let ends = ["A", "B"];
+            let hinged: Vec<&str> = (0..2).filter(|&k| b.hinge[k]).map(|k| ends[k]).collect();
+            v.push((
+                format!("{name} hinge"),
+                if hinged.is_empty() {
+                    "none".into()
+                } else {
+                    hinged.join(", ")
+                },
+            ));
         }
         if part.misfit.value != 0.0 {
             v.push((format!("{name} misfit"), len(part.misfit.value)));
@@ -273,27 +291,65 @@ fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<Strin
             d.quantity(Quantity::new(s.movement.value, Dimension::LENGTH))
         ));
     }
+    let per_length = Dimension::FORCE.div(Dimension::LENGTH);
+    for w in &c.distributed {
+        let f = |x: f64| d.quantity(Quantity::new(x, per_length));
+        acts.push(format!(
+            "load {} ({}, {})",
+            model.parts[w.part].name,
+            f(w.w[0]),
+            f(w.w[1])
+        ));
+    }
+    for m in &c.moments {
+        acts.push(format!(
+            "moment {} {}",
+            model.nodes[m.node].name,
+            d.quantity(Quantity::new(m.moment, Dimension::MOMENT))
+        ));
+    }
+    for t in &c.twists {
+        acts.push(format!(
+            "{} turns {} rad",
+            model.nodes[t.node].name,
+            number(t.angle, d.digits)
+        ));
+    }
     acts
 }
 
 fn results(model: &Model, solution: &Solution) -> Vec<(String, String, Quantity)> {
     let mut v = Vec::new();
     for r in &solution.combinations {
-        for (p, pr) in model.parts.iter().zip(&r.parts) {
+        for (i, (p, pr)) in model.parts.iter().zip(&r.parts).enumerate() {
+            let kind = if p.bend.is_some() { "beam" } else { "part" };
             v.push((
                 r.name.clone(),
-                format!("part `{}` force", p.name),
+                format!("{kind} `{}` force", p.name),
                 Quantity::new(pr.force.value, Dimension::FORCE),
             ));
             if let Some(s) = pr.stress {
                 v.push((
                     r.name.clone(),
-                    format!("part `{}` stress", p.name),
+                    format!("{kind} `{}` stress", p.name),
                     Quantity::new(s.value, Dimension::PRESSURE),
                 ));
             }
+            if let Some(b) = r.beam(i) {
+                for (what, q) in [
+                    ("moment", Quantity::new(b.moment_max.0, Dimension::MOMENT)),
+                    ("shear", Quantity::new(b.shear_max, Dimension::FORCE)),
+                    (
+                        "deflection",
+                        Quantity::new(b.deflection_max.0, Dimension::LENGTH),
+                    ),
+                ] {
+                    v.push((r.name.clone(), format!("beam `{}` {what}", p.name), q));
+                }
+            }
         }
-        for (n, nr) in model.nodes.iter().zip(&r.nodes) {
+        let turns = model.rotating_nodes();
+        for (i, (n, nr)) in model.nodes.iter().zip(&r.nodes).enumerate() {
             match model.kind {
                 Kind::Axial => v.push((
                     r.name.clone(),
@@ -309,6 +365,13 @@ fn results(model: &Model, solution: &Solution) -> Vec<(String, String, Quantity)
                         ));
                     }
                 }
+            }
+            if turns[i] {
+                v.push((
+                    r.name.clone(),
+                    format!("node `{}` rotation (rad)", n.name),
+                    Quantity::number(nr.rotation),
+                ));
             }
         }
     }
@@ -345,7 +408,7 @@ fn entity(what: &str) -> Option<String> {
     let mut it = what.splitn(3, ' ');
     let kind = it.next()?;
     let name = it.next()?;
-    matches!(kind, "part" | "node").then(|| format!("{kind} {name}"))
+    matches!(kind, "part" | "beam" | "node").then(|| format!("{kind} {name}"))
 }
 
 /// Compare two analysed revisions.
