@@ -363,6 +363,9 @@ struct LongTermPart<'a> {
     short_term_stress_Pa: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     long_term_stress_Pa: Option<f64>,
+    /// A beam's long-term bending (as the combinations' `parts` give it).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    long_term_bending: Option<BeamRecord>,
 }
 
 #[derive(Serialize, JsonSchema)]
@@ -565,6 +568,7 @@ fn long_term(a: &crate::Analysis) -> Vec<LongTerm<'_>> {
                             long_term_force_N: r.parts[i].force.value,
                             short_term_stress_Pa: short.parts[i].stress.map(|s| s.value),
                             long_term_stress_Pa: r.parts[i].stress.map(|s| s.value),
+                            long_term_bending: r.beam(i).map(BeamRecord::of),
                         })
                         .collect()
                 }),

@@ -347,6 +347,14 @@ fn long_term_lines(out: &mut String, a: &crate::Analysis, d: &Display) {
                     ]);
                 }
                 out.push_str(&aligned(&rows, &[0], "  "));
+                if !r.beams.is_empty() {
+                    out.push('\n');
+                    out.push_str(&aligned(
+                        &beam_rows(model, r, d, &Scales::of(r)),
+                        &[0],
+                        "  ",
+                    ));
+                }
             }
         }
     }

@@ -28,6 +28,9 @@ pub struct Split {
     pub sustained: (Vec<f64>, Vec<f64>),
     /// Elongation and free elongation under the other actions.
     pub transient: (Vec<f64>, Vec<f64>),
+    /// Each beam's bending under the sustained actions (at E·I / (1 + φ))
+    /// and under the others (at E·I), in the order of the result's beams.
+    pub beams: Vec<(super::BeamResult, super::BeamResult)>,
 }
 
 fn add(a: &Actions, b: &Actions) -> Actions {
@@ -61,26 +64,27 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
     if !creeps || !sustained {
         return Ok(Vec::new());
     }
-    // creep of bending stiffness is not modelled yet: the state is not
-    // computed rather than computed with elastic bending
-    let nonlinear = model.has_nonlinear_parts() || model.parts.iter().any(|p| p.bend.is_some());
+    let nonlinear = model.has_nonlinear_parts();
     let system = System::new(model)?;
     let n = model.parts.len();
     let k_full = system.stiffness();
-    let k_eff: Vec<f64> = model
-        .parts
-        .iter()
-        .zip(&k_full)
-        .map(|(p, k)| {
-            let phi = p
-                .material()
-                .and_then(|m| model.materials[m].creep)
-                .unwrap_or(0.0);
-            k / (1.0 + phi)
-        })
-        .collect();
-    let f_eff = system.factor(&k_eff, &[])?;
-    let f_full = system.factor(&k_full, &[])?;
+    let creep = |part: usize| {
+        1.0 + model.parts[part]
+            .material()
+            .and_then(|m| model.materials[m].creep)
+            .unwrap_or(0.0)
+    };
+    let k_eff: Vec<f64> = (0..n).map(|i| k_full[i] / creep(i)).collect();
+    // a beam's bending creeps as its stretching does: E·I / (1 + φ)
+    let (mode_k, mode_k_eff): (Vec<f64>, Vec<f64>) = system
+        .mode_stiffness()
+        .map(|(part, k)| (k, k / creep(part)))
+        .unzip();
+    let every =
+        |parts: &[f64], modes: &[f64]| -> Vec<f64> { parts.iter().chain(modes).copied().collect() };
+    let (all_eff, all_full) = (every(&k_eff, &mode_k_eff), every(&k_full, &mode_k));
+    let f_eff = system.factor(&all_eff, &[])?;
+    let f_full = system.factor(&all_full, &[])?;
     let zero = vec![0.0; n];
     let mut out = Vec::new();
     for (ci, combo) in model.combinations.iter().enumerate() {
@@ -89,11 +93,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
                 combination: ci,
                 result: None,
                 split: None,
-                note: Some(if model.parts.iter().any(|p| p.bend.is_some()) {
-                    "not computed: the long-term state of assemblies with beams is not yet modelled".into()
-                } else {
-                    "not computed: the long-term state adds two linear solves, which one-sense or gapped parts do not allow".into()
-                }),
+                note: Some("not computed: the long-term state adds two linear solves, which one-sense or gapped parts do not allow".into()),
             });
             continue;
         }
@@ -119,17 +119,55 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
                 misfit: false,
             },
         )?;
-        let (qs, es) = system.respond(&f_eff, &k_eff, &a_s.free, &zero, &a_s);
-        let (qt, et) = system.respond(&f_full, &k_full, &a_t.free, &zero, &a_t);
+        let (qs, es) = system.respond(&f_eff, &all_eff, &a_s.free, &zero, &a_s);
+        let (qt, et) = system.respond(&f_full, &all_full, &a_t.free, &zero, &a_t);
         let q: Vec<f64> = qs.iter().zip(&qt).map(|(a, b)| a + b).collect();
         let elong: Vec<f64> = es.iter().zip(&et).map(|(a, b)| a + b).collect();
-        let forces: Vec<f64> = (0..n)
-            .map(|i| k_eff[i] * (es[i] - a_s.free[i]) + k_full[i] * (et[i] - a_t.free[i]))
-            .collect();
+        let (fs, ft): (Vec<f64>, Vec<f64>) = (0..n)
+            .map(|i| {
+                (
+                    k_eff[i] * (es[i] - a_s.free[i]),
+                    k_full[i] * (et[i] - a_t.free[i]),
+                )
+            })
+            .unzip();
+        let forces: Vec<f64> = fs.iter().zip(&ft).map(|(a, b)| a + b).collect();
         let total = add(&a_s, &a_t);
         let states = vec![PartState::Elastic; n];
-        let result = system.results(combo.name.clone(), &q, &total, &elong, &forces, &states, 1);
-        let result = super::verified(model, result, combo.span)?;
+        let name = || combo.name.clone();
+        let mut beams = Vec::new();
+        let mut result = if mode_k.is_empty() {
+            system.results(name(), &q, &total, &elong, &forces, &states, 1)
+        } else {
+            // the modes' moments, sustained at the reduced E·I and the
+            // rest at E·I; each state's deflection at its own E·I
+            let (ps, pt) = (system.project(&qs), system.project(&qt));
+            let moments: Vec<f64> = (0..mode_k.len())
+                .map(|j| {
+                    let i = n + j;
+                    mode_k_eff[j] * (a_s.e0[i] + ps[i]) + mode_k[j] * (a_t.e0[i] + pt[i])
+                })
+                .collect();
+            let law = super::ModeLaw::Stiffness;
+            let rs = system.results_with(name(), &qs, &a_s, &es, &fs, &states, 1, law(&mode_k_eff));
+            let rt = system.results_with(name(), &qt, &a_t, &et, &ft, &states, 1, law(&mode_k));
+            let mut r = system.results_with(
+                name(),
+                &q,
+                &total,
+                &elong,
+                &forces,
+                &states,
+                1,
+                super::ModeLaw::Moments(&moments),
+            );
+            for ((b, s), t) in r.beams.iter_mut().zip(&rs.beams).zip(&rt.beams) {
+                *b = b.clone().with_deflection_of(s, t);
+            }
+            beams = rs.beams.into_iter().zip(rt.beams).collect();
+            r
+        };
+        result = super::verified(model, result, combo.span)?;
         out.push(LongTerm {
             combination: ci,
             result: Some(result),
@@ -138,6 +176,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
                 k: k_full.clone(),
                 sustained: (es, a_s.free),
                 transient: (et, a_t.free),
+                beams,
             }),
             note: None,
         });

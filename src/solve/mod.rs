@@ -36,7 +36,7 @@ use active_set::{
     engaged_stiffness, initial_modes, law, newton_modes, state_hash, wrong_parts, Mode,
 };
 use mechanism::{dominant, singular};
-use results::{gather_results, ResultInputs};
+use results::{gather_results, ModeLaw, ResultInputs};
 use system::{numeric, Elements};
 
 use std::collections::HashSet;

@@ -178,9 +178,13 @@ pub struct BeamResult {
     /// The largest deflection across the chord between the deflected ends
     /// (m, along local y) and where it is (m from end A).
     pub deflection_max: (f64, f64),
-    /// Its length (m) and flexural stiffness E·I (N·m²).
+    /// Its length (m).
     pub length: f64,
-    pub ei: f64,
+    /// The deflection across the chord as a polynomial in x (m from end
+    /// A): `v(x) = Σ deflection[k]·xᵏ`. A quartic for a uniform load; in a
+    /// long-term state the sum of the sustained part's (at the creep-reduced
+    /// E·I) and the transient part's.
+    pub deflection: [f64; 5],
 }
 
 impl BeamResult {
@@ -200,18 +204,35 @@ impl BeamResult {
     }
 
     /// The deflection at `x` from end A across the chord between the
-    /// deflected ends (m, along local y): E·I·v″ = M(x) with v = 0 at both
-    /// ends, integrated exactly.
+    /// deflected ends (m, along local y).
     #[must_use]
     pub fn deflection_at(&self, x: f64) -> f64 {
-        let (m, va, wt, l) = (
-            self.end_moments[0],
-            self.end_shears[0],
-            self.load[1],
-            self.length,
-        );
-        let raw = |x: f64| -m * x * x / 2.0 + va * x.powi(3) / 6.0 + wt * x.powi(4) / 24.0;
-        (raw(x) - x / l * raw(l)) / self.ei
+        self.deflection.iter().rev().fold(0.0, |acc, c| acc * x + c)
+    }
+
+    /// The largest deflection along the beam, sampled, and where.
+    fn largest_deflection(&self) -> (f64, f64) {
+        let mut defl = (0.0f64, 0.0);
+        for k in 1..DEFLECTION_STEPS {
+            let x = self.length * f64::from(k) / f64::from(DEFLECTION_STEPS);
+            let d = self.deflection_at(x);
+            if d.abs() > defl.0.abs() {
+                defl = (d, x);
+            }
+        }
+        defl
+    }
+
+    /// A long-term state's beam: this one's forces and moments, its
+    /// deflection the sum of the sustained and transient states' (each at
+    /// its own E·I).
+    #[must_use]
+    pub fn with_deflection_of(mut self, sustained: &Self, transient: &Self) -> Self {
+        for k in 0..5 {
+            self.deflection[k] = sustained.deflection[k] + transient.deflection[k];
+        }
+        self.deflection_max = self.largest_deflection();
+        self
     }
 
     /// The moment at `x` from end A (sagging positive).
@@ -244,6 +265,9 @@ fn beam_result(part: usize, m: [f64; 2], w: [f64; 2], l: f64, ei: f64) -> BeamRe
             consider(x);
         }
     }
+    // EI·v'' = M with v = 0 at both ends (the chord), integrated exactly:
+    // EI·v = −Ma·x²/2 + Va·x³/6 + w·x⁴/24 + c·x with v(L) = 0
+    let c1 = -(-m[0] * l * l / 2.0 + va * l.powi(3) / 6.0 + wt * l.powi(4) / 24.0) / l;
     let mut b = BeamResult {
         part,
         end_moments: m,
@@ -253,17 +277,15 @@ fn beam_result(part: usize, m: [f64; 2], w: [f64; 2], l: f64, ei: f64) -> BeamRe
         shear_max: if va.abs() >= vb.abs() { va } else { -vb },
         deflection_max: (0.0, 0.0),
         length: l,
-        ei,
+        deflection: [
+            0.0,
+            c1 / ei,
+            -m[0] / 2.0 / ei,
+            va / 6.0 / ei,
+            wt / 24.0 / ei,
+        ],
     };
-    let mut defl = (0.0f64, 0.0);
-    for k in 1..DEFLECTION_STEPS {
-        let x = l * f64::from(k) / f64::from(DEFLECTION_STEPS);
-        let d = b.deflection_at(x);
-        if d.abs() > defl.0.abs() {
-            defl = (d, x);
-        }
-    }
-    b.deflection_max = defl;
+    b.deflection_max = b.largest_deflection();
     b
 }
 
@@ -318,6 +340,20 @@ pub(super) struct ResultInputs<'a> {
     pub(super) forces: &'a [f64],
     pub(super) states: &'a [PartState],
     pub(super) trials: usize,
+    /// How the bending modes carry moment.
+    pub(super) modes: ModeLaw<'a>,
+}
+
+/// The moments of the bending modes in a result.
+#[derive(Clone, Copy)]
+pub(super) enum ModeLaw<'a> {
+    /// Elastic: each mode's stiffness times its deformation.
+    Elastic,
+    /// The given stiffness per mode (a creep-reduced E·I) times its
+    /// deformation; deflections at the E·I reduced in proportion.
+    Stiffness(&'a [f64]),
+    /// The given moment per mode (a long-term state's, summed).
+    Moments(&'a [f64]),
 }
 
 pub(super) fn gather_results(
@@ -368,10 +404,19 @@ pub(super) fn gather_results(
             end_m.push([0.0; 2]);
         }
     }
+    // E·I for the deflection, relative to the elastic
+    let mut ei_factor = vec![1.0; end_m.len()];
     for (j, m) in elems.modes.iter().enumerate() {
         let i = np + j;
         let e = r.e0[i] + elems.g(i).iter().map(|&(u, g)| g * r.q[u]).sum::<f64>();
-        let f = elems.k[i] * e;
+        let f = match r.modes {
+            ModeLaw::Elastic => elems.k[i] * e,
+            ModeLaw::Stiffness(k) => {
+                ei_factor[beam_of[m.part]] = k[j] / elems.k[i];
+                k[j] * e
+            }
+            ModeLaw::Moments(mm) => mm[j],
+        };
         for &(c, v) in &m.comps {
             net[c] -= f * v;
         }
@@ -388,7 +433,7 @@ pub(super) fn gather_results(
         let w = r.along[i];
         let [_, _, ma, mb] = super::actions::equivalent_loads(w[1], l, bend.hinge);
         let m = end_m[beam_of[i]];
-        let ei = model.materials[mat].e.value * bend.inertia;
+        let ei = model.materials[mat].e.value * bend.inertia * ei_factor[beam_of[i]];
         let b = beam_result(i, [m[0] - ma, m[1] - mb], w, l, ei);
         // a beam's stress is its extreme fibre's: N/A ± M·c/I, the larger
         if let Some(area) = p.area() {

@@ -228,11 +228,22 @@ impl<'m> System<'m> {
 
     /// The stiffness of every element: the parts' as given, the bending
     /// modes' elastic.
+    /// A `k` as long as every element's gives the modes' stiffness too.
     fn all_k<'k>(&'k self, k: &'k [f64]) -> impl Iterator<Item = (usize, f64)> + 'k {
+        let given = k.len();
         k.iter()
             .copied()
             .enumerate()
-            .chain((self.elems.n_parts..self.elems.k.len()).map(|i| (i, self.elems.k[i])))
+            .chain((given..self.elems.k.len()).map(|i| (i, self.elems.k[i])))
+    }
+
+    /// Each bending mode's elastic stiffness and the part (beam) it bends.
+    pub(super) fn mode_stiffness(&self) -> impl Iterator<Item = (usize, f64)> + '_ {
+        self.elems
+            .modes
+            .iter()
+            .zip(&self.elems.k[self.elems.n_parts..])
+            .map(|(m, &k)| (m.part, k))
     }
 
     /// Factorise with per-part stiffnesses (0 removes a part).
@@ -356,6 +367,22 @@ impl<'m> System<'m> {
         states: &[PartState],
         trials: usize,
     ) -> CombinationResult {
+        self.results_with(name, q, a, elong, forces, states, trials, ModeLaw::Elastic)
+    }
+
+    /// [`System::results`] with the bending modes' moments as given.
+    #[allow(clippy::too_many_arguments)]
+    pub(super) fn results_with(
+        &self,
+        name: String,
+        q: &[f64],
+        a: &Actions,
+        elong: &[f64],
+        forces: &[f64],
+        states: &[PartState],
+        trials: usize,
+        modes: ModeLaw<'_>,
+    ) -> CombinationResult {
         gather_results(
             self.model,
             &self.map,
@@ -372,6 +399,7 @@ impl<'m> System<'m> {
                 forces,
                 states,
                 trials,
+                modes,
             },
         )
     }

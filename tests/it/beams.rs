@@ -814,3 +814,77 @@ fn a_beam_buckles_about_its_weak_axis() {
     );
     assert!(s.combinations[0].beams[0].moment_max.0.abs() < 1e-6);
 }
+
+/// Creep of a beam by the effective modulus method (EN 1992-1-1 7.4.3):
+/// under a sustained load a beam of one creeping material keeps its
+/// moments and sags (1 + φ) times as far; a timber beam beside a steel
+/// plate (which does not creep) sheds load to it, the two sharing the
+/// sustained moment by E·I/(1 + φ) and E·I; the transient part of a
+/// combination still shares by E·I (superposition).
+#[test]
+fn beams_creep_by_the_effective_modulus() {
+    let phi = 0.6;
+    let text = format!(
+        "material t {{ E = 11 GPa; creep = {phi} }}\nmaterial st {{ E = 200 GPa }}\n\
+         node a at (0 m, 0 m)\nnode b at (2 m, 0 m)\nnode c at (4 m, 0 m)\npin a\nfix c y\n\
+         beam t1 {{ material = t; section = rect(b = 90 mm, h = 240 mm); ends = a, b }}\n\
+         beam t2 {{ material = t; section = rect(b = 90 mm, h = 240 mm); ends = b, c }}\n\
+         beam p1 {{ material = st; section = rect(b = 8 mm, h = 200 mm); ends = a, b }}\n\
+         beam p2 {{ material = st; section = rect(b = 8 mm, h = 200 mm); ends = b, c }}\n\
+         case dead sustained {{ load b = (0 kN, -20 kN) }}\ncase live {{ load b = (0 kN, -10 kN) }}\n\
+         combine both = dead + live\n"
+    );
+    let src = tandem::source::Source::new("creep.tandem", text.clone());
+    let a = tandem::analyse(&src).unwrap_or_else(|e| panic!("{e:?}"));
+    let lt = a.long_term[0].result.as_ref().expect("a long-term state");
+    let ei_t = 11e9 * 0.09 * 0.24f64.powi(3) / 12.0;
+    let ei_s = 200e9 * 0.008 * 0.2f64.powi(3) / 12.0;
+    let l = 4.0;
+    // moment at mid-span of the pair: PL/4, shared by stiffness
+    let share = |p: f64, ei_t: f64| p * l / 4.0 * ei_t / (ei_t + ei_s);
+    let timber = share(20e3, ei_t / (1.0 + phi)) + share(10e3, ei_t);
+    let b = lt.beams.iter().find(|b| b.part == 0).expect("t1");
+    close(
+        b.end_moments_along()[1],
+        timber,
+        "timber moment at mid-span",
+    );
+    let steel = 30e3 * l / 4.0 - timber;
+    let b = lt.beams.iter().find(|b| b.part == 2).expect("p1");
+    close(b.end_moments_along()[1], steel, "steel moment at mid-span");
+    // mid-span deflection: P L³ / (48 ΣEI) for each part of the load
+    let defl = 20e3 * l.powi(3) / (48.0 * (ei_t / (1.0 + phi) + ei_s))
+        + 10e3 * l.powi(3) / (48.0 * (ei_t + ei_s));
+    close(
+        lt.nodes[1].displacement[1].value,
+        -defl,
+        "deflection at mid-span",
+    );
+
+    // one creeping beam alone: moments unchanged, deflection (1 + φ) times
+    let alone = text
+        .lines()
+        .filter(|l| !l.starts_with("beam p"))
+        .flat_map(|l| [l, "\n"])
+        .collect::<String>()
+        .replace("case live { load b = (0 kN, -10 kN) }\n", "case live { }\n");
+    let src = tandem::source::Source::new("alone.tandem", alone);
+    let a = tandem::analyse(&src).unwrap_or_else(|e| panic!("{e:?}"));
+    let short = &a.solution.combinations[0];
+    let lt = a.long_term[0].result.as_ref().expect("a long-term state");
+    close(
+        lt.beams[0].end_moments_along()[1],
+        short.beams[0].end_moments_along()[1],
+        "a determinate beam keeps its moment",
+    );
+    close(
+        lt.nodes[1].displacement[1].value,
+        (1.0 + phi) * short.nodes[1].displacement[1].value,
+        "and sags (1 + φ) times",
+    );
+    close(
+        lt.beams[0].deflection_max.0,
+        (1.0 + phi) * short.beams[0].deflection_max.0,
+        "along its span too",
+    );
+}

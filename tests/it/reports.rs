@@ -502,6 +502,7 @@ fn beam_equations_are_all_read_by_the_verifier() {
         "σ = N/A",
         "ΣM at",
         "ΣM about",
+        "E·I_eff",
     ];
     let mut seen = std::collections::HashSet::new();
     for name in ["flitch_lintel", "mezzanine_edge"] {

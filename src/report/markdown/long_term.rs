@@ -147,4 +147,60 @@ fn part_equations(
         ));
         doc.end_list();
     }
+    beam_equations(doc, f, model, r, split);
+}
+
+/// Each beam's long-term bending: the sustained actions meet E·I / (1 + φ),
+/// the others E·I; end moments add, deflections add, each at its own E·I.
+fn beam_equations(
+    doc: &mut Doc,
+    f: &Fmt<'_>,
+    model: &Model,
+    r: &crate::solve::CombinationResult,
+    split: &crate::solve::longterm::Split,
+) {
+    if split.beams.is_empty() {
+        return;
+    }
+    doc.p("Long-term bending of each beam: the sustained actions (subscript s) bend it at E·I_eff = E·I / (1 + φ), the others (subscript t) at E·I; its end moments (counter-clockwise on the beam) are the sums, and so is its deflection, each part at its own E·I.");
+    for (b, (s, t)) in r.beams.iter().zip(&split.beams) {
+        let p = &model.parts[b.part];
+        let (Some(bend), Some(m)) = (&p.bend, p.material()) else {
+            continue;
+        };
+        let mat = &model.materials[m];
+        let phi = mat.creep.unwrap_or(0.0);
+        doc.p(&format!("**{}**", text(&p.name)));
+        let ei_unit = Shown {
+            name: format!("{}·{}²", f.d.force.name, f.d.length.name),
+            factor: f.d.force.factor * f.d.length.factor * f.d.length.factor,
+        };
+        let ei = mat.e.value * bend.inertia;
+        if phi > 0.0 {
+            doc.eq(&format!(
+                "E·I_eff = E·I / (1 + φ) = {} · {} / (1 + {}) = {}",
+                f.stress(mat.e.value),
+                f.inertia(bend.inertia),
+                f.n(phi),
+                f.with(ei / (1.0 + phi), &ei_unit)
+            ));
+        }
+        for (k, end) in ["M_AB", "M_BA"].iter().enumerate() {
+            doc.eq(&format!(
+                "{end} = {end},s + {end},t = {} + {} = {}",
+                f.moment_t(s.end_moments[k]),
+                f.moment_t(t.end_moments[k]),
+                f.moment(b.end_moments[k])
+            ));
+        }
+        doc.end_list();
+        doc.p(&format!(
+            "Largest moment in size along `{}`: {} at {} from end A; largest deflection across its chord {} at {}.",
+            p.name,
+            f.moment(b.moment_max.0),
+            f.with(b.moment_max.1, &f.d.length),
+            f.small(b.deflection_max.0),
+            f.with(b.deflection_max.1, &f.d.length),
+        ));
+    }
 }
