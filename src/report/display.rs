@@ -234,6 +234,12 @@ impl Display {
         }
     }
 
+    /// The unit of a load along a beam: force over length (`kN/m`).
+    #[must_use]
+    pub fn per_length(&self) -> Shown {
+        Shown::ratio(&self.force, &self.length)
+    }
+
     /// The unit for a quantity of this dimension, if the display has one.
     pub fn unit_for(&self, dim: Dimension) -> Option<&Shown> {
         Some(match dim {

@@ -8,7 +8,7 @@ use super::key::Entry;
 use super::layout::Layout;
 use super::svg::{escape, Stroke, Svg, P};
 use crate::model::{Model, Part};
-use crate::report::display::{number, Display, Shown};
+use crate::report::display::{number, Display};
 use crate::solve::{BeamResult, CombinationResult};
 
 /// Points along a beam where its moment and deflection are drawn.
@@ -62,14 +62,6 @@ pub(super) fn entries(model: &Model) -> Vec<Entry> {
     out
 }
 
-/// The unit of a load along a beam (`kN/m`).
-fn per_length(d: &Display) -> Shown {
-    Shown {
-        name: format!("{}/{}", d.force.name, d.length.name),
-        factor: d.force.factor / d.length.factor,
-    }
-}
-
 /// Each case's loads along beams, as a row of arrows onto the beam with
 /// their tails joined, labelled with the case and the load per length; and
 /// each case's moments at nodes, as a turning arrow.
@@ -80,7 +72,7 @@ pub(super) fn sketch_loads(
     d: &Display,
     entries: &mut Vec<Entry>,
 ) {
-    let unit_w = per_length(d);
+    let unit_w = d.per_length();
     let mut rows = vec![0usize; model.parts.len()];
     let mut turns = vec![0usize; model.nodes.len()];
     for c in &model.cases {

@@ -38,14 +38,6 @@ pub(super) fn end_force(model: &Model, r: &CombinationResult, i: usize, k: usize
     [pull * dir[0] - v * across[0], pull * dir[1] - v * across[1]]
 }
 
-/// The unit of a load along a beam: force over length (`kN/m`).
-pub(super) fn line_load(d: &Display) -> Shown {
-    Shown {
-        name: format!("{}/{}", d.force.name, d.length.name),
-        factor: d.force.factor / d.length.factor,
-    }
-}
-
 /// The section "Beams: bending" of a combination with beams.
 pub(super) fn bending(doc: &mut Doc, c: &Combo<'_>) {
     if c.r.beams.is_empty() {
@@ -112,7 +104,7 @@ fn one_beam(doc: &mut Doc, c: &Combo<'_>, b: &BeamResult) {
     }
     // the load across it and its fixed-end moments
     let w = b.load;
-    let unit = line_load(f.d);
+    let unit = f.d.per_length();
     let wt = |v: f64| f.term(v, &unit);
     let dir = model.direction(i);
     let [_, _, ma, mb] = crate::solve::equivalent_loads(w[1], l, hinge);

@@ -291,9 +291,15 @@ fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<Strin
             d.quantity(Quantity::new(s.movement.value, Dimension::LENGTH))
         ));
     }
-    let per_length = Dimension::FORCE.div(Dimension::LENGTH);
+    let per_length = d.per_length();
     for w in &c.distributed {
-        let f = |x: f64| d.quantity(Quantity::new(x, per_length));
+        let f = |x: f64| {
+            format!(
+                "{} {}",
+                number(per_length.value(x), d.digits),
+                per_length.name
+            )
+        };
         acts.push(format!(
             "load {} ({}, {})",
             model.parts[w.part].name,
