@@ -199,8 +199,6 @@ fn main() {
             }
             // As `tandem::check` does, the syntax tree goes once the model is built.
             tandem::release(file);
-            // the report of beams is not timed yet
-            let bending = model.has_bending();
             let solved = tandem::solve::solve(&model);
             let sol = match solved {
                 Ok(s) => s,
@@ -220,16 +218,6 @@ fn main() {
             }
             let unknowns = sol.unknowns;
             let rss_solved = peak_rss_mib();
-            if bending {
-                println!(
-                    "| {name} | {n} | {unknowns} | {mib:.1} | {:.3} | {:.3} | {:.3} | {rss_solved:.0} | — | — | — |",
-                    (tp - t0).as_secs_f64(),
-                    (t1 - tp).as_secs_f64(),
-                    (t2 - t1).as_secs_f64(),
-                );
-                n *= 10;
-                continue;
-            }
             // The full report: checks, every equation.
             let (report, report_mib) = {
                 let checks = tandem::checks::evaluate(&model, &sol).unwrap_or_default();

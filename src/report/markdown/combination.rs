@@ -63,6 +63,13 @@ pub(super) fn combination_body(
             }
         }
     }
+    // Moments applied at each node.
+    let mut moments = vec![0.0f64; model.nodes.len()];
+    for &(case, factor) in &combo.terms {
+        for m in &model.cases[case].moments {
+            moments[m.node] += factor * m.moment;
+        }
+    }
     let mut in_body = vec![false; model.nodes.len()];
     for n in model
         .rigids
@@ -81,6 +88,7 @@ pub(super) fn combination_body(
         ci,
         incidence,
         loads: &loads,
+        moments: &moments,
         in_body: &in_body,
         nd,
     };
@@ -102,6 +110,8 @@ pub(super) struct Combo<'a> {
     pub(super) incidence: &'a [Vec<(usize, f64, [f64; 2])>],
     /// The combined load on each node component.
     pub(super) loads: &'a [[f64; 2]],
+    /// The combined moment applied at each node (counter-clockwise).
+    pub(super) moments: &'a [f64],
     /// Whether each node belongs to a rigid body or a tie.
     pub(super) in_body: &'a [bool],
     pub(super) nd: usize,

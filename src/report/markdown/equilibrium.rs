@@ -17,22 +17,6 @@ fn intro(r: &crate::solve::CombinationResult) -> &'static str {
     }
 }
 
-/// The moment applied at node `n` in the combination (counter-clockwise).
-fn applied_moment(c: &Combo<'_>, n: usize) -> f64 {
-    let combo = &c.model.combinations[c.ci];
-    combo
-        .terms
-        .iter()
-        .flat_map(|&(case, factor)| {
-            c.model.cases[case]
-                .moments
-                .iter()
-                .filter(move |m| m.node == n)
-                .map(move |m| factor * m.moment)
-        })
-        .sum()
-}
-
 /// `ΣM at NODE: …` where beam ends turn a node that is free to rotate (not
 /// held, not of a rigid body).
 fn moment_balance(c: &Combo<'_>, n: usize) -> Option<String> {
@@ -56,7 +40,7 @@ fn moment_balance(c: &Combo<'_>, n: usize) -> Option<String> {
     if sym.is_empty() {
         return None;
     }
-    let applied = applied_moment(c, n);
+    let applied = c.moments[n];
     if applied != 0.0 {
         sym.push("+ M".into());
         num.push(format!("+ {}", f.moment_t(applied)));
@@ -199,7 +183,7 @@ pub(super) fn equilibrium(doc: &mut Doc, c: &Combo<'_>) {
                     }
                 }
             }
-            let applied = applied_moment(c, n);
+            let applied = c.moments[n];
             if applied != 0.0 {
                 turning.push(format!("+ {}", f.moment_t(applied)));
             }
@@ -297,7 +281,7 @@ pub(super) fn reactions(doc: &mut Doc, c: &Combo<'_>) {
         }
         if nd == 2 {
             arm(x, y, loads[n][0], loads[n][1], &mut moment);
-            let applied = applied_moment(c, n);
+            let applied = c.moments[n];
             if applied != 0.0 {
                 moment.push(format!("+ {}", f.moment_t(applied)));
             }
