@@ -165,7 +165,10 @@ impl System<'_> {
             }
             if take.strains {
                 for t in &case.twists {
-                    if let Some(c) = map.rot[t.node] {
+                    if map.rigid_of[t.node].is_some() {
+                        // the rotation of a rigid body (direction 2)
+                        *moved.entry((t.node, 2)).or_default() += factor * t.angle;
+                    } else if let Some(c) = map.rot[t.node] {
                         u0[c] += factor * t.angle;
                     }
                 }
@@ -199,7 +202,7 @@ impl System<'_> {
             }
         }
         for (&(node, d), &v) in &moved {
-            if map.node_body[node].is_none() {
+            if map.node_body[node].is_none() && d < nd {
                 u0[node * nd + d] = v;
             }
         }

@@ -372,7 +372,10 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
             node_body[i] = Some(b as u32);
         }
     }
-    // Constraints from supports on body members.
+    let has_rot = model.rotating_nodes();
+    // Constraints from supports on body members; a held rotation at a node
+    // of a rigid body that a beam turns holds the body's rotation
+    // (direction 2).
     for body in &mut bodies {
         let members = body.members.clone();
         for (i, px, py) in members {
@@ -382,6 +385,13 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
                     body.constraints.push((i, d, row));
                 }
             }
+            if body.coords == 3
+                && rigid_of[i].is_some()
+                && has_rot[i]
+                && model.nodes[i].fixed_rotation
+            {
+                body.constraints.push((i, 2, [0.0, 0.0, 1.0]));
+            }
         }
         reduce(body);
     }
@@ -389,22 +399,11 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
     // component comes after every translation; its unknown is numbered
     // with the node's translations, so that the factorisation of a long
     // beam stays banded.
-    let has_rot = model.rotating_nodes();
     let mut rot = vec![None; nn];
     let mut ncomp = nn * ndof;
     for i in 0..nn {
         if !has_rot[i] {
             continue;
-        }
-        if let (Some(ri), true) = (rigid_of[i], model.nodes[i].fixed_rotation) {
-            return Err(SolveError::BendingNotYet {
-                what: format!(
-                    "holding the rotation of node `{}` of rigid body `{}`",
-                    model.nodes[i].name, model.rigids[ri].name
-                ),
-                is: "is",
-                span: model.nodes[i].span,
-            });
         }
         rot[i] = Some(ncomp);
         ncomp += 1;

@@ -47,19 +47,6 @@ pub enum SolveError {
         span: Span,
     },
 
-    #[error("{what} {is} checked but not yet solved: this version of tandem solves pin-ended parts only")]
-    #[diagnostic(
-        code(tandem::solve::bending_not_yet),
-        help("members that bend are the next step of the solver; until then, model the assembly with parts (pin-ended) and rigid bodies")
-    )]
-    BendingNotYet {
-        /// "beam `lintel`", "the moment at `b`".
-        what: String,
-        is: &'static str,
-        #[label("here")]
-        span: Span,
-    },
-
     #[error("the support movements of {body} do not fit together in combination `{combination}`")]
     #[diagnostic(
         code(tandem::solve::settlement),

@@ -464,6 +464,7 @@ pub(super) fn gather_results(
             }
         }
     }
+    let mut reaction_moment = vec![0.0; nn];
     for body in &map.bodies {
         if body.pivot_rows.is_empty() {
             continue;
@@ -489,12 +490,17 @@ pub(super) fn gather_results(
                 lam -= body.inv[b][a] * rq[body.pivot_cols[b]];
             }
             let (n, d, _) = body.constraints[body.pivot_rows[a]];
-            reaction[n * nd + d] += lam;
+            if d == 2 {
+                // the held rotation of a rigid body
+                reaction_moment[n] += lam;
+            } else {
+                reaction[n * nd + d] += lam;
+            }
         }
     }
-    let mut reaction_moment = vec![0.0; nn];
     for i in 0..nn {
-        if let (Some(c), true) = (map.rot[i], model.nodes[i].fixed_rotation) {
+        if let (Some(c), true, None) = (map.rot[i], model.nodes[i].fixed_rotation, map.rigid_of[i])
+        {
             reaction_moment[i] = -net[c];
         }
     }

@@ -921,3 +921,37 @@ fn the_capacity_path_of_beams_is_said_not_traced() {
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("`yield_factor` has no value"));
 }
+
+/// A held rotation at a node of a rigid body holds the body's rotation: a
+/// cantilever from a body fixed at the beam's own node is clamped there
+/// (tip PL³/(3EI), held moment PL); a prescribed rotation of that node
+/// turns body and beam rigidly (the tip rises θ·L, no moment) (beam
+/// tables, from memory).
+#[test]
+fn a_held_rotation_at_a_node_of_a_rigid_body_holds_the_body() {
+    let p = 5e3;
+    let text = format!(
+        "{HEAD}node w at (0 m, -1 m)\nnode a at (0 m, 0 m)\nnode b at (6 m, 0 m)\nfix a\n\
+         rigid wall {{ nodes = w, a }}\n{}\
+         case tip {{ load b = (0 kN, -5 kN) }}\ncase turn {{ settle a rotation = 0.001 }}\n",
+        beam("g", "a, b", "")
+    );
+    let (_, s) = solve(&text);
+    let [tip, turn] = [&s.combinations[0], &s.combinations[1]];
+    close(
+        tip.nodes[2].displacement[1].value,
+        -p * L.powi(3) / (3.0 * E * I),
+        "tip deflection",
+    );
+    close(tip.nodes[1].reaction_moment, p * L, "held moment");
+    close(tip.rotations[0], 0.0, "the body is held");
+    close(
+        turn.nodes[2].displacement[1].value,
+        0.001 * L,
+        "tip rises θ·L",
+    );
+    close(turn.rotations[0], 0.001, "the body turns");
+    close(turn.beams[0].moment_max.0, 0.0, "no moment");
+    // w moves with the body: 1 m below a, it moves θ·1 m in x
+    close(turn.nodes[0].displacement[0].value, 0.001, "w swings");
+}
