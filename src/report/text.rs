@@ -74,6 +74,80 @@ pub fn combination_text(model: &Model, index: usize) -> String {
     s
 }
 
+/// What a case does, one phrase per action, in the file's order of kinds:
+/// loads at nodes, loads along beams, moments, temperature changes, free
+/// strains, support movements and prescribed rotations. The one wording of
+/// a case's actions (the report's inputs and `diff` use it).
+pub fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<String> {
+    use crate::units::{Dimension, Quantity};
+    let q = |v: f64, dim: Dimension| d.quantity(Quantity::new(v, dim));
+    let mut acts = Vec::new();
+    for l in &c.loads {
+        let node = &model.nodes[l.node].name;
+        acts.push(match model.kind {
+            Kind::Axial => format!("load `{node}` {}", q(l.force[0].value, Dimension::FORCE)),
+            Kind::Plane => format!(
+                "load `{node}` ({}, {})",
+                q(l.force[0].value, Dimension::FORCE),
+                q(l.force[1].value, Dimension::FORCE)
+            ),
+        });
+    }
+    let w = d.per_length();
+    for l in &c.distributed {
+        acts.push(format!(
+            "load along `{}` ({}, {}) {}",
+            model.parts[l.part].name,
+            number(w.value(l.w[0]), d.digits),
+            number(w.value(l.w[1]), d.digits),
+            w.name
+        ));
+    }
+    for m in &c.moments {
+        acts.push(format!(
+            "moment `{}` {}",
+            model.nodes[m.node].name,
+            q(m.moment, Dimension::MOMENT)
+        ));
+    }
+    for t in &c.temperatures {
+        let on = t.part.map_or("all parts".to_string(), |i| {
+            format!("`{}`", model.parts[i].name)
+        });
+        acts.push(format!(
+            "ΔT {} on {on}",
+            q(t.change.value, Dimension::TEMPERATURE)
+        ));
+    }
+    for s in &c.strains {
+        acts.push(format!(
+            "free strain {} µε on `{}`",
+            number(s.strain.value * 1e6, d.digits),
+            model.parts[s.part].name
+        ));
+    }
+    for s in &c.settlements {
+        let dir = match (model.kind, s.direction) {
+            (Kind::Axial, _) => "",
+            (Kind::Plane, 0) => " x",
+            (Kind::Plane, _) => " y",
+        };
+        acts.push(format!(
+            "`{}`{dir} moves {}",
+            model.nodes[s.node].name,
+            q(s.movement.value, Dimension::LENGTH)
+        ));
+    }
+    for t in &c.twists {
+        acts.push(format!(
+            "`{}` turns {} rad",
+            model.nodes[t.node].name,
+            number(t.angle, d.digits)
+        ));
+    }
+    acts
+}
+
 /// The text `tandem solve` prints.
 /// The strain from force alone, σ/E, of a member (springs have none); a
 /// beam's from its axial force, N/(E·A).

@@ -955,3 +955,26 @@ fn a_held_rotation_at_a_node_of_a_rigid_body_holds_the_body() {
     // w moves with the body: 1 m below a, it moves θ·1 m in x
     close(turn.nodes[0].displacement[0].value, 0.001, "w swings");
 }
+
+/// A short beam pinned at one end and free at the other swings about the
+/// pin: the mechanism names the rotation, the largest part of the free
+/// motion (the tip moves only 0.5 m × θ), with what holds it.
+#[test]
+fn a_beam_free_to_swing_names_the_rotation() {
+    let text = format!(
+        "{HEAD}node a at (0 m, 0 m)\nnode b at (0.5 m, 0 m)\npin a\n{}load b = (0 kN, -1 kN)\n",
+        beam("g", "a, b", "")
+    );
+    let src = tandem::source::Source::new("swing.tandem", text);
+    let model = tandem::check(&src).expect("checks");
+    let err = tandem::solve::solve(&model).expect_err("a mechanism");
+    let words = format!(
+        "{err} {:?}",
+        miette::Diagnostic::help(&err).map(|h| h.to_string())
+    );
+    assert!(
+        words.contains("is a mechanism: node `b` can rotate freely"),
+        "{words}"
+    );
+    assert!(words.contains("`fix b rotation`"), "{words}");
+}

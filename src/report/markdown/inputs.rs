@@ -168,10 +168,12 @@ fn materials(
 /// Nodes, supports, rigid bodies and ties.
 fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
     doc.h(3, "Nodes and supports");
+    let turns = model.rotating_nodes();
     let rows: Vec<Vec<String>> = model
         .nodes
         .iter()
-        .map(|n| {
+        .zip(&turns)
+        .map(|(n, turns)| {
             let at = match model.kind {
                 Kind::Axial => f.bare(n.x.value, &f.d.length),
                 Kind::Plane => format!(
@@ -186,7 +188,16 @@ fn nodes(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
                 (Kind::Plane, [false, true]) => "fixed in y (roller)",
                 _ => "free",
             };
-            vec![text(&n.name), at, sup.to_string()]
+            // where a beam turns the node, whether its rotation is held
+            let sup = match (*turns, n.fixed_rotation) {
+                (false, _) => sup.to_string(),
+                (true, false) if sup == "fixed" => "pinned (fixed, free to turn)".to_string(),
+                (true, true) if sup == "free" => "rotation held".to_string(),
+                (true, true) => format!("{sup}, rotation held"),
+                (true, false) if sup == "free" => "free".to_string(),
+                (true, false) => format!("{sup}, free to turn"),
+            };
+            vec![text(&n.name), at, sup]
         })
         .collect();
     doc.table(
@@ -260,6 +271,19 @@ fn parts(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
             if p.misfit.value != 0.0 {
                 notes.push(format!("misfit {}", f.small(p.misfit.value)));
             }
+            if let Some(b) = &p.bend {
+                notes.push(format!(
+                    "beam: I = {}, depth {}",
+                    f.inertia(b.inertia),
+                    f.small(2.0 * b.fibre)
+                ));
+                let ends = ["A", "B"];
+                for k in 0..2 {
+                    if b.hinge[k] {
+                        notes.push(format!("hinged at end {}", ends[k]));
+                    }
+                }
+            }
             vec![
                 text(&p.name),
                 ends,
@@ -318,50 +342,7 @@ fn cases(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
     doc.h(3, "Load cases and combinations");
     let mut rows = Vec::new();
     for c in &model.cases {
-        let mut parts: Vec<String> = Vec::new();
-        for l in &c.loads {
-            let node = &model.nodes[l.node].name;
-            parts.push(match model.kind {
-                Kind::Axial => format!("load `{node}` {}", f.force(l.force[0].value)),
-                Kind::Plane => format!(
-                    "load `{node}` ({}, {})",
-                    f.force(l.force[0].value),
-                    f.force(l.force[1].value)
-                ),
-            });
-        }
-        for t in &c.temperatures {
-            let on = t.part.map_or("all parts".to_string(), |i| {
-                format!("`{}`", model.parts[i].name)
-            });
-            parts.push(format!(
-                "ΔT {} on {on}",
-                f.temp(t.change.value).trim_matches(['(', ')'])
-            ));
-        }
-        for s in &c.strains {
-            parts.push(format!(
-                "free strain {} µε on `{}`",
-                f.n(s.strain.value * 1e6),
-                model.parts[s.part].name
-            ));
-        }
-        for s in &c.settlements {
-            let dir = if model.kind == Kind::Plane {
-                if s.direction == 0 {
-                    " x"
-                } else {
-                    " y"
-                }
-            } else {
-                ""
-            };
-            parts.push(format!(
-                "`{}`{dir} moves {}",
-                model.nodes[s.node].name,
-                f.small(s.movement.value)
-            ));
-        }
+        let parts = crate::report::text::case_actions(model, c, f.d);
         rows.push(vec![
             format!(
                 "`{}`{}",
@@ -369,7 +350,7 @@ fn cases(doc: &mut Doc, f: &Fmt<'_>, model: &Model) {
                 if c.sustained { " (sustained)" } else { "" }
             ),
             if parts.is_empty() {
-                "no loads (misfits only)".into()
+                "no actions (misfits act in every combination)".into()
             } else {
                 parts.join("; ")
             },

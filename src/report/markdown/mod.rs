@@ -474,6 +474,50 @@ fn status_and_summary(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysis) {
         &rows,
         &[1, 2],
     );
+    let beams: Vec<usize> = (0..model.parts.len())
+        .filter(|&i| model.parts[i].bend.is_some())
+        .collect();
+    if !beams.is_empty() {
+        let rows: Vec<Vec<String>> = beams
+            .iter()
+            .map(|&i| {
+                let (mut best, mut cb) = (None::<&crate::solve::BeamResult>, 0usize);
+                for (k, c) in solution.combinations.iter().enumerate() {
+                    if let Some(b) = c.beam(i) {
+                        let larger = best.is_none_or(|x| {
+                            crate::checks::exceeds(b.moment_max.0.abs(), x.moment_max.0.abs())
+                        });
+                        if larger {
+                            best = Some(b);
+                            cb = k;
+                        }
+                    }
+                }
+                let (m, at, defl) = best.map_or((0.0, 0.0, 0.0), |b| {
+                    (b.moment_max.0, b.moment_max.1, b.deflection_max.0)
+                });
+                vec![
+                    text(&model.parts[i].name),
+                    f.bare(m, &f.d.moment),
+                    f.bare(at, &f.d.length),
+                    f.bare(defl, &f.d.small),
+                    format!("`{}`", solution.combinations[cb].name),
+                ]
+            })
+            .collect();
+        doc.p("Largest bending moment in each beam over all combinations (positive where the fibre on the right of the direction from end A to end B is in tension), where it is, and the beam's deflection across its chord in that combination:");
+        doc.table(
+            &[
+                "Beam",
+                &head("Moment", &f.d.moment),
+                &head("At, from end A", &f.d.length),
+                &head("Deflection", &f.d.small),
+                "Combination",
+            ],
+            &rows,
+            &[1, 2, 3],
+        );
+    }
     for w in &solution.warnings {
         doc.p(&format!("**Warning:** {w}."));
     }
@@ -517,6 +561,9 @@ fn method(doc: &mut Doc, model: &Model, display: &Display) {
         "Where several parts share a load, statics alone cannot split it among them; the calculation therefore joins three sets of equations. Each part obeys Hooke's law, N = k·(δ − δ₀), with k = E·A/L and δ₀ the elongation it would take free of force (misfit, temperature α·ΔT·L, free strain ε·L). Compatibility requires the parts' elongations to follow from the displacements of the nodes they share{}. Equilibrium holds at every free node. The three are solved together by the direct stiffness method for every load combination; supports, ties and rigid bodies are eliminated exactly.",
         if model.rigids.is_empty() { "" } else { " and from the small rigid-body motions of the rigid bodies" }
     ));
+    if model.parts.iter().any(|p| p.bend.is_some()) {
+        doc.p("Beams also bend (Euler–Bernoulli: plane sections stay plane, shear deformation neglected). A beam's end moments follow the slope-deflection equations, M_AB = 4EI/L·θ_A + 2EI/L·θ_B − 6EI/L²·Δ + FEM_AB and M_BA = 2EI/L·θ_A + 4EI/L·θ_B − 6EI/L²·Δ + FEM_BA, from the rotations θ of the nodes its ends are rigidly joined to, the movement Δ of end B relative to end A across it, and the fixed-end moments of its load along it (a hinged end carries no moment: 3EI/L on the other end). Its end shears follow from its own equilibrium, and the nodes a beam turns balance in moment as well as in force.");
+    }
     doc.p(&match model.kind {
         Kind::Axial => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along the axis (toward increasing position).".to_string(),
         Kind::Plane => "Sign convention: tension and elongation are positive; displacements, loads and reactions are positive along +x and +y; rotations are positive counter-clockwise.".to_string(),

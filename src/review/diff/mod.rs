@@ -199,7 +199,7 @@ fn facts(model: &Model, source: &Source, d: &Display) -> Vec<(String, String)> {
         v.push((format!("rigid `{}`", r.name), nodes.join(", ")));
     }
     for c in &model.cases {
-        let acts = case_actions(model, c, d);
+        let acts = crate::report::text::case_actions(model, c, d);
         v.push((
             format!("case `{}`", c.name),
             if acts.is_empty() {
@@ -254,76 +254,6 @@ fn whole_declaration(
 }
 
 /// A case's actions as facts: loads, temperatures, free strains, movements.
-fn case_actions(model: &Model, c: &crate::model::Case, d: &Display) -> Vec<String> {
-    let mut acts = Vec::new();
-    for l in &c.loads {
-        let f = |x: f64| d.quantity(Quantity::new(x, Dimension::FORCE));
-        acts.push(match model.kind {
-            Kind::Axial => format!("load {} {}", model.nodes[l.node].name, f(l.force[0].value)),
-            Kind::Plane => format!(
-                "load {} ({}, {})",
-                model.nodes[l.node].name,
-                f(l.force[0].value),
-                f(l.force[1].value)
-            ),
-        });
-    }
-    for t in &c.temperatures {
-        let on = t
-            .part
-            .map_or("all parts".into(), |i| model.parts[i].name.clone());
-        acts.push(format!(
-            "ΔT {} on {on}",
-            d.quantity(Quantity::new(t.change.value, Dimension::TEMPERATURE))
-        ));
-    }
-    for s in &c.strains {
-        acts.push(format!(
-            "strain {} on {}",
-            number(s.strain.value, d.digits),
-            model.parts[s.part].name
-        ));
-    }
-    for s in &c.settlements {
-        acts.push(format!(
-            "{} moves {}",
-            model.nodes[s.node].name,
-            d.quantity(Quantity::new(s.movement.value, Dimension::LENGTH))
-        ));
-    }
-    let per_length = d.per_length();
-    for w in &c.distributed {
-        let f = |x: f64| {
-            format!(
-                "{} {}",
-                number(per_length.value(x), d.digits),
-                per_length.name
-            )
-        };
-        acts.push(format!(
-            "load {} ({}, {})",
-            model.parts[w.part].name,
-            f(w.w[0]),
-            f(w.w[1])
-        ));
-    }
-    for m in &c.moments {
-        acts.push(format!(
-            "moment {} {}",
-            model.nodes[m.node].name,
-            d.quantity(Quantity::new(m.moment, Dimension::MOMENT))
-        ));
-    }
-    for t in &c.twists {
-        acts.push(format!(
-            "{} turns {} rad",
-            model.nodes[t.node].name,
-            number(t.angle, d.digits)
-        ));
-    }
-    acts
-}
-
 fn results(model: &Model, solution: &Solution) -> Vec<(String, String, Quantity)> {
     let mut v = Vec::new();
     for r in &solution.combinations {
