@@ -118,6 +118,12 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
             "RB-001 · Rod bundle RB-1",
             "Revision C",
         ),
+        // beams: the longest equations and the moment diagrams
+        (
+            "examples/mezzanine_edge.tandem".to_string(),
+            "QRW-208 · Mezzanine edge beam EB-1 on post P-1 and hanger H-1",
+            "Revision B",
+        ),
     ];
     for (input, header, revision) in cases {
         let stem = Path::new(&input)
