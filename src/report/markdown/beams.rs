@@ -189,23 +189,20 @@ fn one_beam(doc: &mut Doc, c: &Combo<'_>, b: &BeamResult) {
                 f.moment(mb_end)
             ));
         }
-        [false, true] => {
+        [false, true] | [true, false] => {
+            // one end hinged: the other carries 3EI/L
+            let k = usize::from(hinge[0]);
+            let names = [("AB", "A", na), ("BA", "B", nb)];
+            let ((m, _, node), (other, end, other_node)) = (names[k], names[1 - k]);
             doc.eq(&format!(
-                "M_AB = 3EI/L·θ({na}) − 3EI/L²·Δ + FEM_AB = {k3l} · {} - {k3} · {dl} + {} = {}",
-                theta(0),
-                f.moment_t(fem[0]),
-                f.moment(ma_end)
+                "M_{m} = 3EI/L·θ({node}) − 3EI/L²·Δ + FEM_{m} = {k3l} · {} - {k3} · {dl} + {} = {}",
+                theta(k),
+                f.moment_t(fem[k]),
+                f.moment(b.end_moments[k])
             ));
-            doc.eq(&format!("M_BA = 0: end B (`{nb}`) is hinged"));
-        }
-        [true, false] => {
             doc.eq(&format!(
-                "M_BA = 3EI/L·θ({nb}) − 3EI/L²·Δ + FEM_BA = {k3l} · {} - {k3} · {dl} + {} = {}",
-                theta(1),
-                f.moment_t(fem[1]),
-                f.moment(mb_end)
+                "M_{other} = 0: end {end} (`{other_node}`) is hinged"
             ));
-            doc.eq(&format!("M_AB = 0: end A (`{na}`) is hinged"));
         }
         [true, true] => doc.eq("M_AB = M_BA = 0: both ends are hinged"),
     }
