@@ -230,6 +230,7 @@ fn main() {
                     buckling: Vec::new(),
                     long_term_checks: None,
                     left_out: Vec::new(),
+                    sensitivity: None,
                 };
                 let d = tandem::report::Display::for_model(&a.model, 4);
                 let t = Instant::now();

@@ -142,6 +142,20 @@ pub struct Analysis {
     /// Combinations that could not be solved or checked and are left out
     /// of this analysis (see [`analyse_partial`]); empty from [`analyse`].
     pub left_out: Vec<String>,
+    /// What the result depends on, when asked for ([`with_sensitivity`]).
+    pub sensitivity: Option<review::sensitivity::Sensitivity>,
+}
+
+/// Add to an analysis what its result depends on: the elasticity of its
+/// utilizations to each `let` (several re-solves per `let`; a complete
+/// analysis only, a partial one is left as it is).
+pub fn with_sensitivity(source: &Source, a: &mut Analysis) {
+    if !a.left_out.is_empty() {
+        return;
+    }
+    if let Ok(file) = syntax::parse(&source.text) {
+        a.sensitivity = Some(review::sensitivity::sensitivity(&file, a));
+    }
 }
 
 impl Analysis {
@@ -256,6 +270,7 @@ fn analyse_model(model: Model) -> Result<Analysis, Box<(Model, Vec<Error>)>> {
             buckling,
             long_term_checks,
             left_out: Vec::new(),
+            sensitivity: None,
         }),
         Err(e) => Err(Box::new((model, e))),
     }

@@ -200,9 +200,12 @@ fn solve(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
     let Some(source) = read(path) else {
         return bad();
     };
-    let Some((a, incomplete)) = analyse_shown(&source) else {
+    let Some((mut a, incomplete)) = analyse_shown(&source) else {
         return bad();
     };
+    if json {
+        tandem::with_sensitivity(&source, &mut a);
+    }
     if let Some(dir) = csv {
         if !write_csv(dir, &a, show, &[path.to_path_buf()]) {
             return bad();

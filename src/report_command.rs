@@ -31,9 +31,10 @@ fn render_report(
     let Some(source) = read(path) else {
         return Err(bad());
     };
-    let Some((a, incomplete)) = analyse_shown(&source) else {
+    let Some((mut a, incomplete)) = analyse_shown(&source) else {
         return Err(bad());
     };
+    tandem::with_sensitivity(&source, &mut a);
     let d = display(&a.model, show).map_err(|msg| {
         errln!("error: {msg}");
         bad()

@@ -48,6 +48,83 @@ pub struct Document<'a> {
     /// has errors and exits 2).
     #[serde(default, skip_serializing_if = "<[String]>::is_empty")]
     left_out: &'a [String],
+    /// What the result depends on (`solve --json` computes it): each
+    /// `let` that reaches the solve or a check, most influential first.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    sensitivity: Option<SensitivityJson<'a>>,
+}
+
+#[derive(Serialize, JsonSchema)]
+struct SensitivityJson<'a> {
+    /// Why it was not computed, when it was not.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    note: Option<&'a str>,
+    inputs: Vec<InfluenceJson<'a>>,
+}
+
+/// One input's influence: the elasticity (dU/U)/(dx/x) of the governing
+/// utilization and of each check's at the design point; for an input whose
+/// value is zero, dU/dx per SI unit instead.
+#[derive(Serialize, JsonSchema)]
+struct InfluenceJson<'a> {
+    name: &'a str,
+    value_si: f64,
+    /// The SI unit of `value_si` and of the step of an absolute derivative.
+    unit: String,
+    /// `exact`, `central_difference` or `absolute_derivative`; absent when
+    /// it could not be evaluated (`failed`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    method: Option<&'static str>,
+    /// The step: in ln x, or in SI for an absolute derivative.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    step: Option<f64>,
+    /// How it was computed, in words.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    how: Option<String>,
+    governing: Option<f64>,
+    checks: Vec<CheckInfluence<'a>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    failed: Option<&'a str>,
+}
+
+#[derive(Serialize, JsonSchema)]
+struct CheckInfluence<'a> {
+    label: &'a str,
+    influence: Option<f64>,
+}
+
+fn sensitivity_json(s: &crate::review::sensitivity::Sensitivity) -> SensitivityJson<'_> {
+    use crate::review::sensitivity::Method;
+    SensitivityJson {
+        note: s.note.as_deref(),
+        inputs: s
+            .inputs
+            .iter()
+            .map(|i| InfluenceJson {
+                name: &i.name,
+                value_si: i.value.value,
+                unit: i.value.dim.si_symbol(),
+                method: i.method.map(Method::key),
+                step: i.method.map(|m| match m {
+                    Method::Exact { step }
+                    | Method::Central { step }
+                    | Method::Absolute { step, .. } => step,
+                }),
+                how: i.method.map(Method::words),
+                governing: i.governing,
+                checks: s
+                    .labels
+                    .iter()
+                    .zip(&i.checks)
+                    .map(|(label, e)| CheckInfluence {
+                        label,
+                        influence: *e,
+                    })
+                    .collect(),
+                failed: i.failed.as_deref(),
+            })
+            .collect(),
+    }
 }
 
 #[derive(Serialize, JsonSchema)]
@@ -500,6 +577,7 @@ pub fn document<'a>(file: &'a str, a: &'a crate::Analysis) -> Document<'a> {
             .map(Into::into)
             .collect(),
         left_out: &a.left_out,
+        sensitivity: a.sensitivity.as_ref().map(sensitivity_json),
     }
 }
 

@@ -3,4 +3,5 @@
 
 pub mod diff;
 pub mod fmt;
+pub mod sensitivity;
 pub mod sweep;

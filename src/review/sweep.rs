@@ -82,6 +82,64 @@ pub enum Seek {
     NoRoot { lowest: f64, highest: f64 },
 }
 
+/// The checks of a solved model in every combination, short and long term;
+/// the highest utilization over them all (`None`: no checks) and each
+/// check's highest, in the order of the short-term governing list. What a
+/// sweep step, a sensitivity and a sample read.
+///
+/// # Errors
+/// A check that cannot be evaluated, a capacity or long-term state that
+/// cannot be solved.
+pub(crate) fn utilizations(
+    model: &Model,
+    solution: &crate::solve::Solution,
+    refs: &Refs<'_>,
+) -> Result<(Checks, Utilizations), Vec<Error>> {
+    let capacity = crate::solve::capacity::capacity(model).map_err(|e| vec![Error::from(e)])?;
+    let checks =
+        evaluate_state(model, solution, refs, None, &capacity).map_err(|e| vec![Error::from(e)])?;
+    // every check `solve` evaluates: the long-term state's too
+    let (_, long) = crate::long_term_checks(model, solution, refs, &capacity)?;
+    let long = long.map(|(_, c)| c);
+    let all = checks
+        .outcomes
+        .iter()
+        .chain(long.iter().flat_map(|c| &c.outcomes));
+    let governing = all
+        .map(|o| o.utilization.unwrap_or(f64::INFINITY))
+        .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
+    let short = checks.governing();
+    let long_gov = long.as_ref().map(Checks::governing).unwrap_or_default();
+    let worse = |a: Option<f64>, b: Option<f64>| match (a, b) {
+        (Some(a), Some(b)) => Some(a.max(b)),
+        (None, _) | (_, None) => None,
+    };
+    let per_check = short
+        .iter()
+        .enumerate()
+        .map(|(k, o)| match long_gov.get(k) {
+            Some(l) if l.label == o.label => worse(o.utilization, l.utilization),
+            _ => o.utilization,
+        })
+        .collect();
+    Ok((
+        checks,
+        Utilizations {
+            governing,
+            checks: per_check,
+        },
+    ))
+}
+
+/// The utilizations of one evaluation of a calc.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub(crate) struct Utilizations {
+    /// The highest over every check, combination and state (`None`: no checks).
+    pub governing: Option<f64>,
+    /// Each check's highest, in the order of the governing list.
+    pub checks: Vec<Option<f64>>,
+}
+
 /// A prepared sweep: the parsed file and the parameter.
 pub struct Sweeper<'a> {
     file: ast::File,
@@ -184,34 +242,13 @@ impl<'a> Sweeper<'a> {
         // one lookup of the names for the checks and the results shown
         let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
         let refs = Refs::new(&model, &objects);
-        let capacity =
-            crate::solve::capacity::capacity(&model).map_err(|e| vec![Error::from(e)])?;
-        let checks = evaluate_state(&model, solution, &refs, None, &capacity)
-            .map_err(|e| vec![Error::from(e)])?;
-        // every check `solve` evaluates: the long-term state's too
-        let (_, long) = crate::long_term_checks(&model, solution, &refs, &capacity)?;
-        let long = long.map(|(_, c)| c);
-        let all = checks
-            .outcomes
-            .iter()
-            .chain(long.iter().flat_map(|c| &c.outcomes));
-        let governing = all
-            .map(|o| o.utilization.unwrap_or(f64::INFINITY))
-            .fold(None, |m: Option<f64>, u| Some(m.map_or(u, |m| m.max(u))));
-        let short = checks.governing();
-        let long_gov = long.as_ref().map(Checks::governing).unwrap_or_default();
-        let worse = |a: Option<f64>, b: Option<f64>| match (a, b) {
-            (Some(a), Some(b)) => Some(a.max(b)),
-            (None, _) | (_, None) => None,
-        };
-        let per_check = short
-            .iter()
-            .enumerate()
-            .map(|(k, o)| match long_gov.get(k) {
-                Some(l) if l.label == o.label => worse(o.utilization, l.utilization),
-                _ => o.utilization,
-            })
-            .collect();
+        let (
+            checks,
+            Utilizations {
+                governing,
+                checks: per_check,
+            },
+        ) = utilizations(&model, solution, &refs)?;
         let shown = self
             .shown
             .iter()

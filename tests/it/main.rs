@@ -22,6 +22,7 @@ mod print;
 mod random_calcs;
 mod reports;
 mod schema;
+mod sensitivity;
 mod sweep;
 mod trace;
 mod trust;

@@ -151,6 +151,13 @@ pub(super) fn file_lets(file: &ast::File) -> Vec<&ast::Let> {
 /// `let` changes only the checks, and the solution can be kept.
 #[must_use]
 pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
+    reaches(file, name, false)
+}
+
+/// Whether anything the solver uses (or, with `checks`, a check) depends on
+/// the `let` named `name`, directly or through other lets.
+#[must_use]
+pub fn reaches(file: &ast::File, name: &str, checks: bool) -> bool {
     // Lets that depend on `name`: a walk over the reverse references.
     let lets = file_lets(file);
     let mut users: HashMap<String, Vec<usize>> = HashMap::new();
@@ -173,7 +180,7 @@ pub fn solver_depends_on(file: &ast::File, name: &str) -> bool {
         }
     }
     file.decls.iter().any(|d| {
-        if matches!(d, Decl::Let(_) | Decl::Check(_) | Decl::Calc(_)) {
+        if matches!(d, Decl::Let(_) | Decl::Calc(_)) || (!checks && matches!(d, Decl::Check(_))) {
             return false;
         }
         let mut exprs = Vec::new();

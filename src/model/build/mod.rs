@@ -43,7 +43,7 @@ use fields::{example_for, si_force, si_length, si_pressure, typed, Fields, What}
 use lets::{unit_usage, walk_names, LetScope};
 use names::{NameKind, Names};
 
-pub use lets::solver_depends_on;
+pub use lets::{reaches, solver_depends_on};
 
 #[derive(Clone, Copy, Debug)]
 pub struct Limits {

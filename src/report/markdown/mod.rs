@@ -23,12 +23,14 @@ mod combination;
 mod equilibrium;
 mod inputs;
 mod long_term;
+mod sensitivity;
 mod stability;
 mod title;
 
 use capacity::capacity_section;
 use combination::{combination, incidence};
 use long_term::long_term_section;
+use sensitivity::sensitivity_section;
 use stability::buckling_section;
 use title::{contents, title_block};
 
@@ -358,6 +360,7 @@ pub fn report_with(
     long_term_section(&mut doc, &f, a);
     buckling_section(&mut doc, &f, a);
     design_checks(&mut doc, &f, source, a);
+    sensitivity_section(&mut doc, &f, a);
     doc.out.insert_str(contents_at, &contents(&doc.headings));
     Written {
         markdown: doc.out.trim_end().to_string() + "\n",
