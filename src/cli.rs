@@ -137,6 +137,39 @@ pub enum Command {
         #[command(flatten)]
         display: Show,
     },
+    /// Monte Carlo over named `let`s: the probability that each check fails
+    /// (with its 95 % confidence interval) and the utilizations' percentiles
+    /// when the inputs scatter.
+    ///
+    /// Example: `tandem sample post.tandem --vary "fc=normal(5 ksi, 0.5 ksi)"
+    /// --vary "Es=lognormal(29000 ksi, 3 percent)" --samples 10000 --seed 7`.
+    /// The same seed gives the same samples on any number of cores. A sample
+    /// that cannot be solved is counted and reported. Exit code 0 on success
+    /// (whatever the probabilities), 2 on an error.
+    Sample {
+        /// The calc file.
+        file: PathBuf,
+        /// A `let` and its distribution: `NAME=normal(mean, sd)`,
+        /// `NAME=lognormal(mean, coefficient of variation)`,
+        /// `NAME=uniform(lo, hi)` or `NAME=triangular(lo, mode, hi)`, values
+        /// with units. Give it once per varied `let`.
+        #[arg(long, value_name = "NAME=DIST(...)", required = true)]
+        vary: Vec<String>,
+        /// Number of samples.
+        #[arg(long, default_value_t = 10_000, value_parser = clap::value_parser!(u64).range(1..=100_000_000))]
+        samples: u64,
+        /// Seed of the random draws.
+        #[arg(long, default_value_t = 1)]
+        seed: u64,
+        /// Results whose percentiles to give, e.g. `core.stress,cap.displacement`.
+        #[arg(long, value_delimiter = ',', value_name = "RESULTS")]
+        show: Vec<String>,
+        /// Write JSON (SI values) instead of the table.
+        #[arg(long)]
+        json: bool,
+        #[command(flatten)]
+        display: Show,
+    },
     /// Rewrite calc files in the canonical layout (two-space blocks, aligned
     /// `=`, one blank line between declarations, comments kept).
     ///

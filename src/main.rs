@@ -30,6 +30,7 @@ macro_rules! errln {
 }
 
 mod report_command;
+mod sample_command;
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
@@ -94,6 +95,23 @@ fn main() -> ExitCode {
             show: &show,
             seek,
             plot: plot.as_deref(),
+            json,
+            display: &display,
+        }),
+        Command::Sample {
+            file,
+            vary,
+            samples,
+            seed,
+            show,
+            json,
+            display,
+        } => sample_command::sample(&sample_command::Args {
+            file: &file,
+            vary: &vary,
+            samples: usize::try_from(samples).unwrap_or(usize::MAX),
+            seed,
+            show: &show,
             json,
             display: &display,
         }),

@@ -5,7 +5,7 @@ use crate::model::{Kind, Model};
 
 /// Columns padded to a common width: text columns (those in `left`) flush
 /// left, number columns flush right.
-pub(crate) fn aligned(rows: &[Vec<String>], left: &[usize], indent: &str) -> String {
+pub fn aligned(rows: &[Vec<String>], left: &[usize], indent: &str) -> String {
     let cols = rows.iter().map(Vec::len).max().unwrap_or(0);
     let mut width = vec![0usize; cols];
     for r in rows {

@@ -3,5 +3,6 @@
 
 pub mod diff;
 pub mod fmt;
+pub mod sample;
 pub mod sensitivity;
 pub mod sweep;

@@ -82,6 +82,70 @@ pub enum Seek {
     NoRoot { lowest: f64, highest: f64 },
 }
 
+/// The results named in `--show` (`OBJECT.FIELD`), checked against the
+/// model: a part's, a beam's or a node's result.
+///
+/// # Errors
+/// A message naming the first that is not a result of the model.
+pub(crate) fn shown_results(
+    model: &Model,
+    shown: &[String],
+    file: &str,
+) -> Result<Vec<Shown>, String> {
+    let mut list = Vec::new();
+    for s in shown {
+        let Some((object, field)) = s.split_once('.') else {
+            return Err(format!("`{s}` is not a result such as `core.stress`"));
+        };
+        let ok_part = model.part_index(object).is_some_and(|i| {
+            crate::model::results::is_part_result(field)
+                || (model.parts[i].bend.is_some() && crate::model::results::is_beam_result(field))
+        });
+        let ok_node = model.node_index(object).is_some()
+            && crate::model::results::is_node_result(model.kind, field);
+        if !ok_part && !ok_node {
+            return Err(format!(
+                "`{s}` is not a result of a part, beam or node of {file}"
+            ));
+        }
+        list.push(Shown {
+            object: object.into(),
+            field: field.into(),
+        });
+    }
+    Ok(list)
+}
+
+/// A shown result's value: the one of largest magnitude over the
+/// combinations.
+pub(crate) fn shown_value(
+    model: &Model,
+    solution: &crate::solve::Solution,
+    refs: &Refs<'_>,
+    s: &Shown,
+) -> Quantity {
+    let mut best = Quantity::number(0.0);
+    for r in &solution.combinations {
+        let scope = crate::checks::ResultScope {
+            model,
+            result: r,
+            refs,
+            capacity: None,
+            combination: 0,
+        };
+        let id = |n: &str| ast::Ident {
+            name: n.into(),
+            span: crate::source::Span::default(),
+        };
+        if let Ok(q) = crate::model::eval::Scope::field(&scope, &id(&s.object), &id(&s.field)) {
+            if q.value.abs() >= best.value.abs() {
+                best = q;
+            }
+        }
+    }
+    best
+}
+
 /// The checks of a solved model in every combination, short and long term;
 /// the highest utilization over them all (`None`: no checks) and each
 /// check's highest, in the order of the short-term governing list. What a
@@ -180,29 +244,7 @@ impl<'a> Sweeper<'a> {
                 }
             )));
         };
-        let mut list = Vec::new();
-        for s in shown {
-            let Some((object, field)) = s.split_once('.') else {
-                return Err(Err(format!("`{s}` is not a result such as `core.stress`")));
-            };
-            let ok_part = model.part_index(object).is_some_and(|i| {
-                crate::model::results::is_part_result(field)
-                    || (model.parts[i].bend.is_some()
-                        && crate::model::results::is_beam_result(field))
-            });
-            let ok_node = model.node_index(object).is_some()
-                && crate::model::results::is_node_result(model.kind, field);
-            if !ok_part && !ok_node {
-                return Err(Err(format!(
-                    "`{s}` is not a result of a part, beam or node of {}",
-                    source.name
-                )));
-            }
-            list.push(Shown {
-                object: object.into(),
-                field: field.into(),
-            });
-        }
+        let list = shown_results(&model, shown, &source.name).map_err(Err)?;
         let fixed_solution = if crate::model::solver_depends_on(&file, name) {
             None
         } else {
@@ -252,30 +294,7 @@ impl<'a> Sweeper<'a> {
         let shown = self
             .shown
             .iter()
-            .map(|s| {
-                let mut best = Quantity::number(0.0);
-                for r in &solution.combinations {
-                    let scope = crate::checks::ResultScope {
-                        model: &model,
-                        result: r,
-                        refs: &refs,
-                        capacity: None,
-                        combination: 0,
-                    };
-                    let id = |n: &str| ast::Ident {
-                        name: n.into(),
-                        span: crate::source::Span::default(),
-                    };
-                    if let Ok(q) =
-                        crate::model::eval::Scope::field(&scope, &id(&s.object), &id(&s.field))
-                    {
-                        if q.value.abs() >= best.value.abs() {
-                            best = q;
-                        }
-                    }
-                }
-                best
-            })
+            .map(|s| shown_value(&model, solution, &refs, s))
             .collect();
         let step = Step {
             value,

@@ -21,6 +21,7 @@ mod output;
 mod print;
 mod random_calcs;
 mod reports;
+mod sample;
 mod schema;
 mod sensitivity;
 mod sweep;
