@@ -551,9 +551,15 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
         }
     }
     if args.json {
-        match serde_json::to_string_pretty(&sweep::json(&table, seek.as_ref())) {
-            Ok(s) => outln!("{s}"),
-            Err(e) => return fail(e.to_string()),
+        // written as it is made: the document is never held whole
+        use std::io::Write as _;
+        let mut w = std::io::BufWriter::new(std::io::stdout().lock());
+        let written = sweep::write_json(&mut w, &table, seek.as_ref()).and_then(|()| w.flush());
+        // like every other output, a closed pipe is not an error
+        if let Err(e) = written {
+            if e.kind() != std::io::ErrorKind::BrokenPipe {
+                return fail(e.to_string());
+            }
         }
     } else {
         out!("{}", sweep::text(&table, seek.as_ref(), &d));

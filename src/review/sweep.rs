@@ -427,25 +427,97 @@ impl<'a> Sweeper<'a> {
     }
 }
 
-/// The sweep as JSON (SI values).
+/// One step as JSON: its value, utilizations and shown results.
+#[derive(serde::Serialize)]
+struct StepJson<'a> {
+    value_si: f64,
+    governing_utilization: Option<f64>,
+    checks: Vec<CheckJson<'a>>,
+    shown: Vec<ShownJson>,
+}
+
+#[derive(serde::Serialize)]
+struct CheckJson<'a> {
+    label: &'a str,
+    utilization: Option<f64>,
+}
+
+#[derive(serde::Serialize)]
+struct ShownJson {
+    result: String,
+    value_si: f64,
+}
+
+fn seek_json(s: &Seek) -> Value {
+    match s {
+        Seek::Found {
+            value,
+            crossings,
+            monotonic,
+            tolerance,
+            evaluations,
+        } => {
+            json!({"found": true, "value_si": value.value, "crossings_si": crossings.iter().map(|c| c.value).collect::<Vec<_>>(), "monotonic": monotonic, "tolerance_si": tolerance, "evaluations": evaluations})
+        }
+        Seek::NoRoot { lowest, highest } => {
+            json!({"found": false, "lowest_utilization": lowest, "highest_utilization": highest})
+        }
+    }
+}
+
+/// The sweep as JSON (SI values), written as it is made: one step at a
+/// time, each on its own line, never the whole document in memory.
+///
+/// # Errors
+/// The writer's.
+pub fn write_json(
+    w: &mut impl std::io::Write,
+    sweep: &Sweep,
+    seek: Option<&Seek>,
+) -> std::io::Result<()> {
+    writeln!(w, "{{")?;
+    writeln!(w, "  \"parameter\": {},", json!(sweep.name))?;
+    writeln!(w, "  \"steps\": [")?;
+    for (i, s) in sweep.steps.iter().enumerate() {
+        let step = StepJson {
+            value_si: s.value.value,
+            governing_utilization: s.governing,
+            checks: sweep
+                .labels
+                .iter()
+                .zip(&s.checks)
+                .map(|(l, u)| CheckJson {
+                    label: l,
+                    utilization: *u,
+                })
+                .collect(),
+            shown: sweep
+                .shown
+                .iter()
+                .zip(&s.shown)
+                .map(|(d, q)| ShownJson {
+                    result: format!("{}.{}", d.object, d.field),
+                    value_si: q.value,
+                })
+                .collect(),
+        };
+        write!(w, "    ")?;
+        serde_json::to_writer(&mut *w, &step)?;
+        writeln!(w, "{}", if i + 1 < sweep.steps.len() { "," } else { "" })?;
+    }
+    writeln!(w, "  ],")?;
+    writeln!(w, "  \"seek\": {}", seek.map_or(Value::Null, seek_json))?;
+    writeln!(w, "}}")
+}
+
+/// The sweep as a JSON value (SI values): [`write_json`]'s document.
+#[must_use]
 pub fn json(sweep: &Sweep, seek: Option<&Seek>) -> Value {
-    let steps: Vec<Value> = sweep
-        .steps
-        .iter()
-        .map(|s| {
-            json!({
-                "value_si": s.value.value,
-                "governing_utilization": s.governing,
-                "checks": sweep.labels.iter().zip(&s.checks).map(|(l, u)| json!({"label": l, "utilization": u})).collect::<Vec<_>>(),
-                "shown": sweep.shown.iter().zip(&s.shown).map(|(d, q)| json!({"result": format!("{}.{}", d.object, d.field), "value_si": q.value})).collect::<Vec<_>>(),
-            })
-        })
-        .collect();
-    let seek = seek.map(|s| match s {
-        Seek::Found { value, crossings, monotonic, tolerance, evaluations } => json!({"found": true, "value_si": value.value, "crossings_si": crossings.iter().map(|c| c.value).collect::<Vec<_>>(), "monotonic": monotonic, "tolerance_si": tolerance, "evaluations": evaluations}),
-        Seek::NoRoot { lowest, highest } => json!({"found": false, "lowest_utilization": lowest, "highest_utilization": highest}),
-    });
-    json!({"parameter": sweep.name, "steps": steps, "seek": seek})
+    let mut bytes = Vec::new();
+    if write_json(&mut bytes, sweep, seek).is_err() {
+        return Value::Null;
+    }
+    serde_json::from_slice(&bytes).unwrap_or(Value::Null)
 }
 
 /// The sweep as an aligned text table, with the seek result.
