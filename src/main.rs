@@ -514,7 +514,18 @@ fn sweep(args: &SweepArgs<'_>) -> ExitCode {
         report_errors(&errors, &source);
         bad()
     };
-    let mut table = match sweeper.sweep(from, to, args.steps) {
+    // progress on stderr when it is a terminal and the sweep is long
+    let terminal = std::io::stderr().is_terminal() && args.steps >= 1024;
+    let progress = |done: usize| {
+        if terminal {
+            err!("\rswept {done} of {} steps", args.steps);
+        }
+    };
+    let swept = sweeper.sweep_with(from, to, args.steps, &progress);
+    if terminal {
+        errln!();
+    }
+    let mut table = match swept {
         Ok(t) => t,
         Err(e) => return solve_error(e),
     };

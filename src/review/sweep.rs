@@ -315,6 +315,21 @@ impl<'a> Sweeper<'a> {
         to: Quantity,
         steps: usize,
     ) -> Result<Sweep, (Quantity, Vec<Error>)> {
+        self.sweep_with(from, to, steps, &|_| {})
+    }
+
+    /// [`Sweeper::sweep`], calling `progress(done)` every so often (the
+    /// command shows it on a terminal).
+    ///
+    /// # Errors
+    /// As [`Sweeper::sweep`].
+    pub fn sweep_with(
+        &self,
+        from: Quantity,
+        to: Quantity,
+        steps: usize,
+        progress: &dyn Fn(usize),
+    ) -> Result<Sweep, (Quantity, Vec<Error>)> {
         let mut out = Vec::with_capacity(steps);
         let mut labels = Vec::new();
         for i in 0..steps {
@@ -329,6 +344,9 @@ impl<'a> Sweeper<'a> {
                 labels = checks.governing().iter().map(|o| o.label.clone()).collect();
             }
             out.push(step);
+            if (i + 1) % 1024 == 0 || i + 1 == steps {
+                progress(i + 1);
+            }
         }
         Ok(Sweep {
             name: self.name.clone(),
