@@ -137,7 +137,16 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         let name = || combo.name.clone();
         let mut beams = Vec::new();
         let mut result = if mode_k.is_empty() {
-            system.results(name(), &q, &total, &elong, &forces, &states, 1)
+            system.results(
+                name(),
+                &q,
+                &total,
+                &elong,
+                &forces,
+                &states,
+                1,
+                super::ModeLaw::Elastic,
+            )
         } else {
             // the modes' moments, sustained at the reduced E·I and the
             // rest at E·I; each state's deflection at its own E·I
@@ -149,9 +158,9 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
                 })
                 .collect();
             let law = super::ModeLaw::Stiffness;
-            let rs = system.results_with(name(), &qs, &a_s, &es, &fs, &states, 1, law(&mode_k_eff));
-            let rt = system.results_with(name(), &qt, &a_t, &et, &ft, &states, 1, law(&mode_k));
-            let mut r = system.results_with(
+            let rs = system.results(name(), &qs, &a_s, &es, &fs, &states, 1, law(&mode_k_eff));
+            let rt = system.results(name(), &qt, &a_t, &et, &ft, &states, 1, law(&mode_k));
+            let mut r = system.results(
                 name(),
                 &q,
                 &total,

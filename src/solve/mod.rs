@@ -194,7 +194,16 @@ fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
                 }
             })
             .collect();
-        let result = system.results(combo.name.clone(), &q, &a, &elong, &forces, &states, trials);
+        let result = system.results(
+            combo.name.clone(),
+            &q,
+            &a,
+            &elong,
+            &forces,
+            &states,
+            trials,
+            ModeLaw::Elastic,
+        );
         combinations.push(verified(model, result, combo.span)?);
     }
     Ok(Solution {

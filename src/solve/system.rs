@@ -355,24 +355,9 @@ impl<'m> System<'m> {
         (q, elong)
     }
 
-    /// Results of a solved state.
+    /// Results of a solved state, the bending modes' moments by `modes`.
     #[allow(clippy::too_many_arguments)]
-    pub fn results(
-        &self,
-        name: String,
-        q: &[f64],
-        a: &Actions,
-        elong: &[f64],
-        forces: &[f64],
-        states: &[PartState],
-        trials: usize,
-    ) -> CombinationResult {
-        self.results_with(name, q, a, elong, forces, states, trials, ModeLaw::Elastic)
-    }
-
-    /// [`System::results`] with the bending modes' moments as given.
-    #[allow(clippy::too_many_arguments)]
-    pub(super) fn results_with(
+    pub(super) fn results(
         &self,
         name: String,
         q: &[f64],

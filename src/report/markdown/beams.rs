@@ -68,32 +68,23 @@ fn one_beam(doc: &mut Doc, c: &Combo<'_>, b: &BeamResult) {
     let m_unit = |v: f64| f.with(v, &f.d.moment);
     // stiffness terms
     let hinge = bend.hinge;
-    match hinge {
-        [false, false] => {
-            doc.eq(&format!(
-                "4EI/L = 4 · {es} · {is} / {ls} = {}",
-                m_unit(4.0 * ei_l)
-            ));
-            doc.eq(&format!(
-                "2EI/L = 2 · {es} · {is} / {ls} = {}",
-                m_unit(2.0 * ei_l)
-            ));
-            doc.eq(&format!(
-                "6EI/L² = 6 · {es} · {is} / ({ls} · {ls}) = {}",
-                f.with(6.0 * ei_l / l, &f.d.force)
-            ));
-        }
-        [true, true] => {}
-        _ => {
-            doc.eq(&format!(
-                "3EI/L = 3 · {es} · {is} / {ls} = {}",
-                m_unit(3.0 * ei_l)
-            ));
-            doc.eq(&format!(
-                "3EI/L² = 3 · {es} · {is} / ({ls} · {ls}) = {}",
-                f.with(3.0 * ei_l / l, &f.d.force)
-            ));
-        }
+    // (coefficient, over L² rather than L): 4EI/L, 2EI/L, 6EI/L², or with
+    // one end hinged 3EI/L and 3EI/L²
+    let terms: &[(u8, bool)] = match hinge {
+        [false, false] => &[(4, false), (2, false), (6, true)],
+        [true, true] => &[],
+        _ => &[(3, false), (3, true)],
+    };
+    for &(c, squared) in terms {
+        let v = f64::from(c) * ei_l;
+        doc.eq(&if squared {
+            format!(
+                "{c}EI/L² = {c} · {es} · {is} / ({ls} · {ls}) = {}",
+                f.with(v / l, &f.d.force)
+            )
+        } else {
+            format!("{c}EI/L = {c} · {es} · {is} / {ls} = {}", m_unit(v))
+        });
     }
     if let Some(area) = p.area() {
         doc.eq(&format!(
