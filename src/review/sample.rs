@@ -469,19 +469,7 @@ impl Sampler {
     }
 
     fn evaluate(&self, overrides: &[(String, Quantity)]) -> Outcome {
-        let first = |e: Vec<crate::Error>| e.first().map_or_else(String::new, ToString::to_string);
-        let model = build_with(&self.file, Limits::default(), overrides)
-            .map_err(|e| e.first().map_or_else(String::new, ToString::to_string))?;
-        let solution = crate::solve::solve(&model).map_err(|e| e.to_string())?;
-        let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
-        let refs = Refs::new(&model, &objects);
-        let (_, u) = super::sweep::utilizations(&model, &solution, &refs).map_err(first)?;
-        let shown = self
-            .shown
-            .iter()
-            .map(|s| super::sweep::shown_value(&model, &solution, &refs, s).value)
-            .collect();
-        Ok((u, shown))
+        super::sweep::evaluate_with(&self.file, overrides, &self.shown)
     }
 
     /// Draw and solve `samples` samples; `progress(done)` after each batch.

@@ -10,8 +10,6 @@
 //! re-solves the model with the one `let` fixed at its moved value.
 
 use super::sweep::Utilizations;
-use crate::checks::Refs;
-use crate::model::{build_with, Limits};
 use crate::syntax::ast;
 use crate::units::Quantity;
 
@@ -106,13 +104,7 @@ pub struct Sensitivity {
 /// The governing utilization and each check's at the file's values with
 /// some lets fixed at others.
 fn at(file: &ast::File, overrides: &[(String, Quantity)]) -> Result<Utilizations, String> {
-    let model = build_with(file, Limits::default(), overrides)
-        .map_err(|e| e.first().map_or_else(String::new, ToString::to_string))?;
-    let solution = crate::solve::solve(&model).map_err(|e| e.to_string())?;
-    let refs = Refs::new(&model, &[]);
-    let (_, u) = super::sweep::utilizations(&model, &solution, &refs)
-        .map_err(|e| e.first().map_or_else(String::new, ToString::to_string))?;
-    Ok(u)
+    super::sweep::evaluate_with(file, overrides, &[]).map(|(u, _)| u)
 }
 
 /// (ln U₊ − ln U₋)/(2h), or where U is not positive on both sides the

@@ -146,6 +146,33 @@ pub(crate) fn shown_value(
     best
 }
 
+/// The file rebuilt with some `let`s fixed at other values, solved and
+/// checked: its utilizations and the values of the `shown` results (SI).
+/// What a sensitivity and a sample evaluate, once per moved value.
+///
+/// # Errors
+/// The first error, in words: a model that cannot be built (a value out
+/// of its sane range), solved (a mechanism) or checked.
+pub(crate) fn evaluate_with(
+    file: &ast::File,
+    overrides: &[(String, Quantity)],
+    shown: &[Shown],
+) -> Result<(Utilizations, Vec<f64>), String> {
+    fn first<E: std::fmt::Display>(e: &[E]) -> String {
+        e.first().map_or_else(String::new, ToString::to_string)
+    }
+    let model = build_with(file, Limits::default(), overrides).map_err(|e| first(&e))?;
+    let solution = solve(&model).map_err(|e| e.to_string())?;
+    let objects: Vec<&str> = shown.iter().map(|s| s.object.as_str()).collect();
+    let refs = Refs::new(&model, &objects);
+    let (_, u) = utilizations(&model, &solution, &refs).map_err(|e| first(&e))?;
+    let values = shown
+        .iter()
+        .map(|s| shown_value(&model, &solution, &refs, s).value)
+        .collect();
+    Ok((u, values))
+}
+
 /// The checks of a solved model in every combination, short and long term;
 /// the highest utilization over them all (`None`: no checks) and each
 /// check's highest, in the order of the short-term governing list. What a
