@@ -10,7 +10,7 @@ use crate::solve::capacity::Capacity;
 use crate::solve::{CombinationResult, Solution};
 use crate::syntax::ast::{Compare, ExprKind, Ident};
 use crate::units::{Dimension, Quantity};
-use std::collections::{HashMap, HashSet};
+use foldhash::{HashMap, HashSet, HashSetExt};
 
 pub use crate::model::LOAD_FACTORS;
 
@@ -86,8 +86,7 @@ impl Checks {
     /// Indices into `outcomes` of each check's governing outcome, in check order.
     pub fn governing_indices(&self) -> Vec<usize> {
         let mut order: Vec<usize> = Vec::new();
-        let mut slot: std::collections::HashMap<(&str, OriginKey), usize> =
-            std::collections::HashMap::new();
+        let mut slot: foldhash::HashMap<(&str, OriginKey), usize> = foldhash::HashMap::default();
         for (i, o) in self.outcomes.iter().enumerate() {
             let key = (o.label.as_str(), OriginKey::of(&o.origin));
             match slot.get(&key) {
@@ -482,30 +481,18 @@ pub fn evaluate_state(
                     limit.map(|l| (demand, l, sense))
                 })
                 .max_by(|a, b| (a.0 / a.1.value).total_cmp(&(b.0 / b.1.value)));
-            let Some((demand, limit, sense)) = governing else {
+            let Some((demand, limit, _)) = governing else {
                 continue;
             };
+            // one check per part whatever the sense
             out.outcomes.push(outcome(
-                format!(
-                    "{}: {sense} stress within allowable ({})",
-                    part.name, mat.name
-                ),
+                format!("{}: stress within allowable ({})", part.name, mat.name),
                 Origin::Allowable(pi),
                 k,
                 Quantity::new(demand, Dimension::PRESSURE),
                 Compare::Le,
                 Quantity::new(limit.value, Dimension::PRESSURE),
             ));
-        }
-    }
-    // Allowable checks are one check per part whatever the sense.
-    for o in &mut out.outcomes {
-        if let Origin::Allowable(pi) = o.origin {
-            let p = &model.parts[pi];
-            let mat = p
-                .material()
-                .map_or("", |m| model.materials[m].name.as_str());
-            o.label = format!("{}: stress within allowable ({mat})", p.name);
         }
     }
     // A compression part or group past its Euler load (times its

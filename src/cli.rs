@@ -105,30 +105,37 @@ pub enum Command {
         #[command(flatten)]
         show: Show,
     },
-    /// Re-solve a calc for a range of one `let` parameter and tabulate the
-    /// utilizations; optionally find where the governing utilization
-    /// reaches 1.0.
+    /// Re-solve a calc for a range of one `let` parameter, or a grid of two,
+    /// and tabulate the utilizations; optionally find where the governing
+    /// utilization reaches 1.0.
     ///
     /// Example: `tandem sweep post.tandem --vary t=0.25in..0.75in --steps 11
-    /// --show shell.stress --seek`. Exit code 0 on success (whatever the
-    /// utilizations), 2 on an error.
+    /// --show shell.stress --seek`. Give `--vary` twice for a grid: the
+    /// first parameter varies fastest, and `--steps 21,5` gives each its
+    /// count. Steps stream to the output as they are solved. Exit code 0 on
+    /// success (whatever the utilizations), 2 on an error.
     Sweep {
         /// The calc file.
         file: PathBuf,
         /// The parameter and its range, `NAME=FROM..TO`, with units
-        /// (`t=0.25 in..0.75 in`).
-        #[arg(long, value_name = "NAME=FROM..TO")]
-        vary: String,
-        /// Number of evenly spaced values, ends included.
-        #[arg(long, default_value_t = 11, value_parser = clap::value_parser!(u32).range(2..=1_000_000))]
-        steps: u32,
+        /// (`t=0.25 in..0.75 in`). Twice for a grid of two parameters.
+        #[arg(long, value_name = "NAME=FROM..TO", required = true, num_args = 1)]
+        vary: Vec<String>,
+        /// Number of evenly spaced values, ends included: one count for
+        /// every parameter, or one each (`21,5`).
+        #[arg(long, default_value = "11", value_delimiter = ',', value_name = "N[,M]", value_parser = clap::value_parser!(u32).range(2..=1_000_000))]
+        steps: Vec<u32>,
         /// Results to tabulate, e.g. `core.stress,cap.displacement`.
         #[arg(long, value_delimiter = ',', value_name = "RESULTS")]
         show: Vec<String>,
-        /// Find the value at which the governing utilization reaches 1.0.
+        /// Find the value at which the governing utilization reaches 1.0
+        /// (on a grid: along the first parameter, for each value of the
+        /// second).
         #[arg(long)]
         seek: bool,
-        /// Draw utilization against the parameter into this SVG file.
+        /// Draw utilization against the parameter into this SVG file (on a
+        /// grid: the governing utilization, one curve per value of the
+        /// second parameter).
         #[arg(long, value_name = "OUT.svg")]
         plot: Option<PathBuf>,
         /// Write JSON (SI values) instead of the table.

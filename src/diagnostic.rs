@@ -28,6 +28,10 @@ pub enum Error {
         combination: String,
         inner: Box<Error>,
     },
+    /// A failure with no place in the file (an output that cannot be
+    /// written during a sweep).
+    #[error("{0}")]
+    Message(String),
 }
 
 impl Error {

@@ -31,6 +31,7 @@ macro_rules! errln {
 
 mod report_command;
 mod sample_command;
+mod sweep_command;
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
@@ -88,10 +89,10 @@ fn main() -> ExitCode {
             plot,
             json,
             display,
-        } => sweep(&SweepArgs {
+        } => sweep_command::sweep(&sweep_command::Args {
             file: &file,
             vary: &vary,
-            steps: steps as usize,
+            steps: &steps,
             show: &show,
             seek,
             plot: plot.as_deref(),
@@ -427,153 +428,4 @@ fn diff(old: &str, new: &Path, min_change: f64, json: bool, show: &Show) -> Exit
     } else {
         ExitCode::SUCCESS
     }
-}
-
-struct SweepArgs<'a> {
-    file: &'a Path,
-    vary: &'a str,
-    steps: usize,
-    show: &'a [String],
-    seek: bool,
-    plot: Option<&'a Path>,
-    json: bool,
-    display: &'a Show,
-}
-
-fn sweep(args: &SweepArgs<'_>) -> ExitCode {
-    use tandem::review::sweep::{self, Sweeper};
-    let fail = |msg: String| {
-        errln!("error: {msg}");
-        bad()
-    };
-    let Some((name, range)) = args.vary.split_once('=') else {
-        return fail(format!(
-            "`--vary {}` needs the form NAME=FROM..TO, e.g. `t=0.25 in..0.75 in`",
-            args.vary
-        ));
-    };
-    let Some((from_text, to_text)) = range.split_once("..") else {
-        return fail(format!(
-            "`{range}` needs the form FROM..TO, e.g. `0.25 in..0.75 in`"
-        ));
-    };
-    // `10 kN...100 kN` would read as 10 kN to .100 kN
-    if to_text.trim_start().starts_with('.') || to_text.contains("..") {
-        return fail(format!(
-            "`{range}` needs the form FROM..TO with two dots, e.g. `10 kN..100 kN`"
-        ));
-    }
-    let (from, to) = match (tandem::quantity(from_text), tandem::quantity(to_text)) {
-        (Ok(a), Ok(b)) => (a, b),
-        (Err(e), _) | (_, Err(e)) => return fail(e),
-    };
-    // the unit the range is written in (`deg`), to answer in
-    let range_unit = from_text
-        .find(|c: char| c.is_ascii_alphabetic())
-        .map(|i| from_text[i..].trim().to_string())
-        .filter(|u| !u.is_empty())
-        .and_then(|u| {
-            tandem::quantity(&format!("1 {u}"))
-                .ok()
-                .map(|q| tandem::report::display::Shown {
-                    name: u,
-                    factor: q.value,
-                })
-        });
-    let Some(source) = read(args.file) else {
-        return bad();
-    };
-    let sweeper = match Sweeper::new(&source, name.trim(), args.show) {
-        Ok(s) => s,
-        Err(Ok(errors)) => {
-            report_errors(&errors, &source);
-            return bad();
-        }
-        Err(Err(msg)) => return fail(msg),
-    };
-    for q in [from, to] {
-        if q.dim != sweeper.dimension() {
-            return fail(format!(
-                "`{}` is {}, but the range is given as {}; write the range with units of the parameter",
-                name.trim(),
-                sweeper.dimension().describe(),
-                q.dim.describe()
-            ));
-        }
-    }
-    let solve_error = |(q, errors): (tandem::units::Quantity, Vec<tandem::Error>)| {
-        match &range_unit {
-            Some(u) => errln!(
-                "at {} = {} {}:",
-                name.trim(),
-                tandem::report::number(u.value(q.value), 6),
-                u.name
-            ),
-            None => errln!("at {} = {}:", name.trim(), q.value),
-        }
-        report_errors(&errors, &source);
-        bad()
-    };
-    // progress on stderr when it is a terminal and the sweep is long
-    let terminal = std::io::stderr().is_terminal() && args.steps >= 1024;
-    let progress = |done: usize| {
-        if terminal {
-            err!("\rswept {done} of {} steps", args.steps);
-        }
-    };
-    let swept = sweeper.sweep_with(from, to, args.steps, &progress);
-    if terminal {
-        errln!();
-    }
-    let mut table = match swept {
-        Ok(t) => t,
-        Err(e) => return solve_error(e),
-    };
-    table.unit.clone_from(&range_unit);
-    let seek = if args.seek {
-        match sweeper.seek(&table, 1e-6) {
-            Ok(s) => Some(s),
-            Err(e) => return solve_error(e),
-        }
-    } else {
-        None
-    };
-    let model = match tandem::check(&source) {
-        Ok(m) => m,
-        Err(errors) => {
-            report_errors(&errors, &source);
-            return bad();
-        }
-    };
-    let d = match display(&model, args.display) {
-        Ok(d) => d,
-        Err(msg) => return fail(msg),
-    };
-    if let Some(out) = args.plot {
-        if tandem::output::is_input(out, &[args.file.to_path_buf()]) {
-            return fail(format!(
-                "refusing to write the plot over the input file {}",
-                out.display()
-            ));
-        }
-        let svg = sweep::plot(&table, seek.as_ref(), &d);
-        if let Err(e) = tandem::output::write_atomic(out, svg.as_bytes()) {
-            return fail(format!("cannot write {}: {e}", out.display()));
-        }
-    }
-    if args.json {
-        // written as it is made: the document is never held whole
-        use std::io::Write as _;
-        let mut w = std::io::BufWriter::new(std::io::stdout().lock());
-        let written = sweep::write_json(&mut w, &table, seek.as_ref()).and_then(|()| w.flush());
-        // like every other output, a closed pipe is not an error
-        if let Err(e) = written {
-            if e.kind() != std::io::ErrorKind::BrokenPipe {
-                return fail(e.to_string());
-            }
-        }
-    } else {
-        out!("{}", sweep::text(&table, seek.as_ref(), &d));
-    }
-    ExitCode::SUCCESS
 }

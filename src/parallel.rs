@@ -44,3 +44,25 @@ pub fn each<R: Send>(count: usize, work: impl Fn(usize) -> R + Sync + Send) -> V
 pub fn map<I: Sync, R: Send>(items: &[I], work: impl Fn(&I) -> R + Sync + Send) -> Vec<R> {
     items.par_iter().map(work).collect()
 }
+
+/// `work(state, k)` for `k` in `0..count`, in parallel: the indices cut
+/// into one contiguous run per state, each run worked with its own state
+/// (a model updated in place); the results in order.
+pub fn each_with<S: Send, R: Send>(
+    states: &mut [S],
+    count: usize,
+    work: impl Fn(&mut S, usize) -> R + Sync + Send,
+) -> Vec<R> {
+    let runs = states.len().clamp(1, count.max(1));
+    let per = count.div_ceil(runs).max(1);
+    let parts: Vec<Vec<R>> = states[..runs]
+        .par_iter_mut()
+        .enumerate()
+        .map(|(k, s)| {
+            let lo = (k * per).min(count);
+            let hi = ((k + 1) * per).min(count);
+            (lo..hi).map(|i| work(s, i)).collect()
+        })
+        .collect();
+    parts.into_iter().flatten().collect()
+}

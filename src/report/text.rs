@@ -9,28 +9,54 @@ pub fn aligned(rows: &[Vec<String>], left: &[usize], indent: &str) -> String {
     let cols = rows.iter().map(Vec::len).max().unwrap_or(0);
     let mut width = vec![0usize; cols];
     for r in rows {
-        for (i, c) in r.iter().enumerate() {
-            width[i] = width[i].max(c.chars().count());
-        }
+        widen(&mut width, r);
     }
     let mut out = String::new();
     for r in rows {
-        let mut line = String::from(indent);
-        for (i, c) in r.iter().enumerate() {
-            let pad = " ".repeat(width[i] - c.chars().count());
-            if left.contains(&i) {
-                line.push_str(c);
-                line.push_str(&pad);
-            } else {
-                line.push_str(&pad);
-                line.push_str(c);
-            }
-            line.push_str("   ");
-        }
-        out.push_str(line.trim_end());
-        out.push('\n');
+        aligned_row(&mut out, r, &width, left, indent);
     }
     out
+}
+
+/// Grow `width` to hold each cell of `row` (the widths [`aligned_row`] pads to).
+pub fn widen<S: AsRef<str>>(width: &mut Vec<usize>, row: &[S]) {
+    if width.len() < row.len() {
+        width.resize(row.len(), 0);
+    }
+    for (w, c) in width.iter_mut().zip(row) {
+        *w = (*w).max(c.as_ref().chars().count());
+    }
+}
+
+/// One row of an [`aligned`] table, padded to `width`, onto `out`.
+pub fn aligned_row<S: AsRef<str>>(
+    out: &mut String,
+    row: &[S],
+    width: &[usize],
+    left: &[usize],
+    indent: &str,
+) {
+    let start = out.len();
+    out.push_str(indent);
+    for (i, c) in row.iter().enumerate() {
+        let c = c.as_ref();
+        let pad = width
+            .get(i)
+            .copied()
+            .unwrap_or(0)
+            .saturating_sub(c.chars().count());
+        if left.contains(&i) {
+            out.push_str(c);
+            out.extend(std::iter::repeat_n(' ', pad));
+        } else {
+            out.extend(std::iter::repeat_n(' ', pad));
+            out.push_str(c);
+        }
+        out.push_str("   ");
+    }
+    let end = out[start..].trim_end().len() + start;
+    out.truncate(end);
+    out.push('\n');
 }
 
 /// The heading of a combination: `name = 1.2 dead + 1.6 live`, or for a

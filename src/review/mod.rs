@@ -5,4 +5,5 @@ pub mod diff;
 pub mod fmt;
 pub mod sample;
 pub mod sensitivity;
+pub mod study;
 pub mod sweep;

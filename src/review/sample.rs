@@ -14,7 +14,7 @@ use rand::SeedableRng;
 use rand_chacha::ChaCha8Rng;
 use rand_distr::{Distribution, LogNormal, Normal, Triangular, Uniform};
 
-use crate::checks::Refs;
+use super::study::Evaluator;
 use crate::model::{build_with, Limits};
 use crate::source::Source;
 use crate::syntax::ast;
@@ -374,7 +374,7 @@ pub struct Summary {
     /// The governing utilization: "any check fails".
     pub any: Tally,
     /// Each shown result (SI values; failures not counted).
-    pub shown: Vec<(super::sweep::Shown, Dimension, Tally)>,
+    pub shown: Vec<(super::study::Shown, Dimension, Tally)>,
     /// Samples that could not be solved, and the reasons, most frequent
     /// first (at most five, each with its count).
     pub unsolved: usize,
@@ -386,12 +386,12 @@ pub struct Sampler {
     file: ast::File,
     varied: Vec<Varied>,
     draws: Vec<Draw>,
-    shown: Vec<super::sweep::Shown>,
+    shown: Vec<super::study::Shown>,
     labels: Vec<String>,
     shown_dims: Vec<Dimension>,
 }
 
-type Outcome = Result<(super::sweep::Utilizations, Vec<f64>), String>;
+type Outcome = Result<(super::study::Utilizations, Vec<f64>), String>;
 
 impl Sampler {
     /// Parse the file once and check the varied names, their units and
@@ -433,15 +433,26 @@ impl Sampler {
                 )));
             }
         }
-        let shown = super::sweep::shown_results(&model, shown, &source.name).map_err(Err)?;
-        let solution = crate::solve::solve(&model).map_err(|e| Ok(vec![crate::Error::from(e)]))?;
-        let refs = Refs::new(&model, &[]);
-        let (checks, _) = super::sweep::utilizations(&model, &solution, &refs).map_err(Ok)?;
-        let labels = checks.governing().iter().map(|o| o.label.clone()).collect();
-        let shown_dims = shown
+        let shown = super::study::shown_results(&model, shown, &source.name).map_err(Err)?;
+        // the file's own values: the labels of the checks, the units shown
+        let names: Vec<&str> = varied.iter().map(|v| v.name.as_str()).collect();
+        let base: Vec<Quantity> = varied
             .iter()
-            .map(|s| super::sweep::shown_value(&model, &solution, &refs, s).dim)
+            .filter_map(|v| model.lets.iter().find(|l| l.name == v.name))
+            .map(|l| l.value)
             .collect();
+        let (labels, shown_dims) = {
+            let mut ev = Evaluator::new(&file, &names, &shown)?;
+            let at = ev.at(&base).map_err(Ok)?;
+            let labels: Vec<String> = at
+                .checks
+                .governing()
+                .iter()
+                .map(|o| o.label.clone())
+                .collect();
+            let dims: Vec<Dimension> = at.shown.iter().map(|q| q.dim).collect();
+            (labels, dims)
+        };
         let draws = varied
             .iter()
             .map(|v| Draw::of(v.dist))
@@ -457,19 +468,28 @@ impl Sampler {
         })
     }
 
-    /// The values of the varied lets in sample `i`.
-    fn draw(&self, seed: u64, i: u64) -> Vec<(String, Quantity)> {
+    /// The values of the varied lets in sample `i`, in their order.
+    fn draw(&self, seed: u64, i: u64) -> Vec<Quantity> {
         let mut r = ChaCha8Rng::seed_from_u64(seed);
         r.set_stream(i);
         self.varied
             .iter()
             .zip(&self.draws)
-            .map(|(v, d)| (v.name.clone(), Quantity::new(d.sample(&mut r), v.dim)))
+            .map(|(v, d)| Quantity::new(d.sample(&mut r), v.dim))
             .collect()
     }
 
-    fn evaluate(&self, overrides: &[(String, Quantity)]) -> Outcome {
-        super::sweep::evaluate_with(&self.file, overrides, &self.shown)
+    /// One evaluation per core, each updating its own copy of the model.
+    fn evaluators(&self) -> Vec<Result<Evaluator<'_>, String>> {
+        let names: Vec<&str> = self.varied.iter().map(|v| v.name.as_str()).collect();
+        (0..rayon::current_num_threads().max(1))
+            .map(|_| {
+                Evaluator::new(&self.file, &names, &self.shown).map_err(|e| match e {
+                    Ok(es) => es.first().map_or_else(String::new, ToString::to_string),
+                    Err(msg) => msg,
+                })
+            })
+            .collect()
     }
 
     /// Draw and solve `samples` samples; `progress(done)` after each batch.
@@ -481,11 +501,17 @@ impl Sampler {
         let mut unsolved = 0;
         let mut reasons: Vec<(String, usize)> = Vec::new();
         let mut done = 0;
+        let mut evaluators = self.evaluators();
         while done < samples {
             let batch = BATCH.min(samples - done);
-            let outcomes: Vec<Outcome> = crate::parallel::each(batch, |j| {
-                self.evaluate(&self.draw(seed, (done + j) as u64))
-            });
+            let outcomes: Vec<Outcome> =
+                crate::parallel::each_with(&mut evaluators, batch, |ev, j| {
+                    let ev = ev.as_mut().map_err(|e| e.clone())?;
+                    let e = ev
+                        .at(&self.draw(seed, (done + j) as u64))
+                        .map_err(|e| e.first().map_or_else(String::new, ToString::to_string))?;
+                    Ok((e.utilizations, e.shown.iter().map(|q| q.value).collect()))
+                });
             for o in outcomes {
                 match o {
                     Ok((u, values)) => {

@@ -9,7 +9,7 @@
 //! given as a central difference with its step (error of order h²). Each evaluation rebuilds and
 //! re-solves the model with the one `let` fixed at its moved value.
 
-use super::sweep::Utilizations;
+use super::study::{Evaluator, Utilizations};
 use crate::syntax::ast;
 use crate::units::Quantity;
 
@@ -101,10 +101,30 @@ pub struct Sensitivity {
     pub note: Option<String>,
 }
 
-/// The governing utilization and each check's at the file's values with
-/// some lets fixed at others.
-fn at(file: &ast::File, overrides: &[(String, Quantity)]) -> Result<Utilizations, String> {
-    super::sweep::evaluate_with(file, overrides, &[]).map(|(u, _)| u)
+/// The governing utilization and each check's at the file's values, with
+/// the `let` named `name` (if any) at each of `values` in turn.
+fn at(file: &ast::File, name: Option<&str>, values: &[f64]) -> Result<Vec<Utilizations>, String> {
+    let first = |e: &[crate::Error]| e.first().map_or_else(String::new, ToString::to_string);
+    let names: Vec<&str> = name.into_iter().collect();
+    let mut ev = Evaluator::new(file, &names, &[]).map_err(|e| match e {
+        Ok(es) => first(&es),
+        Err(msg) => msg,
+    })?;
+    let dim = name
+        .and_then(|n| ev.model().lets.iter().find(|l| l.name == n))
+        .map(|l| l.value.dim);
+    let mut out = Vec::with_capacity(values.len().max(1));
+    if let Some(dim) = dim {
+        for &v in values {
+            let e = ev
+                .at(&[Quantity::new(v, dim)])
+                .map_err(|e| format!("at {} = {v:e} (SI): {}", names[0], first(&e)))?;
+            out.push(e.utilizations);
+        }
+    } else {
+        out.push(ev.at(&[]).map_err(|e| first(&e))?.utilizations);
+    }
+    Ok(out)
 }
 
 /// (ln U₊ − ln U₋)/(2h), or where U is not positive on both sides the
@@ -165,10 +185,13 @@ pub fn sensitivity(file: &ast::File, a: &crate::Analysis) -> Sensitivity {
             )),
         };
     }
-    let base = at(file, &[]).unwrap_or_else(|_| Utilizations {
-        governing: None,
-        checks: vec![None; labels.len()],
-    });
+    let base = at(file, None, &[])
+        .ok()
+        .and_then(|mut u| u.pop())
+        .unwrap_or_else(|| Utilizations {
+            governing: None,
+            checks: vec![None; labels.len()],
+        });
     let (u0, c0) = (base.governing, base.checks);
     let mut inputs: Vec<Input> =
         crate::parallel::each(lets.len(), |i| one(file, lets[i], u0, &c0, labels.len()));
@@ -193,8 +216,6 @@ fn one(
     n: usize,
 ) -> Input {
     let x = l.value;
-    let moved = |v: f64| vec![(l.name.clone(), Quantity::new(v, x.dim))];
-    let eval = |v: f64| at(file, &moved(v));
     let mut input = Input {
         name: l.name.clone(),
         value: x,
@@ -211,16 +232,13 @@ fn one(
     } else {
         steps.iter().map(|s| x.value * s.exp()).collect()
     };
-    let mut got = Vec::with_capacity(4);
-    for &v in &points {
-        match eval(v) {
-            Ok(r) => got.push(r),
-            Err(e) => {
-                input.failed = Some(format!("at {} = {v:e} (SI): {e}", l.name));
-                return input;
-            }
+    let got = match at(file, Some(&l.name), &points) {
+        Ok(got) => got,
+        Err(e) => {
+            input.failed = Some(e);
+            return input;
         }
-    }
+    };
     let diff =
         |k: usize, step: f64, u: Option<f64>, pick: &dyn Fn(&Utilizations) -> Option<f64>| {
             let (p, m) = (pick(&got[2 * k]), pick(&got[2 * k + 1]));

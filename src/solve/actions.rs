@@ -154,8 +154,7 @@ impl System<'_> {
                 free[i] += source.value();
             }
         }
-        let mut moved: std::collections::HashMap<(usize, usize), f64> =
-            std::collections::HashMap::new();
+        let mut moved: foldhash::HashMap<(usize, usize), f64> = foldhash::HashMap::default();
         for &(ci, factor) in terms {
             let case = &model.cases[ci];
             if take.strains {

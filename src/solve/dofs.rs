@@ -325,7 +325,7 @@ pub(crate) fn number(model: &Model) -> Result<DofMap, SolveError> {
     }
     let mut bodies: Vec<Body> = Vec::new();
     let mut node_body: Vec<Option<u32>> = vec![None; nn];
-    let mut class_body: std::collections::HashMap<usize, usize> = std::collections::HashMap::new();
+    let mut class_body: foldhash::HashMap<usize, usize> = foldhash::HashMap::default();
     let new_body = |rigid: Option<usize>, reference: (f64, f64)| Body {
         rigid,
         coords: if rigid.is_some() { 3 } else { ndof },
@@ -494,11 +494,10 @@ fn class_anchors(
     model: &Model,
     rigid_of: &[Option<usize>],
     root: &[usize],
-) -> Result<std::collections::HashMap<usize, (usize, usize)>, SolveError> {
+) -> Result<foldhash::HashMap<usize, (usize, usize)>, SolveError> {
     let nn = model.nodes.len();
     let pos = |i: usize| (model.nodes[i].x.value, model.nodes[i].y.value);
-    let mut class_anchor: std::collections::HashMap<usize, (usize, usize)> =
-        std::collections::HashMap::new();
+    let mut class_anchor: foldhash::HashMap<usize, (usize, usize)> = foldhash::HashMap::default();
     for i in 0..nn {
         if let Some(ri) = rigid_of[i] {
             let c = root[i];

@@ -39,7 +39,7 @@ use mechanism::{dominant, singular};
 use results::{gather_results, ModeLaw, ResultInputs};
 use system::{numeric, Elements};
 
-use std::collections::HashSet;
+use foldhash::{HashSet, HashSetExt};
 use std::hash::{Hash, Hasher};
 
 use uom::si::f64::{Force, Length, Pressure};
@@ -70,7 +70,38 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
 }
 
 fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
-    let system = System::new(model)?;
+    solve_on(&System::new(model)?, max_trials)
+}
+
+/// Solves of a model whose numbers change from one solve to the next but
+/// not its structure or its nodes' positions (a sweep's or a sample's
+/// steps): the numbered unknowns, the elements and the factorisation
+/// pattern are kept, and each solve computes only the stiffnesses and the
+/// numeric factorisation again.
+#[derive(Default)]
+pub struct Resolver {
+    kept: Option<system::Skeleton>,
+}
+
+impl Resolver {
+    /// [`solve`] `model`, which must differ from the one of the last call
+    /// only in numbers other than node positions.
+    ///
+    /// # Errors
+    /// As [`solve`].
+    pub fn solve(&mut self, model: &Model) -> Result<Solution, SolveError> {
+        let system = match self.kept.take() {
+            Some(s) => System::renew(model, s),
+            None => System::new(model)?,
+        };
+        let solved = solve_on(&system, MAX_TRIALS);
+        self.kept = Some(system.into_skeleton());
+        solved
+    }
+}
+
+fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveError> {
+    let model = system.model;
     let k_full = system.stiffness();
     let mut warnings = Vec::new();
     let (kmin, kmax) = k_full.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), &k| {
@@ -118,7 +149,7 @@ fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
                     }
                     // Flipping does not settle: let Newton find the set.
                     newton_tried = true;
-                    modes = newton_modes(&system, &a, &k_full, &initial, max_trials)?;
+                    modes = newton_modes(system, &a, &k_full, &initial, max_trials)?;
                     seen.clear();
                     continue;
                 }
@@ -146,7 +177,7 @@ fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
                         // A trial state that cannot stand: let Newton find the set.
                         newton_tried = true;
                         single = true;
-                        modes = newton_modes(&system, &a, &k_full, &initial, max_trials)?;
+                        modes = newton_modes(system, &a, &k_full, &initial, max_trials)?;
                         seen.clear();
                         continue;
                     }

@@ -136,15 +136,13 @@ pub(super) fn elements(model: &Model, map: &DofMap) -> Elements {
         }
         push_g(&mut e, map, &comps);
         e.dir.push(dir);
-        e.k.push(p.stiffness(&model.materials).value);
     }
     for (pi, p) in model.parts.iter().enumerate() {
-        let (Some(b), Some(m)) = (&p.bend, p.material()) else {
+        let (Some(b), Some(_)) = (&p.bend, p.material()) else {
             continue;
         };
-        let ei_l = model.materials[m].e.value * b.inertia / p.length.value;
         let [phi_a, phi_b] = end_rotations(model, map, pi);
-        for (ca, cb, k) in modes_of(b.hinge, ei_l) {
+        for (ca, cb, _) in modes_of(b.hinge, 0.0) {
             let mut mc: Vec<(usize, f64)> = Vec::new();
             for &(c, v) in &phi_a {
                 mc.push((c, ca * v));
@@ -154,7 +152,6 @@ pub(super) fn elements(model: &Model, map: &DofMap) -> Elements {
             }
             mc.retain(|x| x.1 != 0.0);
             push_g(&mut e, map, &mc);
-            e.k.push(k);
             e.modes.push(BendMode {
                 part: pi,
                 ca,
@@ -163,7 +160,36 @@ pub(super) fn elements(model: &Model, map: &DofMap) -> Elements {
             });
         }
     }
+    stiffnesses(model, &mut e.k);
     e
+}
+
+/// Every element's stiffness, in the elements' order: each part's E·A/L
+/// (or its spring's), then each beam's bending modes.
+fn stiffnesses(model: &Model, k: &mut Vec<f64>) {
+    k.clear();
+    k.extend(
+        model
+            .parts
+            .iter()
+            .map(|p| p.stiffness(&model.materials).value),
+    );
+    for p in &model.parts {
+        let (Some(b), Some(m)) = (&p.bend, p.material()) else {
+            continue;
+        };
+        let ei_l = model.materials[m].e.value * b.inertia / p.length.value;
+        k.extend(modes_of(b.hinge, ei_l).into_iter().map(|(_, _, k)| k));
+    }
+}
+
+/// What a [`System`] keeps from one solve to the next of a model whose
+/// numbers change but not its structure or geometry: the numbered
+/// unknowns, the elements' coefficients and the factorisation pattern.
+pub(crate) struct Skeleton {
+    map: DofMap,
+    elems: Elements,
+    pattern: Pattern,
 }
 
 /// A model's numbered unknowns, elements and factorisation pattern, built
@@ -219,6 +245,33 @@ impl<'m> System<'m> {
             elems,
             pattern,
         })
+    }
+
+    /// The system of `model` on a kept skeleton: only the stiffnesses are
+    /// computed again. `model` must have the structure and the node
+    /// positions of the model the skeleton was built for.
+    pub(crate) fn renew(model: &'m Model, kept: Skeleton) -> Self {
+        let Skeleton {
+            map,
+            mut elems,
+            pattern,
+        } = kept;
+        stiffnesses(model, &mut elems.k);
+        Self {
+            model,
+            map,
+            elems,
+            pattern,
+        }
+    }
+
+    /// What [`System::renew`] starts from.
+    pub(crate) fn into_skeleton(self) -> Skeleton {
+        Skeleton {
+            map: self.map,
+            elems: self.elems,
+            pattern: self.pattern,
+        }
     }
 
     /// Each part's elastic stiffness k = E A / L.

@@ -24,6 +24,7 @@ mod reports;
 mod sample;
 mod schema;
 mod sensitivity;
+mod study;
 mod sweep;
 mod trace;
 mod trust;

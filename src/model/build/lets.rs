@@ -265,6 +265,7 @@ impl Builder {
             }
         }
         let mut values: Vec<Option<Result<Quantity, ()>>> = vec![None; n];
+        self.let_order.clone_from(&order);
         let order_copy = order.clone();
         for i in order {
             if in_cycle[i] || !registered(i, lets[i]) {

@@ -36,6 +36,7 @@ mod material;
 mod names;
 mod node;
 mod part;
+mod rebuild;
 
 // What the stages share (the files below see it through `use super::*`).
 use check::CheckScope;
@@ -44,6 +45,7 @@ use lets::{unit_usage, walk_names, LetScope};
 use names::{NameKind, Names};
 
 pub use lets::{reaches, solver_depends_on};
+pub use rebuild::Rebuild;
 
 #[derive(Clone, Copy, Debug)]
 pub struct Limits {
@@ -146,6 +148,8 @@ struct Builder {
     overrides: Vec<(String, Quantity)>,
     /// Published sources behind each `let`, by name.
     let_sources: HashMap<String, Vec<&'static str>>,
+    /// The `let`s (by file order) in the order they were evaluated.
+    let_order: Vec<usize>,
 }
 
 fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option<T> {
@@ -168,6 +172,7 @@ impl Builder {
             alpha_failed: HashSet::new(),
             overrides: Vec::new(),
             let_sources: HashMap::new(),
+            let_order: Vec::new(),
         }
     }
 
@@ -181,6 +186,15 @@ impl Builder {
 
     /// The stages of a build, in the order each needs the last.
     fn run(mut self, file: &ast::File) -> Result<Model, Vec<ModelError>> {
+        match self.run_keeping(file) {
+            Some((model, _)) => Ok(model),
+            None => Err(self.errors),
+        }
+    }
+
+    /// [`Builder::run`], keeping what a [`Rebuild`] needs: the names and
+    /// the `let` values. `None` when there are errors (in `self.errors`).
+    fn run_keeping<'f>(&mut self, file: &'f ast::File) -> Option<(Model, Kept<'f>)> {
         if file.decls.len() > self.limits.max_declarations {
             self.errors.push(ModelError::too_many(
                 "declarations",
@@ -188,7 +202,7 @@ impl Builder {
                 self.limits.max_declarations,
                 Span::new(0, 0),
             ));
-            return Err(self.errors);
+            return None;
         }
         let names = self.register(file);
         let (lets, let_values) = self.lets(file, &names);
@@ -203,9 +217,7 @@ impl Builder {
             count(file, |d| matches!(d, Decl::Material(_))),
             materials.iter().map(|m| m.name.as_str()),
         );
-        let Some((mut nodes, kind)) = self.nodes(file, &scope) else {
-            return Err(self.errors);
-        };
+        let (mut nodes, kind) = self.nodes(file, &scope)?;
         self.supports(file, &names, kind, &mut nodes);
         // parts and beams in file order; `true` marks a beam
         let part_decls: Vec<(&ast::NamedBlock, bool)> = file
@@ -256,9 +268,9 @@ impl Builder {
                 .push(ModelError::empty("parts", Span::new(0, 0)));
         }
         if !self.errors.is_empty() {
-            return Err(self.errors);
+            return None;
         }
-        Ok(Model {
+        let model = Model {
             title,
             kind,
             lets,
@@ -272,6 +284,14 @@ impl Builder {
             checks,
             units,
             unit_usage: unit_usage(file),
-        })
+        };
+        Some((model, Kept { names, let_values }))
     }
+}
+
+/// What a build keeps for a [`Rebuild`]: the name table and each `let`'s
+/// value (by file order).
+struct Kept<'f> {
+    names: Names<'f>,
+    let_values: Vec<Option<Result<Quantity, ()>>>,
 }
