@@ -86,9 +86,10 @@ impl Checks {
     /// Indices into `outcomes` of each check's governing outcome, in check order.
     pub fn governing_indices(&self) -> Vec<usize> {
         let mut order: Vec<usize> = Vec::new();
-        let mut slot: foldhash::HashMap<(&str, OriginKey), usize> = foldhash::HashMap::default();
+        // a check's outcomes share its origin (and so its label)
+        let mut slot: foldhash::HashMap<OriginKey, usize> = foldhash::HashMap::default();
         for (i, o) in self.outcomes.iter().enumerate() {
-            let key = (o.label.as_str(), OriginKey::of(&o.origin));
+            let key = OriginKey::of(&o.origin);
             match slot.get(&key) {
                 Some(&k) => {
                     if outranks(o, &self.outcomes[order[k]]) {
@@ -171,10 +172,25 @@ enum Object {
 /// pass over its lets, parts and nodes: evaluating a check then costs no
 /// search through the model per reference (many checks on a large model
 /// would otherwise cost checks × parts).
+/// The names are owned, so that one `Refs` serves a model whose numbers
+/// change from one evaluation to the next (a sweep's steps).
 #[derive(Debug, Default)]
 pub struct Refs<'a> {
-    lets: HashMap<&'a str, usize>,
-    objects: HashMap<&'a str, Object>,
+    lets: HashMap<compact_str::CompactString, usize>,
+    objects: HashMap<compact_str::CompactString, Object>,
+    model: std::marker::PhantomData<&'a Model>,
+}
+
+impl Refs<'_> {
+    /// The same lookups, free of the model's lifetime (the names are owned).
+    #[must_use]
+    pub fn into_owned(self) -> Refs<'static> {
+        Refs {
+            lets: self.lets,
+            objects: self.objects,
+            model: std::marker::PhantomData,
+        }
+    }
 }
 
 impl<'a> Refs<'a> {
@@ -204,20 +220,20 @@ impl<'a> Refs<'a> {
         // through the model in that order would find
         for (i, l) in model.lets.iter().enumerate() {
             if wanted.contains(l.name.as_str()) {
-                refs.lets.entry(l.name.as_str()).or_insert(i);
+                refs.lets.entry(l.name.as_str().into()).or_insert(i);
             }
         }
         for (i, p) in model.parts.iter().enumerate() {
             if wanted.contains(p.name.as_str()) {
                 refs.objects
-                    .entry(p.name.as_str())
+                    .entry(p.name.clone())
                     .or_insert(Object::Part(i));
             }
         }
         for (i, n) in model.nodes.iter().enumerate() {
             if wanted.contains(n.name.as_str()) {
                 refs.objects
-                    .entry(n.name.as_str())
+                    .entry(n.name.clone())
                     .or_insert(Object::Node(i));
             }
         }

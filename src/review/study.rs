@@ -186,6 +186,9 @@ pub(crate) struct Evaluator<'f> {
     fixed: Option<Solution>,
     shown: Vec<Shown>,
     capacity: bool,
+    /// Where the checks' and the shown results' names live in the model
+    /// (the names do not change between evaluations).
+    refs: Refs<'static>,
 }
 
 impl<'f> Evaluator<'f> {
@@ -207,6 +210,8 @@ impl<'f> Evaluator<'f> {
             Some(crate::solve::solve(&model).map_err(|e| Ok(vec![Error::from(e)]))?)
         };
         let capacity = reads_load_factor(&model);
+        let objects: Vec<&str> = shown.iter().map(|s| s.object.as_str()).collect();
+        let refs = Refs::new(&model, &objects).into_owned();
         Ok(Self {
             rebuild,
             model,
@@ -214,6 +219,7 @@ impl<'f> Evaluator<'f> {
             fixed,
             shown: shown.to_vec(),
             capacity,
+            refs,
         })
     }
 
@@ -247,14 +253,12 @@ impl<'f> Evaluator<'f> {
                 &solved
             }
         };
-        // one lookup of the names for the checks and the results shown
-        let objects: Vec<&str> = self.shown.iter().map(|s| s.object.as_str()).collect();
-        let refs = Refs::new(model, &objects);
-        let (checks, utilizations) = utilizations(model, solution, &refs, self.capacity)?;
+        let refs = &self.refs;
+        let (checks, utilizations) = utilizations(model, solution, refs, self.capacity)?;
         let shown = self
             .shown
             .iter()
-            .map(|s| shown_value(model, solution, &refs, s))
+            .map(|s| shown_value(model, solution, refs, s))
             .collect();
         Ok(Evaluation {
             checks,

@@ -148,7 +148,9 @@ impl Builder {
             }
         }
         let mut e_sources = Vec::new();
-        if let Some(Ok(expr)) = f.expr("E") {
+        // a rebuild keeps a material's sources and expressions (they do
+        // not change with the values)
+        if let (false, Some(Ok(expr))) = (self.numbers_only, f.expr("E")) {
             crate::model::functions::sources(expr, &mut e_sources);
             let mut refs = Vec::new();
             walk_names(expr, &mut refs);
@@ -176,7 +178,7 @@ impl Builder {
         }
         // keys derived from other names, for the report's substitution
         let mut derived = Vec::new();
-        for key in KEYS {
+        for key in KEYS.iter().filter(|_| !self.numbers_only) {
             if let Some(Ok(e)) = f.expr(key) {
                 let mut named = false;
                 e.visit(&mut |x| named |= matches!(x.kind, ExprKind::Name(_)));

@@ -150,6 +150,10 @@ struct Builder {
     let_sources: HashMap<String, Vec<&'static str>>,
     /// The `let`s (by file order) in the order they were evaluated.
     let_order: Vec<usize>,
+    /// A [`Rebuild`]'s update: what does not change with the values (a
+    /// material's published sources and the expressions the report
+    /// substitutes) is kept from the first build, not made again.
+    numbers_only: bool,
 }
 
 fn push_err<T>(errors: &mut Vec<ModelError>, r: Result<T, ModelError>) -> Option<T> {
@@ -173,6 +177,7 @@ impl Builder {
             overrides: Vec::new(),
             let_sources: HashMap::new(),
             let_order: Vec::new(),
+            numbers_only: false,
         }
     }
 

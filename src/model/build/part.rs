@@ -188,12 +188,25 @@ impl Builder {
             bend,
             span: nb.span,
         };
+        self.stiffness_ok(&part, materials, what, nb.name.span)?;
+        Some(part)
+    }
+
+    /// A part's E·A/L finite, positive and within the sane range of a
+    /// stiffness (checked again when only its material changes).
+    pub(super) fn stiffness_ok(
+        &mut self,
+        part: &Part,
+        materials: &[Material],
+        what: What<'_>,
+        span: Span,
+    ) -> Option<()> {
         let k = part.stiffness(materials).value;
         if !k.is_finite() || k <= 0.0 {
             self.errors.push(ModelError::NotFinite {
                 what: format!("the stiffness E·A/L of {what}"),
                 reason: "it overflows or vanishes".into(),
-                span: nb.name.span,
+                span,
             });
             return None;
         }
@@ -201,9 +214,9 @@ impl Builder {
         self.ok(ModelError::guard(
             k,
             || format!("the stiffness E·A/L of {what}"),
-            nb.name.span,
+            span,
         ))?;
-        Some(part)
+        Some(())
     }
 
     /// A beam's bending: its second moment and extreme fibre about the axis

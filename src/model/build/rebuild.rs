@@ -31,6 +31,9 @@ pub struct Rebuild<'f> {
     part_decls: Vec<(&'f ast::NamedBlock, bool)>,
     /// The parts built again, by place (all when the nodes move).
     parts: Vec<usize>,
+    /// The parts whose material changes but not their own expressions:
+    /// only their E·A/L is checked again.
+    restiffened: Vec<usize>,
     /// Whether the nodes (and so every length and direction) are built again.
     nodes: bool,
     /// Whether the cases are built again.
@@ -131,18 +134,22 @@ impl<'f> Rebuild<'f> {
         if part_decls.len() != model.parts.len() {
             return Err(Err("the calc's parts could not be numbered".into()));
         }
-        // a part of a changed material is checked again (its E·A/L)
+        // a part of a changed material has its E·A/L checked again
         let changed: HashSet<usize> = materials.iter().map(|&(_, at)| at).collect();
-        for (i, p) in model.parts.iter().enumerate() {
-            if p.material().is_some_and(|m| changed.contains(&m)) && !parts.contains(&i) {
-                parts.push(i);
-            }
-        }
-        parts.sort_unstable();
+        let mut restiffened: Vec<usize> = (0..model.parts.len())
+            .filter(|i| {
+                model.parts[*i]
+                    .material()
+                    .is_some_and(|m| changed.contains(&m))
+                    && !parts.contains(i)
+            })
+            .collect();
         if nodes {
             parts = (0..part_decls.len()).collect();
+            restiffened.clear();
         }
         let Kept { names, let_values } = kept;
+        builder.numbers_only = true;
         Ok((
             Self {
                 file,
@@ -155,6 +162,7 @@ impl<'f> Rebuild<'f> {
                 materials,
                 part_decls,
                 parts,
+                restiffened,
                 nodes,
                 cases,
             },
@@ -216,8 +224,11 @@ impl<'f> Rebuild<'f> {
             values: &self.values,
         };
         for &(nb, at) in &self.materials {
-            if let Some(m) = b.material(nb, &scope) {
-                model.materials[at] = m;
+            if let Some(mut m) = b.material(nb, &scope) {
+                let old = &mut model.materials[at];
+                m.e_sources = std::mem::take(&mut old.e_sources);
+                m.derived = std::mem::take(&mut old.derived);
+                *old = m;
             }
         }
         if self.nodes {
@@ -243,6 +254,11 @@ impl<'f> Rebuild<'f> {
             if let Some(p) = built {
                 model.parts[i] = p;
             }
+        }
+        for &i in &self.restiffened {
+            let (nb, beam) = self.part_decls[i];
+            let what = What::named(if beam { "beam" } else { "part" }, &nb.name.name);
+            b.stiffness_ok(&model.parts[i], &model.materials, what, nb.name.span);
         }
         if self.cases || self.nodes {
             let turns = super::super::rotating_nodes(&model.parts, model.nodes.len());

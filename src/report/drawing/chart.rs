@@ -16,6 +16,16 @@ pub struct Series {
     pub off: Vec<usize>,
 }
 
+/// The letter of the `i`-th of several marks: A to Z, then A2, B2, ...
+fn letter(i: usize) -> String {
+    let l = char::from(b'A' + u8::try_from(i % 26).unwrap_or(0));
+    if i < 26 {
+        l.to_string()
+    } else {
+        format!("{l}{}", i / 26 + 1)
+    }
+}
+
 /// A marked point with a label (an event on a path, a value sought).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Mark {
@@ -170,9 +180,13 @@ pub fn render(c: &Chart) -> String {
     let px = |x: f64| LEFT + (x - x0) / (x1 - x0) * PLOT_W;
     let py = |y: f64| TOP + (y_top - y.min(y_top)) / (y_top - y_bottom) * PLOT_H;
 
+    // several marks at one level would write over each other: each gets a
+    // letter on the chart and its words in the legend
+    let lettered = c.marks.len() > 1;
     let entries = c.levels.len()
         + c.series.len()
         + usize::from(!c.marks.is_empty())
+        + if lettered { c.marks.len() } else { 0 }
         + usize::from(c.series.iter().any(|s| !s.off.is_empty()));
     let legend_top = TOP + PLOT_H + 56.0;
     let height = legend_top + 18.0 * entries as f64 + 16.0;
@@ -280,7 +294,7 @@ pub fn render(c: &Chart) -> String {
             series.label.clone(),
         ));
     }
-    for m in &c.marks {
+    for (i, m) in c.marks.iter().enumerate() {
         let at = P::new(px(m.at.0), py(m.at.1));
         s.open("mark", &m.label);
         s.circle(
@@ -291,10 +305,11 @@ pub fn render(c: &Chart) -> String {
         s.line(at.add(-7.0, 0.0), at.add(7.0, 0.0), Stroke::Thin);
         s.line(at.add(0.0, -7.0), at.add(0.0, 7.0), Stroke::Thin);
         let right = at.x < LEFT + PLOT_W * 0.7;
+        let text = if lettered { letter(i) } else { m.label.clone() };
         s.text(
             at.add(if right { 9.0 } else { -9.0 }, -8.0),
             if right { "start" } else { "end" },
-            &m.label,
+            &text,
             false,
         );
         s.close();
@@ -309,6 +324,17 @@ pub fn render(c: &Chart) -> String {
             }),
             c.marks_label.clone(),
         ));
+    }
+    if lettered {
+        for (i, m) in c.marks.iter().enumerate() {
+            let l = letter(i);
+            legend.push((
+                Box::new(move |s: &mut Svg, at: P| {
+                    s.text(at.add(15.0, 4.0), "middle", &l, false);
+                }),
+                m.label.clone(),
+            ));
+        }
     }
     if any_off {
         legend.push((

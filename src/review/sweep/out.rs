@@ -90,27 +90,12 @@ fn replay(sweep: &Sweep, seek: Option<&Seek>, sink: &mut dyn Sink) -> std::io::R
     sink.end(seek)
 }
 
-/// One step as JSON: its values, utilizations and shown results.
-#[derive(serde::Serialize)]
-struct StepJson<'a> {
-    value_si: f64,
-    #[serde(skip_serializing_if = "Option::is_none")]
-    second_value_si: Option<f64>,
-    governing_utilization: Option<f64>,
-    checks: Vec<CheckJson<'a>>,
-    shown: Vec<ShownJson<'a>>,
-}
-
-#[derive(serde::Serialize)]
-struct CheckJson<'a> {
-    label: &'a str,
-    utilization: Option<f64>,
-}
-
-#[derive(serde::Serialize)]
-struct ShownJson<'a> {
-    result: &'a str,
-    value_si: f64,
+/// A number as JSON writes it (`null` where it is not finite).
+fn number_json(w: &mut impl Write, x: Option<f64>) -> std::io::Result<()> {
+    match x {
+        Some(x) if x.is_finite() => serde_json::to_writer(w, &x).map_err(std::io::Error::from),
+        _ => w.write_all(b"null"),
+    }
 }
 
 fn seek_json(s: &Seek) -> Value {
@@ -138,7 +123,9 @@ fn seek_json(s: &Seek) -> Value {
 /// The sweep as JSON (SI values), one step a line as it is made.
 pub struct JsonSink<W: Write> {
     out: W,
-    labels: Vec<String>,
+    /// Each check's `{"label":…,"utilization":` and each shown result's
+    /// `{"result":…,"value_si":`, escaped once.
+    checks: Vec<String>,
     shown: Vec<String>,
     first: bool,
 }
@@ -147,7 +134,7 @@ impl<W: Write> JsonSink<W> {
     pub fn new(out: W) -> Self {
         Self {
             out,
-            labels: Vec::new(),
+            checks: Vec::new(),
             shown: Vec::new(),
             first: true,
         }
@@ -165,11 +152,20 @@ impl<W: Write> JsonSink<W> {
 
 impl<W: Write> Sink for JsonSink<W> {
     fn begin(&mut self, head: &Head) -> std::io::Result<()> {
-        self.labels.clone_from(&head.labels);
+        self.checks = head
+            .labels
+            .iter()
+            .map(|l| format!("{{\"label\":{},\"utilization\":", json!(l)))
+            .collect();
         self.shown = head
             .shown
             .iter()
-            .map(|s| format!("{}.{}", s.object, s.field))
+            .map(|s| {
+                format!(
+                    "{{\"result\":{},\"value_si\":",
+                    json!(format!("{}.{}", s.object, s.field))
+                )
+            })
             .collect();
         writeln!(self.out, "{{")?;
         writeln!(self.out, "  \"parameter\": {},", json!(head.axes[0].name))?;
@@ -179,34 +175,39 @@ impl<W: Write> Sink for JsonSink<W> {
         write!(self.out, "  \"steps\": [")
     }
 
+    /// One step on its line, as serde would write
+    /// `{value_si, second_value_si?, governing_utilization, checks, shown}`.
     fn step(&mut self, s: &Step) -> std::io::Result<()> {
-        let step = StepJson {
-            value_si: s.value.value,
-            second_value_si: s.second.map(|q| q.value),
-            governing_utilization: s.governing,
-            checks: self
-                .labels
-                .iter()
-                .zip(&s.checks)
-                .map(|(l, u)| CheckJson {
-                    label: l,
-                    utilization: *u,
-                })
-                .collect(),
-            shown: self
-                .shown
-                .iter()
-                .zip(&s.shown)
-                .map(|(r, q)| ShownJson {
-                    result: r,
-                    value_si: q.value,
-                })
-                .collect(),
-        };
-        write!(self.out, "{}    ", if self.first { "\n" } else { ",\n" })?;
+        let w = &mut self.out;
+        w.write_all(if self.first { b"\n    " } else { b",\n    " })?;
         self.first = false;
-        serde_json::to_writer(&mut self.out, &step)?;
-        Ok(())
+        w.write_all(b"{\"value_si\":")?;
+        number_json(w, Some(s.value.value))?;
+        if let Some(second) = s.second {
+            w.write_all(b",\"second_value_si\":")?;
+            number_json(w, Some(second.value))?;
+        }
+        w.write_all(b",\"governing_utilization\":")?;
+        number_json(w, s.governing)?;
+        w.write_all(b",\"checks\":[")?;
+        for (k, (c, u)) in self.checks.iter().zip(&s.checks).enumerate() {
+            if k > 0 {
+                w.write_all(b",")?;
+            }
+            w.write_all(c.as_bytes())?;
+            number_json(w, *u)?;
+            w.write_all(b"}")?;
+        }
+        w.write_all(b"],\"shown\":[")?;
+        for (k, (r, q)) in self.shown.iter().zip(&s.shown).enumerate() {
+            if k > 0 {
+                w.write_all(b",")?;
+            }
+            w.write_all(r.as_bytes())?;
+            number_json(w, Some(q.value))?;
+            w.write_all(b"}")?;
+        }
+        w.write_all(b"]}")
     }
 
     fn end(&mut self, seek: Option<&Seek>) -> std::io::Result<()> {
