@@ -11,10 +11,51 @@ use clap::{Args, Parser, Subcommand};
 /// tandem is a design aid. Its results must be checked by a qualified
 /// engineer; local codes and licensed practice govern.
 #[derive(Debug, Parser)]
-#[command(name = "tandem", version)]
+#[command(name = "tandem", version, after_help = EXIT_CODES)]
 pub struct Cli {
+    #[command(flatten)]
+    pub global: Global,
     #[command(subcommand)]
     pub command: Command,
+}
+
+/// The exit codes, shown at the end of `--help`.
+pub const EXIT_CODES: &str = "Exit codes: 0 every check passes; 1 a check fails (or `fmt --check` \
+finds a file to format); 2 a calc file or the assembly is wrong (a syntax, name or unit error, \
+a mechanism) or a file cannot be read or written; 64 the command line itself is wrong (an \
+unknown option, a missing argument).";
+
+/// Options of every command.
+#[derive(Debug, Args)]
+pub struct Global {
+    /// When to colour diagnostics: `auto` colours on a terminal unless
+    /// NO_COLOR is set and not empty or TERM is `dumb` (CLICOLOR_FORCE set
+    /// and not `0` colours anyway).
+    #[arg(long, global = true, value_enum, default_value_t = ColorWhen::Auto, value_name = "WHEN")]
+    pub color: ColorWhen,
+    /// Errors only: no per-file `ok` lines, notes or progress on stderr.
+    #[arg(short, long, global = true)]
+    pub quiet: bool,
+    /// How diagnostics are written: `human` (drawn against the source),
+    /// `short` (one `file:line:column: error[code]: message` line each) or
+    /// `json` (one JSON object per line: severity, code, message, file,
+    /// line, column, byte span, labels, help).
+    #[arg(long, global = true, value_enum, default_value_t = MessageFormat::Human, value_name = "FORMAT")]
+    pub message_format: MessageFormat,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum ColorWhen {
+    Auto,
+    Always,
+    Never,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, clap::ValueEnum)]
+pub enum MessageFormat {
+    Human,
+    Short,
+    Json,
 }
 
 /// How results are shown.
@@ -35,20 +76,26 @@ pub enum Command {
     /// Check calc files: syntax, names and units, without solving.
     ///
     /// Prints one line per file (model kind and counts) or the problems found.
-    /// Exit code 0 when every file is sound, 2 when any has an error.
+    /// A folder is walked for `*.tandem` files (hidden folders skipped); `-`
+    /// reads standard input. Exit code 0 when every file is sound, 2 when
+    /// any has an error.
     Check {
-        /// Calc files (`.tandem`).
+        /// Calc files (`.tandem`), folders, or `-` for standard input.
         #[arg(required = true)]
         files: Vec<PathBuf>,
     },
     /// Solve a calc file: part forces, stresses, displacements and reactions
     /// in every load combination, and the design checks.
     ///
-    /// Exit code 0 when every check passes, 1 when a check fails, 2 when the
-    /// file has an error or the assembly cannot stand (a mechanism).
+    /// Several files are solved in turn (a heading before each; with
+    /// `--json`, an array of documents); a folder is walked for `*.tandem`
+    /// files; `-` reads standard input. Exit code 0 when every check
+    /// passes, 1 when a check fails, 2 when a file has an error or the
+    /// assembly cannot stand (a mechanism).
     Solve {
-        /// The calc file.
-        file: PathBuf,
+        /// Calc files (`.tandem`), folders, or `-` for standard input.
+        #[arg(required = true)]
+        files: Vec<PathBuf>,
         /// Write machine-readable JSON (SI units) instead of tables.
         #[arg(long)]
         json: bool,
@@ -63,16 +110,18 @@ pub enum Command {
     /// Write the calculation report: inputs, every equation with its numbers
     /// substituted, equilibrium and compatibility, and the design checks.
     ///
-    /// With one file and no `-o`, the Markdown goes to standard output. With
-    /// `-o FILE` it is written there; with several files, `-o DIR` writes one
-    /// report per file into that folder. Files are written atomically and an
-    /// input file is never overwritten. Exit code 0 when every check passes,
-    /// 1 when a check fails, 2 on an error.
+    /// With one file and no `-o` (or `-o -`), the Markdown goes to standard
+    /// output. With `-o FILE` it is written there; with several files or a
+    /// folder (walked for `*.tandem`), `-o DIR` writes one report per file
+    /// into that folder. `-` reads the calc from standard input. Files are
+    /// written atomically and an input file is never overwritten. Exit code
+    /// 0 when every check passes, 1 when a check fails, 2 on an error.
     Report {
-        /// Calc files (`.tandem`).
+        /// Calc files (`.tandem`), folders, or `-` for standard input.
         #[arg(required = true)]
         files: Vec<PathBuf>,
-        /// Output file (one input) or folder (several inputs).
+        /// Output file (one input; `-` for standard output) or folder
+        /// (several inputs).
         #[arg(short, long, value_name = "OUT")]
         output: Option<PathBuf>,
         /// Write a self-contained HTML page instead of Markdown.
@@ -88,14 +137,16 @@ pub enum Command {
     /// Show what a revision changed: inputs, parts and nodes added or
     /// removed, results per combination, and the checks (status flips first).
     ///
-    /// OLD may be `REV:PATH` to read it from git (`git show REV:PATH`), e.g.
-    /// `tandem diff HEAD~1:calcs/post.tandem calcs/post.tandem`. Exit code 1
-    /// when a check that passed now fails, 2 on an error.
+    /// Either side may be `REV:PATH` to read it from git, the path taken
+    /// from the current folder (as `git show REV:./PATH` takes it), e.g.
+    /// `tandem diff HEAD~1:post.tandem post.tandem` or `tandem diff
+    /// v1:post.tandem v2:post.tandem`. Exit code 1 when a check that passed
+    /// now fails, 2 on an error.
     Diff {
         /// The earlier revision (a file, or `REV:PATH`).
         old: String,
-        /// The later revision.
-        new: PathBuf,
+        /// The later revision (a file, or `REV:PATH`).
+        new: String,
         /// Smallest change of a result to list, in percent.
         #[arg(long, default_value_t = 0.1, value_name = "PERCENT")]
         min_change: f64,
@@ -182,15 +233,31 @@ pub enum Command {
     ///
     /// A file that does not parse is never written; files are replaced
     /// atomically. With `--check`, nothing is written: the files that would
-    /// change are listed and the exit code is 1 if there are any.
+    /// change are listed and the exit code is 1 if there are any. With
+    /// `--diff`, nothing is written either: a unified diff of each change
+    /// is printed (exit code 1 if there is any). `-` formats standard input
+    /// to standard output; a folder is walked for `*.tandem` files.
     Fmt {
-        /// Calc files (`.tandem`).
+        /// Calc files (`.tandem`), folders, or `-` for standard input.
         #[arg(required = true)]
         files: Vec<PathBuf>,
         /// List the files that are not formatted, and change nothing.
-        #[arg(long)]
+        #[arg(long, conflicts_with = "diff")]
         check: bool,
+        /// Print a unified diff of what would change, and change nothing.
+        #[arg(long)]
+        diff: bool,
     },
+    /// Print a completion script for a shell: bash, zsh, fish, powershell or
+    /// elvish (README "Install" gives the lines to install it).
+    Completions {
+        /// The shell.
+        #[arg(value_enum)]
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff), for `man`: `tandem manual >
+    /// ~/.local/share/man/man1/tandem.1`.
+    Manual,
     /// List the built-in functions: section helpers and published moduli,
     /// each with its source.
     Functions,

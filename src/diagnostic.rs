@@ -88,3 +88,89 @@ pub fn render(errors: &[Error], source: &Source, width: usize, color: bool) -> S
     }
     out
 }
+
+/// How diagnostics are written (`--message-format`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Format {
+    /// Drawn against the source with labels and help.
+    Human,
+    /// One line each: `file:line:column: error[code]: message`.
+    Short,
+    /// One JSON object per line, for tools that annotate a change.
+    Json,
+}
+
+/// Line and column (both from 1, the column in characters) of a byte offset.
+fn line_column(text: &str, offset: usize) -> (usize, usize) {
+    let offset = offset.min(text.len());
+    let offset = (0..=offset)
+        .rev()
+        .find(|&i| text.is_char_boundary(i))
+        .unwrap_or(0);
+    let before = &text[..offset];
+    let line = before.bytes().filter(|&b| b == b'\n').count() + 1;
+    let start = before.rfind('\n').map_or(0, |i| i + 1);
+    (line, before[start..].chars().count() + 1)
+}
+
+/// Diagnostics in `format` (see [`Format`]); [`Format::Human`] wraps at
+/// `width` columns and colours with `color`.
+#[must_use]
+pub fn write(
+    errors: &[Error],
+    source: &Source,
+    format: Format,
+    width: usize,
+    color: bool,
+) -> String {
+    use std::fmt::Write as _;
+    let mut out = String::new();
+    match format {
+        Format::Human => return render(errors, source, width, color),
+        Format::Short => {
+            for e in errors {
+                let (line, column) = e
+                    .labels()
+                    .and_then(|mut l| l.next())
+                    .map_or((1, 1), |l| line_column(&source.text, l.offset()));
+                let code = e.code().map_or(String::new(), |c| format!("[{c}]"));
+                let _ = writeln!(out, "{}:{line}:{column}: error{code}: {e}", source.name);
+            }
+        }
+        Format::Json => {
+            for e in errors {
+                let labels: Vec<serde_json::Value> = e
+                    .labels()
+                    .map(|ls| {
+                        ls.map(|l| {
+                            let (line, column) = line_column(&source.text, l.offset());
+                            serde_json::json!({
+                                "label": l.label(),
+                                "line": line,
+                                "column": column,
+                                "offset": l.offset(),
+                                "length": l.len(),
+                            })
+                        })
+                        .collect()
+                    })
+                    .unwrap_or_default();
+                let first = labels.first();
+                let at = |k: &str| first.map_or(serde_json::Value::Null, |l| l[k].clone());
+                let doc = serde_json::json!({
+                    "severity": "error",
+                    "code": e.code().map(|c| c.to_string()),
+                    "message": e.to_string(),
+                    "file": source.name,
+                    "line": at("line"),
+                    "column": at("column"),
+                    "span": first.map_or(serde_json::Value::Null, |l| serde_json::json!({"offset": l["offset"], "length": l["length"]})),
+                    "labels": labels,
+                    "help": e.help().map(|h| h.to_string()),
+                });
+                let _ = writeln!(out, "{doc}");
+            }
+        }
+    }
+    out
+}

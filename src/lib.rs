@@ -69,6 +69,75 @@ pub fn read_source_limited(path: &Path, max_bytes: u64) -> Result<Source, String
     text_of(&name, bytes).map(|text| Source::new(name, text))
 }
 
+/// The name diagnostics give a calc read from standard input.
+pub const STDIN_NAME: &str = "<stdin>";
+
+/// Read a calc from standard input (named [`STDIN_NAME`]), refusing more
+/// than [`MAX_FILE_BYTES`] and non-UTF-8 text.
+///
+/// # Errors
+/// An I/O error, or a message for an oversized or non-text input.
+pub fn read_stdin() -> Result<Source, String> {
+    use std::io::Read as _;
+    let mut bytes = Vec::new();
+    std::io::stdin()
+        .lock()
+        .take(MAX_FILE_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| format!("cannot read standard input: {e}"))?;
+    if bytes.len() as u64 > MAX_FILE_BYTES {
+        return Err(format!(
+            "standard input holds more than {MAX_FILE_BYTES} bytes; tandem reads calcs of at most {} MiB",
+            MAX_FILE_BYTES / (1024 * 1024)
+        ));
+    }
+    text_of(STDIN_NAME, bytes).map(|text| Source::new(STDIN_NAME, text))
+}
+
+/// The calc files a command is given: each file as it is, `-` (standard
+/// input) as it is, and each folder walked for `*.tandem` files in name
+/// order, hidden folders and files skipped.
+///
+/// # Errors
+/// A folder that cannot be read.
+pub fn calc_files(given: &[std::path::PathBuf]) -> Result<Vec<std::path::PathBuf>, String> {
+    fn walk(dir: &Path, out: &mut Vec<std::path::PathBuf>) -> Result<(), String> {
+        let mut entries: Vec<std::path::PathBuf> = std::fs::read_dir(dir)
+            .map_err(|e| format!("cannot read the folder {}: {e}", dir.display()))?
+            .flatten()
+            .map(|e| e.path())
+            .filter(|p| {
+                !p.file_name()
+                    .is_some_and(|n| n.to_string_lossy().starts_with('.'))
+            })
+            .collect();
+        entries.sort();
+        for p in entries {
+            // a link to a folder is not followed (no cycles)
+            let is_dir = std::fs::symlink_metadata(&p).is_ok_and(|m| m.is_dir());
+            if is_dir {
+                walk(&p, out)?;
+            } else if p.extension().is_some_and(|x| x == "tandem") {
+                out.push(p);
+            }
+        }
+        Ok(())
+    }
+    let mut out = Vec::new();
+    for p in given {
+        if p.as_os_str() != "-" && p.is_dir() {
+            let before = out.len();
+            walk(p, &mut out)?;
+            if out.len() == before {
+                return Err(format!("{} holds no `.tandem` file", p.display()));
+            }
+        } else {
+            out.push(p.clone());
+        }
+    }
+    Ok(out)
+}
+
 /// The text of a calc file's bytes: UTF-8, a leading byte-order mark
 /// dropped, no NUL byte.
 ///

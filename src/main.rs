@@ -29,6 +29,7 @@ macro_rules! errln {
     }};
 }
 
+mod progress;
 mod report_command;
 mod sample_command;
 mod sweep_command;
@@ -40,18 +41,74 @@ use std::process::ExitCode;
 use clap::Parser;
 
 use cli::{Cli, Command, Show};
-use tandem::diagnostic::render;
 use tandem::report::Display;
 use tandem::source::Source;
 
-fn color() -> bool {
-    std::io::stderr().is_terminal() && std::env::var_os("NO_COLOR").is_none()
+/// The options every command shares, set once from the command line.
+struct Settings {
+    color: bool,
+    quiet: bool,
+    format: tandem::diagnostic::Format,
+    /// Columns to draw diagnostics in.
+    width: usize,
+}
+
+static SETTINGS: std::sync::OnceLock<Settings> = std::sync::OnceLock::new();
+
+fn settings() -> &'static Settings {
+    SETTINGS.get_or_init(|| Settings {
+        color: false,
+        quiet: false,
+        format: tandem::diagnostic::Format::Human,
+        width: 100,
+    })
+}
+
+/// Whether to colour: `--color`, then CLICOLOR_FORCE (set and not `0`),
+/// NO_COLOR (set and not empty), TERM=dumb, and whether stderr is a terminal.
+fn colour_wanted(when: cli::ColorWhen) -> bool {
+    let set = |k: &str| std::env::var_os(k).filter(|v| !v.is_empty());
+    match when {
+        cli::ColorWhen::Always => true,
+        cli::ColorWhen::Never => false,
+        cli::ColorWhen::Auto => {
+            if set("CLICOLOR_FORCE").is_some_and(|v| v != "0") {
+                true
+            } else if set("NO_COLOR").is_some() || set("TERM").is_some_and(|t| t == "dumb") {
+                false
+            } else {
+                std::io::stderr().is_terminal()
+            }
+        }
+    }
+}
+
+/// The width of the terminal stderr writes to (`COLUMNS` when it is not
+/// one), within 40 to 200 columns; 100 when unknown.
+fn terminal_width() -> usize {
+    let measured = terminal_size::terminal_size_of(std::io::stderr())
+        .map(|(w, _)| usize::from(w.0))
+        .or_else(|| {
+            std::env::var("COLUMNS")
+                .ok()
+                .and_then(|c| c.trim().parse().ok())
+        });
+    measured.unwrap_or(100).clamp(40, 200)
+}
+
+/// Whether output besides results and errors is wanted (`-q` says no).
+fn chatty() -> bool {
+    !settings().quiet
 }
 
 /// Exit code 2: the input is wrong.
 fn bad() -> ExitCode {
     ExitCode::from(2)
 }
+
+/// Exit code of a wrong command line (an unknown option): EX_USAGE of
+/// sysexits.h, apart from a wrong calc file's 2.
+const USAGE: u8 = 64;
 
 #[cfg(all(feature = "jemalloc", not(target_env = "msvc")))]
 #[global_allocator]
@@ -63,15 +120,37 @@ fn main() -> ExitCode {
         tandem::output::remove_pending();
         std::process::exit(130);
     });
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(c) => c,
+        Err(e) => {
+            // help and version are answers, not errors
+            let usage = e.use_stderr();
+            let _ = e.print();
+            return if usage {
+                ExitCode::from(USAGE)
+            } else {
+                ExitCode::SUCCESS
+            };
+        }
+    };
+    let _ = SETTINGS.set(Settings {
+        color: colour_wanted(cli.global.color),
+        quiet: cli.global.quiet,
+        format: match cli.global.message_format {
+            cli::MessageFormat::Human => tandem::diagnostic::Format::Human,
+            cli::MessageFormat::Short => tandem::diagnostic::Format::Short,
+            cli::MessageFormat::Json => tandem::diagnostic::Format::Json,
+        },
+        width: terminal_width(),
+    });
     match cli.command {
         Command::Check { files } => check(&files),
         Command::Solve {
-            file,
+            files,
             json,
             csv,
             show,
-        } => solve(&file, json, csv.as_deref(), &show),
+        } => solve(&files, json, csv.as_deref(), &show),
         Command::Report {
             files,
             output,
@@ -79,7 +158,7 @@ fn main() -> ExitCode {
             csv,
             show,
         } => report_command::report(&files, output.as_deref(), html, csv.as_deref(), &show),
-        Command::Fmt { files, check } => fmt(&files, check),
+        Command::Fmt { files, check, diff } => fmt(&files, check, diff),
         Command::Sweep {
             file,
             vary,
@@ -123,6 +202,24 @@ fn main() -> ExitCode {
             json,
             show,
         } => diff(&old, &new, min_change, json, &show),
+        Command::Completions { shell } => {
+            use clap::CommandFactory as _;
+            let mut cmd = Cli::command();
+            let mut buf = Vec::new();
+            clap_complete::generate(shell, &mut cmd, "tandem", &mut buf);
+            out!("{}", String::from_utf8_lossy(&buf));
+            ExitCode::SUCCESS
+        }
+        Command::Manual => {
+            use clap::CommandFactory as _;
+            let mut buf = Vec::new();
+            if let Err(e) = clap_mangen::Man::new(Cli::command()).render(&mut buf) {
+                errln!("error: {e}");
+                return bad();
+            }
+            out!("{}", String::from_utf8_lossy(&buf));
+            ExitCode::SUCCESS
+        }
         Command::Functions => {
             out!("{}", tandem::model::functions::listing());
             ExitCode::SUCCESS
@@ -135,7 +232,12 @@ fn main() -> ExitCode {
 }
 
 fn read(path: &Path) -> Option<Source> {
-    match tandem::read_source(path) {
+    let read = if path.as_os_str() == "-" {
+        tandem::read_stdin()
+    } else {
+        tandem::read_source(path)
+    };
+    match read {
         Ok(s) => Some(s),
         Err(msg) => {
             errln!("error: {msg}");
@@ -145,30 +247,74 @@ fn read(path: &Path) -> Option<Source> {
 }
 
 fn report_errors(errors: &[tandem::Error], source: &Source) {
-    err!("{}", render(errors, source, 100, color()));
-    errln!(
-        "{}: {} error{}",
-        source.name,
-        errors.len(),
-        if errors.len() == 1 { "" } else { "s" }
+    let s = settings();
+    err!(
+        "{}",
+        tandem::diagnostic::write(errors, source, s.format, s.width, s.color)
     );
+    if s.format == tandem::diagnostic::Format::Human {
+        errln!(
+            "{}: {} error{}",
+            source.name,
+            errors.len(),
+            if errors.len() == 1 { "" } else { "s" }
+        );
+    }
+}
+
+/// The calc files a batch command is given, folders walked (see
+/// [`tandem::calc_files`]); `None` (the error on stderr) when a folder
+/// cannot be read.
+fn inputs(files: &[PathBuf]) -> Option<Vec<PathBuf>> {
+    match tandem::calc_files(files) {
+        Ok(f) => Some(f),
+        Err(msg) => {
+            errln!("error: {msg}");
+            None
+        }
+    }
+}
+
+/// In a batch, the line on stderr that names a file that failed and why.
+fn failed_in_batch(batch: bool, path: &Path, why: &str) {
+    if batch {
+        errln!("failed: {}: {why}", path.display());
+    }
+}
+
+/// How many errors, in words.
+fn errors_word(n: usize) -> String {
+    format!("{n} error{}", if n == 1 { "" } else { "s" })
 }
 
 fn check(files: &[PathBuf]) -> ExitCode {
+    let Some(files) = inputs(files) else {
+        return bad();
+    };
+    let batch = files.len() > 1;
     let mut failed = false;
-    for path in files {
+    let bar = progress::Progress::new(files.len() as u64, "check");
+    for (k, path) in files.iter().enumerate() {
+        bar.at(k);
         let Some(source) = read(path) else {
+            failed_in_batch(batch, path, "cannot be read");
             failed = true;
             continue;
         };
         match tandem::check(&source) {
-            Ok(model) => outln!("{}: ok, {}", source.name, tandem::model::summary(&model)),
+            Ok(model) => {
+                if chatty() {
+                    outln!("{}: ok, {}", source.name, tandem::model::summary(&model));
+                }
+            }
             Err(errors) => {
                 report_errors(&errors, &source);
+                failed_in_batch(batch, path, &errors_word(errors.len()));
                 failed = true;
             }
         }
     }
+    bar.done();
     if failed {
         bad()
     } else {
@@ -215,19 +361,58 @@ fn write_csv(dir: &Path, a: &tandem::Analysis, show: &Show, inputs: &[PathBuf]) 
     ok
 }
 
-fn solve(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
-    let Some(source) = read(path) else {
+fn solve(files: &[PathBuf], json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
+    let Some(files) = inputs(files) else {
         return bad();
     };
-    let Some((mut a, incomplete)) = analyse_shown(&source) else {
+    let batch = files.len() > 1;
+    if csv.is_some() && batch {
+        errln!("error: `--csv DIR` takes one calc file; `tandem report FILES --csv DIR` writes one folder per file");
         return bad();
+    }
+    let mut worst = 0u8;
+    if json && batch {
+        outln!("[");
+    }
+    for (k, path) in files.iter().enumerate() {
+        if batch && !json {
+            outln!(
+                "{}== {} ==\n",
+                if k > 0 { "\n" } else { "" },
+                path.display()
+            );
+        }
+        if json && k > 0 {
+            outln!(",");
+        }
+        let code = solve_one(path, json, csv, show);
+        match code {
+            2 => failed_in_batch(batch, path, "an error (above)"),
+            1 => failed_in_batch(batch, path, "a check fails"),
+            _ => {}
+        }
+        worst = worst.max(code);
+    }
+    if json && batch {
+        outln!("]");
+    }
+    ExitCode::from(worst)
+}
+
+/// One calc solved and shown: its exit code (0, 1 or 2).
+fn solve_one(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> u8 {
+    let Some(source) = read(path) else {
+        return 2;
+    };
+    let Some((mut a, incomplete)) = analyse_shown(&source) else {
+        return 2;
     };
     if json {
         tandem::with_sensitivity(&source, &mut a);
     }
     if let Some(dir) = csv {
         if !write_csv(dir, &a, show, &[path.to_path_buf()]) {
-            return bad();
+            return 2;
         }
     }
     if json {
@@ -244,7 +429,7 @@ fn solve(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
             Err(e) if e.is_io() => {}
             Err(e) => {
                 errln!("error: {e}");
-                return bad();
+                return 2;
             }
         }
     } else {
@@ -252,17 +437,15 @@ fn solve(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> ExitCode {
             Ok(d) => d,
             Err(msg) => {
                 errln!("error: {msg}");
-                return bad();
+                return 2;
             }
         };
         out!("{}", tandem::report::text::solve_text(&a, &d));
     }
     if incomplete {
-        bad()
-    } else if a.failures() > 0 {
-        ExitCode::from(1)
+        2
     } else {
-        ExitCode::SUCCESS
+        u8::from(a.failures() > 0)
     }
 }
 
@@ -278,37 +461,52 @@ fn analyse_shown(source: &Source) -> Option<(tandem::Analysis, bool)> {
     a.map(|a| (a, !errors.is_empty()))
 }
 
-fn fmt(files: &[PathBuf], check: bool) -> ExitCode {
+fn fmt(files: &[PathBuf], check: bool, diff: bool) -> ExitCode {
+    let Some(files) = inputs(files) else {
+        return bad();
+    };
+    let batch = files.len() > 1;
     let mut code = ExitCode::SUCCESS;
     let mut unformatted = false;
-    for path in files {
+    for path in &files {
         let Some(source) = read(path) else {
+            failed_in_batch(batch, path, "cannot be read");
             code = bad();
             continue;
         };
+        let stdin = path.as_os_str() == "-";
         match tandem::review::fmt::format(&source) {
+            // standard input is written back out whole, changed or not
+            Ok(text) if stdin && !check && !diff => out!("{text}"),
             Ok(text) if text == source.text => {}
             Ok(text) => {
-                if check {
+                unformatted = true;
+                if diff {
+                    out!(
+                        "{}",
+                        tandem::review::fmt::unified_diff(&source.name, &source.text, &text)
+                    );
+                } else if check {
                     outln!("{}", source.name);
-                    unformatted = true;
                 } else if let Err(e) = tandem::output::replace_if_unchanged(
                     path,
                     source.text.as_bytes(),
                     text.as_bytes(),
                 ) {
                     errln!("error: cannot write {}: {e}", path.display());
+                    failed_in_batch(batch, path, "cannot be written");
                     code = bad();
                 }
             }
             Err(errors) => {
                 let errors: Vec<tandem::Error> = errors.into_iter().map(Into::into).collect();
                 report_errors(&errors, &source);
+                failed_in_batch(batch, path, &errors_word(errors.len()));
                 code = bad();
             }
         }
     }
-    if code == ExitCode::SUCCESS && unformatted {
+    if code == ExitCode::SUCCESS && unformatted && (check || diff) {
         ExitCode::from(1)
     } else {
         code
@@ -327,6 +525,15 @@ fn read_revision(spec: &str) -> Option<Source> {
     if rev.is_empty() || file.is_empty() {
         return read(path);
     }
+    // the path is taken from the current folder, as `git show REV:./PATH`
+    // takes it (git's own `REV:PATH` starts at the repository's top)
+    let relative = if file.starts_with("./") || file.starts_with("../") {
+        spec.to_string()
+    } else {
+        format!("{rev}:./{file}")
+    };
+    let given = spec;
+    let spec = relative.as_str();
     // User text never reaches git as an option: `--end-of-options` first.
     // The object must be a file (a blob) within the size limit.
     let git = |args: &[&str]| {
@@ -370,7 +577,7 @@ fn read_revision(spec: &str) -> Option<Source> {
     }
     match git(&["cat-file", "blob"]) {
         Ok(out) if out.status.success() => match String::from_utf8(out.stdout) {
-            Ok(text) => Some(Source::new(spec, text)),
+            Ok(text) => Some(Source::new(given, text)),
             Err(_) => {
                 errln!("error: {spec} is not UTF-8 text");
                 None
@@ -390,8 +597,8 @@ fn read_revision(spec: &str) -> Option<Source> {
     }
 }
 
-fn diff(old: &str, new: &Path, min_change: f64, json: bool, show: &Show) -> ExitCode {
-    let (Some(old_src), Some(new_src)) = (read_revision(old), read(new)) else {
+fn diff(old: &str, new: &str, min_change: f64, json: bool, show: &Show) -> ExitCode {
+    let (Some(old_src), Some(new_src)) = (read_revision(old), read_revision(new)) else {
         return bad();
     };
     let analyse = |s: &Source| match tandem::analyse(s) {

@@ -54,7 +54,12 @@ fn render_report(
     };
     let options = Options {
         figures,
-        history: tandem::history::of(path),
+        // a calc from standard input has no file in a repository
+        history: if path.as_os_str() == "-" {
+            None
+        } else {
+            tandem::history::of(path)
+        },
     };
     let written = report_with(&source, &a, &d, &options);
     let (text, drawings) = if html {
@@ -86,6 +91,17 @@ pub(crate) fn report(
     show: &Show,
 ) -> ExitCode {
     let ext = if html { "html" } else { "md" };
+    let Some(files) = crate::inputs(files) else {
+        return bad();
+    };
+    let files = files.as_slice();
+    if files.iter().filter(|f| f.as_os_str() == "-").count() > 1 {
+        errln!("error: `-` (standard input) can be given once");
+        return bad();
+    }
+    let batch = files.len() > 1;
+    // `-o -`: standard output
+    let output = output.filter(|o| o.as_os_str() != "-");
     // Where each report goes.
     let targets: Vec<Option<PathBuf>> = match output {
         None if files.len() == 1 => vec![None],
@@ -160,16 +176,25 @@ pub(crate) fn report(
         .zip(csv_dirs.iter().map(Option::as_deref))
         .map(|((f, t), c)| (f, t, c))
         .collect();
-    let results: Vec<Result<Rendered, ExitCode>> =
-        tandem::parallel::map(&jobs, |(f, t, c)| render_report(f, *t, html, *c, show));
+    let bar = crate::progress::Progress::new(jobs.len() as u64, "report");
+    let finished = std::sync::atomic::AtomicUsize::new(0);
+    let results: Vec<Result<Rendered, ExitCode>> = tandem::parallel::map(&jobs, |(f, t, c)| {
+        let r = render_report(f, *t, html, *c, show);
+        bar.at(finished.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
+        r
+    });
+    bar.done();
     let mut code = ExitCode::SUCCESS;
     let mut failed_check = false;
-    for (result, target) in results.into_iter().zip(&targets) {
+    for ((result, target), path) in results.into_iter().zip(&targets).zip(files) {
         match result {
             Ok(r) => {
                 failed_check |= r.fails;
                 if r.incomplete {
+                    crate::failed_in_batch(batch, path, "a combination cannot be solved (above)");
                     code = bad();
+                } else if r.fails {
+                    crate::failed_in_batch(batch, path, "a check fails");
                 }
                 match target {
                     None => out!("{}", r.text),
@@ -192,7 +217,10 @@ pub(crate) fn report(
                     }
                 }
             }
-            Err(c) => code = c,
+            Err(c) => {
+                crate::failed_in_batch(batch, path, "an error (above)");
+                code = c;
+            }
         }
     }
     if code == ExitCode::SUCCESS && failed_check {

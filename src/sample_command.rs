@@ -1,6 +1,5 @@
 //! The `sample` command: Monte Carlo over named `let`s, its table and JSON.
 
-use std::io::IsTerminal;
 use std::path::Path;
 use std::process::ExitCode;
 
@@ -45,16 +44,10 @@ pub(crate) fn sample(args: &Args<'_>) -> ExitCode {
         }
         Err(Err(msg)) => return fail(msg),
     };
-    let terminal = std::io::stderr().is_terminal();
-    let progress = |done: usize| {
-        if terminal {
-            err!("\rsampled {done} of {}", args.samples);
-        }
-    };
+    let bar = crate::progress::Progress::new(args.samples as u64, "sample");
+    let progress = |done: usize| bar.at(done);
     let summary = sampler.run(args.samples, args.seed, &progress);
-    if terminal {
-        errln!();
-    }
+    bar.done();
     if args.json {
         match serde_json::to_string_pretty(&to_json(&summary)) {
             Ok(s) => outln!("{s}"),

@@ -1,7 +1,6 @@
 //! The `sweep` command: one parameter or a grid of two, streamed to a
 //! table, JSON or a chart.
 
-use std::io::IsTerminal;
 use std::path::Path;
 use std::process::ExitCode;
 
@@ -166,13 +165,8 @@ pub(crate) fn sweep(args: &Args<'_>) -> ExitCode {
         Ok(d) => d,
         Err(msg) => return fail(msg),
     };
-    // progress on stderr when it is a terminal and the sweep is long
-    let terminal = std::io::stderr().is_terminal() && total >= 1024;
-    let progress = |done: usize| {
-        if terminal {
-            err!("\rswept {done} of {total} steps");
-        }
-    };
+    let bar = crate::progress::Progress::new(total as u64, "sweep");
+    let progress = |done: usize| bar.at(done);
     let stdout = std::io::BufWriter::new(std::io::stdout().lock());
     let mut plot = PlotSink::new(&d);
     let mut json;
@@ -189,9 +183,7 @@ pub(crate) fn sweep(args: &Args<'_>) -> ExitCode {
         sinks.0.push(&mut plot);
     }
     let swept = sweeper.run(&axes, args.seek.then_some(1e-6), &mut sinks, &progress);
-    if terminal {
-        errln!();
-    }
+    bar.done();
     if let Err((values, errors)) = swept {
         let at: Vec<String> = axes
             .iter()

@@ -92,3 +92,10 @@ pub fn number(v: f64, digits: usize) -> String {
 
 /// At most this many diagnostics are drawn; the count of the rest follows.
 pub const MAX_SHOWN: usize = 50;
+
+/// The columns a text takes in a terminal or a monospaced table: a CJK
+/// character two, a combining mark none (Unicode's East Asian Width).
+#[must_use]
+pub fn width(s: &str) -> usize {
+    unicode_width::UnicodeWidthStr::width(s)
+}

@@ -24,7 +24,7 @@ pub fn widen<S: AsRef<str>>(width: &mut Vec<usize>, row: &[S]) {
         width.resize(row.len(), 0);
     }
     for (w, c) in width.iter_mut().zip(row) {
-        *w = (*w).max(c.as_ref().chars().count());
+        *w = (*w).max(crate::words::width(c.as_ref()));
     }
 }
 
@@ -44,7 +44,7 @@ pub fn aligned_row<S: AsRef<str>>(
             .get(i)
             .copied()
             .unwrap_or(0)
-            .saturating_sub(c.chars().count());
+            .saturating_sub(crate::words::width(c));
         if left.contains(&i) {
             out.push_str(c);
             out.extend(std::iter::repeat_n(' ', pad));

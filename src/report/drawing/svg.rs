@@ -214,7 +214,7 @@ impl Svg {
     /// Text; `anchor` is `start`, `middle` or `end`.
     pub fn text(&mut self, at: P, anchor: &str, s: &str, bold: bool) {
         let weight = if bold { " font-weight=\"bold\"" } else { "" };
-        let w = s.chars().count() as f64 * CHAR_WIDTH;
+        let w = crate::words::width(s) as f64 * CHAR_WIDTH;
         let (lo, hi) = match anchor {
             "end" => (at.x - w, at.x),
             "middle" => (at.x - w / 2.0, at.x + w / 2.0),

@@ -444,7 +444,7 @@ fn align(lines: &mut [Line]) {
                 lines
                     .iter()
                     .filter(|l| k + 1 < l.cells.len())
-                    .map(|l| l.cells[k].chars().count() + 1)
+                    .map(|l| crate::words::width(&l.cells[k]) + 1)
                     .max()
                     .unwrap_or(0)
             })
@@ -455,7 +455,7 @@ fn align(lines: &mut [Line]) {
             for (k, c) in l.cells.iter().enumerate() {
                 if k < last {
                     let cell = format!("{c};");
-                    let pad = widths[k] - cell.chars().count();
+                    let pad = widths[k] - crate::words::width(&cell);
                     right.push_str(&cell);
                     right.push_str(&" ".repeat(pad + 1));
                 } else {
@@ -470,23 +470,23 @@ fn align(lines: &mut [Line]) {
     let width = lines
         .iter()
         .filter(|l| !l.right.is_empty())
-        .map(|l| l.left.chars().count())
+        .map(|l| crate::words::width(&l.left))
         .max()
         .unwrap_or(0);
     let mut code_width = 0;
     for l in lines.iter_mut() {
         if !l.right.is_empty() {
-            let pad = width - l.left.chars().count();
+            let pad = width - crate::words::width(&l.left);
             l.left = format!("{}{} {}", l.left, " ".repeat(pad), l.right);
             l.right.clear();
         }
         if l.comment.is_some() {
-            code_width = code_width.max(l.indent + l.left.chars().count());
+            code_width = code_width.max(l.indent + crate::words::width(&l.left));
         }
     }
     for l in lines.iter_mut() {
         if let Some(c) = &l.comment {
-            let pad = code_width - l.indent - l.left.chars().count();
+            let pad = code_width - l.indent - crate::words::width(&l.left);
             l.left = format!("{}{}  {c}", l.left, " ".repeat(pad));
             l.comment = None;
         }
@@ -600,4 +600,15 @@ pub fn format(source: &Source) -> Result<String, Vec<SyntaxError>> {
         }
     }
     Ok(out)
+}
+
+/// What formatting changes, as a unified diff (three lines of context)
+/// from `name` as it is to `name` formatted.
+#[must_use]
+pub fn unified_diff(name: &str, before: &str, after: &str) -> String {
+    similar::TextDiff::from_lines(before, after)
+        .unified_diff()
+        .context_radius(3)
+        .header(name, &format!("{name} (formatted)"))
+        .to_string()
 }
