@@ -7,6 +7,7 @@ mod checks;
 mod cli;
 mod closed_form;
 mod common;
+mod conventions;
 mod csv;
 mod diagnostics;
 mod diff;
