@@ -368,3 +368,24 @@ fn diff_reads_both_sides_from_git_relative_to_the_current_folder() {
         text(&out.stderr)
     );
 }
+
+/// README's own calc ("A calc file") is in the canonical layout and checks.
+#[test]
+fn the_readme_calc_is_canonical_and_sound() {
+    let readme =
+        std::fs::read_to_string(std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("README.md"))
+            .expect("README");
+    let after = readme
+        .split_once("## A calc file")
+        .map(|(_, r)| r)
+        .expect("the section");
+    let calc = after
+        .split_once("```\n")
+        .and_then(|(_, r)| r.split_once("```\n"))
+        .map(|(c, _)| c)
+        .expect("a fenced calc");
+    let out = run(&["fmt", "--check", "-"], Some(calc));
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stdout));
+    let out = run(&["check", "-"], Some(calc));
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+}

@@ -13,6 +13,7 @@ mod diagnostics;
 mod diff;
 mod drawings;
 mod fmt;
+mod gate;
 mod language;
 mod large;
 mod limits;
