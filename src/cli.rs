@@ -255,6 +255,10 @@ pub enum Command {
         #[arg(value_enum)]
         shell: clap_complete::Shell,
     },
+    /// Run the language server on standard input and output (for editors:
+    /// diagnostics as you type, hover, go to definition, references,
+    /// completion, formatting, document symbols).
+    Lsp,
     /// Print the manual page (roff), for `man`: `tandem manual >
     /// ~/.local/share/man/man1/tandem.1`.
     Manual,

@@ -14,6 +14,7 @@ extern crate alloc;
 pub mod checks;
 pub mod diagnostic;
 pub mod history;
+pub mod lsp;
 pub mod model;
 pub mod output;
 pub mod parallel;

@@ -210,6 +210,13 @@ fn main() -> ExitCode {
             out!("{}", String::from_utf8_lossy(&buf));
             ExitCode::SUCCESS
         }
+        Command::Lsp => match tandem::lsp::serve() {
+            Ok(()) => ExitCode::SUCCESS,
+            Err(msg) => {
+                errln!("error: the language server stopped: {msg}");
+                bad()
+            }
+        },
         Command::Manual => {
             use clap::CommandFactory as _;
             let mut buf = Vec::new();

@@ -10,7 +10,7 @@ pub mod functions;
 pub mod range;
 pub mod results;
 
-pub use build::{build, build_with, reaches, solver_depends_on, Limits, Rebuild};
+pub use build::{block_keys, build, build_with, reaches, solver_depends_on, Limits, Rebuild};
 pub use error::ModelError;
 
 use uom::si::f64::{

@@ -17,6 +17,7 @@ mod gate;
 mod language;
 mod large;
 mod limits;
+mod lsp;
 mod mutation;
 mod oracle;
 mod output;

@@ -4,6 +4,18 @@
 
 use super::*;
 
+/// The keys of a `material` block.
+pub(crate) const MATERIAL_KEYS: &[&str] = &[
+    "E",
+    "alpha",
+    "yield",
+    "yield_compression",
+    "allowable",
+    "allowable_tension",
+    "allowable_compression",
+    "creep",
+];
+
 impl Builder {
     /// The title block, the materials and the `units` declaration.
     pub(super) fn title_materials_units(
@@ -93,18 +105,8 @@ impl Builder {
     }
 
     pub(super) fn material(&mut self, nb: &ast::NamedBlock, scope: &dyn Scope) -> Option<Material> {
-        const KEYS: &[&str] = &[
-            "E",
-            "alpha",
-            "yield",
-            "yield_compression",
-            "allowable",
-            "allowable_tension",
-            "allowable_compression",
-            "creep",
-        ];
         let what = What::named("material", &nb.name.name);
-        let f = Fields::new(&nb.block, what, KEYS, &mut self.errors);
+        let f = Fields::new(&nb.block, what, MATERIAL_KEYS, &mut self.errors);
         let e = self.opt(f.quantity("E", Dimension::PRESSURE, scope));
         if !f.has("E") {
             self.errors.push(f.missing("E"));
@@ -178,7 +180,7 @@ impl Builder {
         }
         // keys derived from other names, for the report's substitution
         let mut derived = Vec::new();
-        for key in KEYS.iter().filter(|_| !self.numbers_only) {
+        for key in MATERIAL_KEYS.iter().filter(|_| !self.numbers_only) {
             if let Some(Ok(e)) = f.expr(key) {
                 let mut named = false;
                 e.visit(&mut |x| named |= matches!(x.kind, ExprKind::Name(_)));

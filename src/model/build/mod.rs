@@ -47,6 +47,20 @@ use names::{NameKind, Names};
 pub use lets::{reaches, solver_depends_on};
 pub use rebuild::Rebuild;
 
+/// The keys a block of a declaration may hold (`material`, `part`, `beam`,
+/// `rigid`, `calc`): what an editor offers to complete.
+#[must_use]
+pub fn block_keys(declaration: &str) -> &'static [&'static str] {
+    match declaration {
+        "material" => material::MATERIAL_KEYS,
+        "part" => part::PART_KEYS,
+        "beam" => part::BEAM_KEYS,
+        "rigid" => node::RIGID_KEYS,
+        "calc" => Title::KEYS,
+        _ => &[],
+    }
+}
+
 #[derive(Clone, Copy, Debug)]
 pub struct Limits {
     pub max_declarations: usize,

@@ -4,6 +4,9 @@
 
 use super::*;
 
+/// The keys of a `rigid` block.
+pub(crate) const RIGID_KEYS: &[&str] = &["nodes"];
+
 impl Builder {
     /// Every node. The first fixes the kind of model (axial or plane),
     /// which the rest must share; `None` when there is none.
@@ -108,7 +111,7 @@ impl Builder {
             match d {
                 Decl::Rigid(nb) => {
                     let what = What::named("rigid body", &nb.name.name);
-                    let f = Fields::new(&nb.block, what, &["nodes"], &mut self.errors);
+                    let f = Fields::new(&nb.block, what, RIGID_KEYS, &mut self.errors);
                     let Some(list) = self.opt(f.names("nodes")) else {
                         if !f.has("nodes") {
                             self.errors.push(f.missing("nodes"));

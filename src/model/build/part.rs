@@ -14,6 +14,40 @@ struct PartLimits {
     euler_fraction: f64,
 }
 
+/// The keys of a `part` block.
+pub(crate) const PART_KEYS: &[&str] = &[
+    "ends",
+    "material",
+    "area",
+    "section",
+    "inertia",
+    "stiffness",
+    "misfit",
+    "carries",
+    "slack",
+    "buckling_length",
+    "buckling_factor",
+    "slenderness_limit",
+    "euler_fraction",
+];
+
+/// The keys of a `beam` block.
+pub(crate) const BEAM_KEYS: &[&str] = &[
+    "ends",
+    "material",
+    "area",
+    "section",
+    "inertia",
+    "depth",
+    "bending",
+    "hinge",
+    "misfit",
+    "buckling_length",
+    "buckling_factor",
+    "slenderness_limit",
+    "euler_fraction",
+];
+
 impl Builder {
     /// Every part: a part needs only the names, materials and nodes.
     pub(super) fn parts(
@@ -74,36 +108,6 @@ impl Builder {
         nodes: &[Node],
         kind: Kind,
     ) -> Option<Part> {
-        const KEYS: &[&str] = &[
-            "ends",
-            "material",
-            "area",
-            "section",
-            "inertia",
-            "stiffness",
-            "misfit",
-            "carries",
-            "slack",
-            "buckling_length",
-            "buckling_factor",
-            "slenderness_limit",
-            "euler_fraction",
-        ];
-        const BEAM_KEYS: &[&str] = &[
-            "ends",
-            "material",
-            "area",
-            "section",
-            "inertia",
-            "depth",
-            "bending",
-            "hinge",
-            "misfit",
-            "buckling_length",
-            "buckling_factor",
-            "slenderness_limit",
-            "euler_fraction",
-        ];
         let (materials, material_at) = materials;
         let pname = &nb.name.name;
         let what = What::named(if beam { "beam" } else { "part" }, pname);
@@ -117,7 +121,7 @@ impl Builder {
         let f = Fields::new(
             &nb.block,
             what,
-            if beam { BEAM_KEYS } else { KEYS },
+            if beam { BEAM_KEYS } else { PART_KEYS },
             &mut self.errors,
         );
         let before = self.errors.len();
