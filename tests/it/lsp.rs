@@ -349,3 +349,33 @@ fn the_language_server_answers_an_editor() {
     let status = c.child.wait().expect("exit");
     assert!(status.success());
 }
+
+/// A real client: headless Neovim (Debian's package) attaches the server to
+/// a calc with an error and reads back the diagnostic and a hover
+/// (editors/nvim/check.sh). Skipped with a notice when `nvim` is absent.
+#[test]
+fn neovim_reads_back_the_diagnostics() {
+    if Command::new("nvim").arg("--version").output().is_err() {
+        eprintln!("skipped: nvim is not installed (.ci/run installs Debian's neovim)");
+        return;
+    }
+    let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
+    let out = Command::new("bash")
+        .arg(root.join("editors/nvim/check.sh"))
+        .arg("")
+        .arg(env!("CARGO_BIN_EXE_tandem"))
+        .output()
+        .expect("run the script");
+    let text = String::from_utf8_lossy(&out.stdout);
+    assert!(
+        out.status.success(),
+        "{text}{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    assert!(
+        text.contains("diagnostic 36:14 unknown material `fil`"),
+        "{text}"
+    );
+    assert!(text.contains("did you mean `fill`?"), "{text}");
+    assert!(text.contains("hover") && text.contains("let fc"), "{text}");
+}
