@@ -359,6 +359,59 @@ pub struct UnitFactor {
     pub span: Span,
 }
 
+impl Decl {
+    /// Every expression the declaration writes (not those inside them), in
+    /// order: what a walk over a file's names and units visits.
+    pub fn exprs<'e>(&'e self, out: &mut Vec<&'e Expr>) {
+        let block = |b: &'e Block, out: &mut Vec<&'e Expr>| {
+            for e in &b.entries {
+                if let Value::Exprs(list) = &e.value {
+                    out.extend(list.iter());
+                }
+            }
+        };
+        let coord = |c: &'e Coord, out: &mut Vec<&'e Expr>| match c {
+            Coord::Axial(e) => out.push(e),
+            Coord::Plane(xy, _) => {
+                let [x, y] = &**xy;
+                out.push(x);
+                out.push(y);
+            }
+        };
+        let stmt = |s: &'e Stmt, out: &mut Vec<&'e Expr>| match s {
+            Stmt::Load { force, .. } => coord(force, out),
+            Stmt::Temperature { change, .. } => out.push(change),
+            Stmt::Moment { value, .. } | Stmt::Strain { value, .. } => out.push(value),
+            Stmt::Settle { movement, .. } => out.push(movement),
+        };
+        match self {
+            Decl::Calc(b) => block(b, out),
+            Decl::Material(nb) | Decl::Part(nb) | Decl::Beam(nb) | Decl::Rigid(nb) => {
+                block(&nb.block, out);
+            }
+            Decl::Let(l) => out.push(&l.value),
+            Decl::Node(n) => coord(&n.at, out),
+            Decl::Case(c) => {
+                for s in &c.stmts {
+                    stmt(s, out);
+                }
+            }
+            Decl::Stmt(s) => stmt(s, out),
+            Decl::Check(c) => {
+                out.push(&c.lhs);
+                out.push(&c.rhs);
+            }
+            // no expressions of their own
+            Decl::Fix(_)
+            | Decl::Pin(..)
+            | Decl::Tie(_)
+            | Decl::Combine(_)
+            | Decl::Units(_)
+            | Decl::Group(_) => {}
+        }
+    }
+}
+
 impl Expr {
     /// Visit this expression and every expression inside it, outer first.
     /// Depth is bounded by the parser's nesting limits, and sums and

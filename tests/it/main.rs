@@ -14,6 +14,7 @@ mod diff;
 mod drawings;
 mod fmt;
 mod gate;
+mod grammar;
 mod language;
 mod large;
 mod limits;
