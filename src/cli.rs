@@ -59,7 +59,7 @@ pub enum MessageFormat {
 }
 
 /// How results are shown.
-#[derive(Debug, Args)]
+#[derive(Clone, Debug, Args)]
 pub struct Show {
     /// Units to show results in: `us`, `si`, or a list such as `kip,in,ksi`
     /// (one per dimension). Default: the file's `units` line, else the units
@@ -254,6 +254,18 @@ pub enum Command {
         /// The shell.
         #[arg(value_enum)]
         shell: clap_complete::Shell,
+    },
+    /// Serve the HTML report of a calc on 127.0.0.1 and make it again on
+    /// every save: the page reloads itself, and shows the diagnostics when
+    /// the file has errors. Ctrl-C stops it.
+    Watch {
+        /// The calc file.
+        file: PathBuf,
+        /// The port (on 127.0.0.1 only); 0 picks a free one.
+        #[arg(long, default_value_t = 8421)]
+        port: u16,
+        #[command(flatten)]
+        show: Show,
     },
     /// Run the language server on standard input and output (for editors:
     /// diagnostics as you type, hover, go to definition, references,

@@ -33,6 +33,7 @@ mod progress;
 mod report_command;
 mod sample_command;
 mod sweep_command;
+mod watch_command;
 
 use std::io::IsTerminal;
 use std::path::{Path, PathBuf};
@@ -210,6 +211,7 @@ fn main() -> ExitCode {
             out!("{}", String::from_utf8_lossy(&buf));
             ExitCode::SUCCESS
         }
+        Command::Watch { file, port, show } => watch_command::watch(&file, port, &show),
         Command::Lsp => match tandem::lsp::serve() {
             Ok(()) => ExitCode::SUCCESS,
             Err(msg) => {

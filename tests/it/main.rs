@@ -33,3 +33,4 @@ mod sweep;
 mod trace;
 mod trust;
 mod units;
+mod watch;
