@@ -56,6 +56,10 @@ struct Settings {
 
 static SETTINGS: std::sync::OnceLock<Settings> = std::sync::OnceLock::new();
 
+/// Set while a batch of reports renders in parallel: its bar counts the
+/// files, and no calc shows a spinner of its own.
+static IN_BATCH: std::sync::atomic::AtomicBool = std::sync::atomic::AtomicBool::new(false);
+
 fn settings() -> &'static Settings {
     SETTINGS.get_or_init(|| Settings {
         color: false,
@@ -463,7 +467,13 @@ fn solve_one(path: &Path, json: bool, csv: Option<&Path>, show: &Show) -> u8 {
 /// nothing to show (`None`). A combination that fails leaves the others
 /// shown, and the calc still fails (exit 2).
 fn analyse_shown(source: &Source) -> Option<(tandem::Analysis, bool)> {
-    let (a, errors) = tandem::analyse_partial(source);
+    let (a, errors) = {
+        // a large calc takes seconds: a spinner after the first (a batch
+        // shows its own bar instead)
+        let _spinner = (!IN_BATCH.load(std::sync::atomic::Ordering::Relaxed))
+            .then(|| progress::Spinner::new(&format!("analysing {}", source.name)));
+        tandem::analyse_partial(source)
+    };
     if !errors.is_empty() {
         report_errors(&errors, source);
     }

@@ -177,6 +177,7 @@ pub(crate) fn report(
         .map(|((f, t), c)| (f, t, c))
         .collect();
     let bar = crate::progress::Progress::new(jobs.len() as u64, "report");
+    crate::IN_BATCH.store(jobs.len() > 1, std::sync::atomic::Ordering::Relaxed);
     let finished = std::sync::atomic::AtomicUsize::new(0);
     let results: Vec<Result<Rendered, ExitCode>> = tandem::parallel::map(&jobs, |(f, t, c)| {
         let r = render_report(f, *t, html, *c, show);

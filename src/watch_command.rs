@@ -20,8 +20,14 @@ struct Page {
 
 type Shared = Arc<(Mutex<Page>, Condvar)>;
 
-/// The script that reloads the page when the server says a new one is made.
-const RELOAD: &str = "<script>(function(){var v=null;var s=new EventSource('/events');s.onmessage=function(e){if(v!==null&&e.data!==v){location.reload();}v=e.data;};})();</script>";
+/// The script that reloads the page when the server's version is not the
+/// one the page was made from (a save between the page and its listener
+/// connecting is not missed).
+fn reload_script(version: u64) -> String {
+    format!(
+        "<script>(function(){{var s=new EventSource('/events');s.onmessage=function(e){{if(e.data!=='{version}'){{s.close();location.reload();}}}};}})();</script>"
+    )
+}
 
 fn escape(s: &str) -> String {
     s.replace('&', "&amp;")
@@ -136,10 +142,15 @@ fn serve(request: tiny_http::Request, shared: &Shared) {
     let path = request.url().split('?').next().unwrap_or("/").to_string();
     let result = match path.as_str() {
         "/" | "/index.html" => {
-            let html = shared.0.lock().map(|p| p.html.clone()).unwrap_or_default();
+            let (html, version) = shared
+                .0
+                .lock()
+                .map(|p| (p.html.clone(), p.version))
+                .unwrap_or_default();
+            let reload = reload_script(version);
             let page = match html.rfind("</body>") {
-                Some(i) => format!("{}{RELOAD}{}", &html[..i], &html[i..]),
-                None => format!("{html}{RELOAD}"),
+                Some(i) => format!("{}{reload}{}", &html[..i], &html[i..]),
+                None => format!("{html}{reload}"),
             };
             let mut response = tiny_http::Response::from_string(page);
             for h in headers(&[
