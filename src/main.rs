@@ -335,6 +335,22 @@ fn check(files: &[PathBuf]) -> ExitCode {
     }
 }
 
+/// The display of a calc checked again (for a study's tables): `Err` (the
+/// diagnostics or the message on stderr) with exit code 2.
+fn display_of(source: &Source, show: &Show) -> Result<Display, ExitCode> {
+    let model = match tandem::check(source) {
+        Ok(m) => m,
+        Err(errors) => {
+            report_errors(&errors, source);
+            return Err(bad());
+        }
+    };
+    display(&model, show).map_err(|msg| {
+        errln!("error: {msg}");
+        bad()
+    })
+}
+
 fn display(model: &tandem::model::Model, show: &Show) -> Result<Display, String> {
     let digits = usize::from(show.digits);
     Ok(match &show.units {

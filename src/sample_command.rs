@@ -55,16 +55,9 @@ pub(crate) fn sample(args: &Args<'_>) -> ExitCode {
         }
         return ExitCode::SUCCESS;
     }
-    let model = match tandem::check(&source) {
-        Ok(m) => m,
-        Err(errors) => {
-            report_errors(&errors, &source);
-            return bad();
-        }
-    };
-    let d = match crate::display(&model, args.display) {
+    let d = match crate::display_of(&source, args.display) {
         Ok(d) => d,
-        Err(msg) => return fail(msg),
+        Err(code) => return code,
     };
     out!("{}", text(&summary, &d));
     ExitCode::SUCCESS

@@ -154,16 +154,9 @@ pub(crate) fn sweep(args: &Args<'_>) -> ExitCode {
             ));
         }
     }
-    let model = match tandem::check(&source) {
-        Ok(m) => m,
-        Err(errors) => {
-            report_errors(&errors, &source);
-            return bad();
-        }
-    };
-    let d = match crate::display(&model, args.display) {
+    let d = match crate::display_of(&source, args.display) {
         Ok(d) => d,
-        Err(msg) => return fail(msg),
+        Err(code) => return code,
     };
     let bar = crate::progress::Progress::new(total as u64, "sweep");
     let progress = |done: usize| bar.at(done);
