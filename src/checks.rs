@@ -436,6 +436,8 @@ pub fn evaluate_state(
     capacity: &[Capacity],
 ) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
+    out.outcomes
+        .reserve(model.checks.len() * solution.combinations.len() + model.parts.len());
     for (ci, check) in model.checks.iter().enumerate() {
         for (k, result) in solution.combinations.iter().enumerate() {
             let combination = long_of.map_or(k, |m| m[k]);
@@ -469,6 +471,8 @@ pub fn evaluate_state(
         if tension.is_none() && compression.is_none() {
             continue;
         }
+        // one check per part whatever the sense: one label for all
+        let label = format!("{}: stress within allowable ({})", part.name, mat.name);
         for (k, result) in solution.combinations.iter().enumerate() {
             // a beam has two extreme fibres, N/A + M·c/I and N/A − M·c/I,
             // each against the allowable of its own sense; the one nearer
@@ -500,9 +504,8 @@ pub fn evaluate_state(
             let Some((demand, limit, _)) = governing else {
                 continue;
             };
-            // one check per part whatever the sense
             out.outcomes.push(outcome(
-                format!("{}: stress within allowable ({})", part.name, mat.name),
+                label.clone(),
                 Origin::Allowable(pi),
                 k,
                 Quantity::new(demand, Dimension::PRESSURE),

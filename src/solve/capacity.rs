@@ -88,7 +88,7 @@ pub fn capacity(model: &Model) -> Result<Vec<Capacity>, SolveError> {
         .combinations
         .iter()
         .enumerate()
-        .map(|(ci, combo)| path(model, &system, &k_full, gapped, ci, combo))
+        .map(|(ci, combo)| path(model, &system, k_full, gapped, ci, combo))
         .collect()
 }
 

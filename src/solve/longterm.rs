@@ -82,7 +82,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
         .unzip();
     let every =
         |parts: &[f64], modes: &[f64]| -> Vec<f64> { parts.iter().chain(modes).copied().collect() };
-    let (all_eff, all_full) = (every(&k_eff, &mode_k_eff), every(&k_full, &mode_k));
+    let (all_eff, all_full) = (every(&k_eff, &mode_k_eff), every(k_full, &mode_k));
     let f_eff = system.factor(&all_eff, &[])?;
     let f_full = system.factor(&all_full, &[])?;
     let zero = vec![0.0; n];
@@ -182,7 +182,7 @@ pub fn long_term(model: &Model) -> Result<Vec<LongTerm>, SolveError> {
             result: Some(result),
             split: Some(Split {
                 k_eff: k_eff.clone(),
-                k: k_full.clone(),
+                k: k_full.to_vec(),
                 sustained: (es, a_s.free),
                 transient: (et, a_t.free),
                 beams,

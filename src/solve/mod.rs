@@ -39,7 +39,6 @@ use mechanism::{dominant, singular};
 use results::{gather_results, ModeLaw, ResultInputs};
 use system::{numeric, Elements};
 
-use foldhash::{HashSet, HashSetExt};
 use std::hash::{Hash, Hasher};
 
 use uom::si::f64::{Force, Length, Pressure};
@@ -121,7 +120,8 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
     for combo in &model.combinations {
         let a = system.actions(&combo.name, &combo.terms, Take::ALL)?;
         let mut modes = initial.clone();
-        let mut seen: HashSet<u64> = HashSet::new();
+        // the states tried (a few: a linear model tries one)
+        let mut seen: Vec<u64> = Vec::with_capacity(4);
         let mut trials = 0;
         // Flip every part whose state is wrong at once; if that comes back
         // to a state seen before, flip one part at a time, the most wrong
@@ -133,7 +133,11 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
         let (q, elong) = loop {
             trials += 1;
             let key = state_hash(&modes);
-            if !seen.insert(key) {
+            let new = !seen.contains(&key);
+            if new {
+                seen.push(key);
+            }
+            if !new {
                 if single {
                     if newton_tried {
                         let flipping: Vec<String> = nonlinear
@@ -149,13 +153,13 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                     }
                     // Flipping does not settle: let Newton find the set.
                     newton_tried = true;
-                    modes = newton_modes(system, &a, &k_full, &initial, max_trials)?;
+                    modes = newton_modes(system, &a, k_full, &initial, max_trials)?;
                     seen.clear();
                     continue;
                 }
                 single = true;
                 seen.clear();
-                seen.insert(key);
+                seen.push(key);
             }
             if trials > max_trials {
                 return Err(SolveError::TooManyTrials {
@@ -164,7 +168,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                     span: combo.span,
                 });
             }
-            let k = engaged_stiffness(model, &modes, &k_full);
+            let k = engaged_stiffness(model, &modes, k_full);
             if cache.as_ref().is_none_or(|(c, _)| *c != key) {
                 let slack_parts: Vec<usize> = nonlinear
                     .iter()
@@ -177,7 +181,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                         // A trial state that cannot stand: let Newton find the set.
                         newton_tried = true;
                         single = true;
-                        modes = newton_modes(system, &a, &k_full, &initial, max_trials)?;
+                        modes = newton_modes(system, &a, k_full, &initial, max_trials)?;
                         seen.clear();
                         continue;
                     }
@@ -211,7 +215,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                 }
             }
         };
-        let k = engaged_stiffness(model, &modes, &k_full);
+        let k = engaged_stiffness(model, &modes, k_full);
         let forces: Vec<f64> = (0..modes.len())
             .map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1))
             .collect();

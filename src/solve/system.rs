@@ -275,8 +275,8 @@ impl<'m> System<'m> {
     }
 
     /// Each part's elastic stiffness k = E A / L.
-    pub fn stiffness(&self) -> Vec<f64> {
-        self.elems.k[..self.elems.n_parts].to_vec()
+    pub fn stiffness(&self) -> &[f64] {
+        &self.elems.k[..self.elems.n_parts]
     }
 
     /// The stiffness of every element: the parts' as given, the bending
