@@ -102,15 +102,8 @@ pub enum Format {
 
 /// Line and column (both from 1, the column in characters) of a byte offset.
 fn line_column(text: &str, offset: usize) -> (usize, usize) {
-    let offset = offset.min(text.len());
-    let offset = (0..=offset)
-        .rev()
-        .find(|&i| text.is_char_boundary(i))
-        .unwrap_or(0);
-    let before = &text[..offset];
-    let line = before.bytes().filter(|&b| b == b'\n').count() + 1;
-    let start = before.rfind('\n').map_or(0, |i| i + 1);
-    (line, before[start..].chars().count() + 1)
+    let (line, before) = crate::source::locate(text, offset);
+    (line + 1, before.chars().count() + 1)
 }
 
 /// Diagnostics in `format` (see [`Format`]); [`Format::Human`] wraps at

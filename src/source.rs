@@ -42,6 +42,23 @@ impl Source {
     }
 }
 
+/// Where a byte offset falls in a text: its line (from 0) and the part of
+/// that line before it (an offset inside a character counts from the
+/// character's start). Diagnostics count columns in characters, the
+/// language server in UTF-16 units: both from this.
+#[must_use]
+pub fn locate(text: &str, offset: usize) -> (usize, &str) {
+    let offset = offset.min(text.len());
+    let offset = (0..=offset)
+        .rev()
+        .find(|&i| text.is_char_boundary(i))
+        .unwrap_or(0);
+    let before = &text[..offset];
+    let line = before.bytes().filter(|&b| b == b'\n').count();
+    let start = before.rfind('\n').map_or(0, |i| i + 1);
+    (line, &before[start..])
+}
+
 /// A byte range in a source file, kept in 32 bits a side (files are at most
 /// `MAX_FILE_BYTES`), so that the syntax tree of a large calc stays small.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default, PartialOrd, Ord)]

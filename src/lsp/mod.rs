@@ -15,15 +15,8 @@ use document::Document;
 
 /// The LSP position (line, UTF-16 character) of a byte offset.
 fn position(text: &str, offset: usize) -> Value {
-    let offset = offset.min(text.len());
-    let offset = (0..=offset)
-        .rev()
-        .find(|&i| text.is_char_boundary(i))
-        .unwrap_or(0);
-    let before = &text[..offset];
-    let line = before.bytes().filter(|&b| b == b'\n').count();
-    let start = before.rfind('\n').map_or(0, |i| i + 1);
-    let character: usize = before[start..].chars().map(char::len_utf16).sum();
+    let (line, before) = crate::source::locate(text, offset);
+    let character: usize = before.chars().map(char::len_utf16).sum();
     json!({"line": line, "character": character})
 }
 
