@@ -26,10 +26,12 @@ pub enum Origin {
     Buckling(usize),
 }
 
+pub use crate::model::Label;
+
 /// One check in one combination.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Outcome {
-    pub label: String,
+    pub label: Label,
     pub origin: Origin,
     pub combination: usize,
     pub demand: Quantity,
@@ -86,12 +88,19 @@ impl Checks {
     /// Indices into `outcomes` of each check's governing outcome, in check order.
     pub fn governing_indices(&self) -> Vec<usize> {
         let mut order: Vec<usize> = Vec::new();
-        // a check's outcomes share its origin (and so its label)
+        // a check's outcomes share its origin (and so its label); they
+        // come one after another, so the map is asked only at a new run
         let mut slot: foldhash::HashMap<OriginKey, usize> = foldhash::HashMap::default();
+        let mut last: Option<(OriginKey, usize)> = None;
         for (i, o) in self.outcomes.iter().enumerate() {
             let key = OriginKey::of(&o.origin);
-            match slot.get(&key) {
-                Some(&k) => {
+            let found = match last {
+                Some((k, at)) if k == key => Some(at),
+                _ => slot.get(&key).copied(),
+            };
+            last = Some((key, found.unwrap_or(order.len())));
+            match found {
+                Some(k) => {
                     if outranks(o, &self.outcomes[order[k]]) {
                         order[k] = i;
                     }
@@ -178,18 +187,56 @@ enum Object {
 pub struct Refs<'a> {
     lets: HashMap<compact_str::CompactString, usize>,
     objects: HashMap<compact_str::CompactString, Object>,
+    /// The automatic checks' labels, kept from one evaluation to the next
+    /// (`None`: made each time, for a model evaluated once).
+    labels: Option<std::sync::Mutex<Labels>>,
     model: std::marker::PhantomData<&'a Model>,
 }
 
+/// The labels of the automatic checks, which depend on names only.
+#[derive(Debug, Default)]
+struct Labels {
+    /// By part.
+    allowable: HashMap<usize, Label>,
+    /// By the parts of a part or group.
+    euler: HashMap<Vec<usize>, Label>,
+}
+
 impl Refs<'_> {
-    /// The same lookups, free of the model's lifetime (the names are owned).
+    /// The same lookups, free of the model's lifetime (the names are
+    /// owned), for a model evaluated again and again: the automatic
+    /// checks' labels are kept after they are first made.
     #[must_use]
     pub fn into_owned(self) -> Refs<'static> {
         Refs {
             lets: self.lets,
             objects: self.objects,
+            labels: Some(std::sync::Mutex::default()),
             model: std::marker::PhantomData,
         }
+    }
+
+    /// The label of an automatic check: `make()`, or the one kept.
+    fn label<K: std::hash::Hash + Eq + Clone>(
+        &self,
+        map: impl Fn(&mut Labels) -> &mut HashMap<K, Label>,
+        key: &K,
+        make: impl FnOnce() -> String,
+    ) -> Label {
+        let Some(kept) = &self.labels else {
+            return make().into();
+        };
+        // a poisoned lock still holds good labels
+        let mut kept = kept
+            .lock()
+            .unwrap_or_else(std::sync::PoisonError::into_inner);
+        let map = map(&mut kept);
+        if let Some(l) = map.get(key) {
+            return l.clone();
+        }
+        let l: Label = make().into();
+        map.insert(key.clone(), l.clone());
+        l
     }
 }
 
@@ -355,7 +402,7 @@ impl Scope for ResultScope<'_> {
 }
 
 fn outcome(
-    label: String,
+    label: Label,
     origin: Origin,
     combination: usize,
     lhs: Quantity,
@@ -472,12 +519,17 @@ pub fn evaluate_state(
             continue;
         }
         // one check per part whatever the sense: one label for all
-        let label = format!("{}: stress within allowable ({})", part.name, mat.name);
+        let label = refs.label(
+            |l| &mut l.allowable,
+            &pi,
+            || format!("{}: stress within allowable ({})", part.name, mat.name),
+        );
         for (k, result) in solution.combinations.iter().enumerate() {
             // a beam has two extreme fibres, N/A + M·c/I and N/A − M·c/I,
             // each against the allowable of its own sense; the one nearer
             // its allowable governs
-            let fibres = match (&part.bend, part.area()) {
+            let (both, one);
+            let fibres: &[f64] = match (&part.bend, part.area()) {
                 (Some(bend), Some(area)) => {
                     let axial = result.parts[pi].force.value / area.value;
                     let bending = result
@@ -486,9 +538,13 @@ pub fn evaluate_state(
                         .map_or(0.0, |b| {
                             result.beams[b].moment_max.0.abs() * bend.fibre / bend.inertia
                         });
-                    vec![axial + bending, axial - bending]
+                    both = [axial + bending, axial - bending];
+                    &both
                 }
-                _ => vec![result.parts[pi].stress.map_or(0.0, |s| s.value)],
+                _ => {
+                    one = [result.parts[pi].stress.map_or(0.0, |s| s.value)];
+                    &one
+                }
             };
             let governing = fibres
                 .iter()
@@ -527,13 +583,10 @@ pub fn evaluate_state(
         if b.parts.len() == 1 && grouped.contains(&b.parts[0]) {
             continue;
         }
-        for (k, result) in solution.combinations.iter().enumerate() {
-            let compression = -b
-                .parts
-                .iter()
-                .map(|&i| result.parts[i].force.value)
-                .sum::<f64>();
-            out.outcomes.push(outcome(
+        let label = refs.label(
+            |l| &mut l.euler,
+            &b.parts,
+            || {
                 format!(
                     "{}: compression within Euler load",
                     b.parts
@@ -541,7 +594,17 @@ pub fn evaluate_state(
                         .map(|&i| model.parts[i].name.as_str())
                         .collect::<Vec<_>>()
                         .join(" + ")
-                ),
+                )
+            },
+        );
+        for (k, result) in solution.combinations.iter().enumerate() {
+            let compression = -b
+                .parts
+                .iter()
+                .map(|&i| result.parts[i].force.value)
+                .sum::<f64>();
+            out.outcomes.push(outcome(
+                label.clone(),
                 Origin::Buckling(bi),
                 k,
                 Quantity::new(compression.max(0.0), Dimension::FORCE),

@@ -45,24 +45,46 @@ pub fn map<I: Sync, R: Send>(items: &[I], work: impl Fn(&I) -> R + Sync + Send) 
     items.par_iter().map(work).collect()
 }
 
-/// `work(state, k)` for `k` in `0..count`, in parallel: the indices cut
-/// into one contiguous run per state, each run worked with its own state
-/// (a model updated in place); the results in order.
+/// `work(state, k)` for `k` in `0..count`, in parallel, each index worked
+/// with one of `states` (a model updated in place, so a state must give
+/// the same result whatever it worked before); the results in order.
+///
+/// The indices are cut into short runs that each state's task takes in
+/// turn from a shared counter until none are left: a core that is slowed
+/// (a neighbour's load on a shared machine) takes fewer runs rather than
+/// holding the others back to its pace.
 pub fn each_with<S: Send, R: Send>(
     states: &mut [S],
     count: usize,
     work: impl Fn(&mut S, usize) -> R + Sync + Send,
 ) -> Vec<R> {
-    let runs = states.len().clamp(1, count.max(1));
-    let per = count.div_ceil(runs).max(1);
-    let parts: Vec<Vec<R>> = states[..runs]
+    use std::sync::atomic::{AtomicUsize, Ordering};
+    let tasks = states.len().clamp(1, count.max(1));
+    // about eight runs per task (common practice for dynamic scheduling)
+    let per = count.div_ceil(tasks * RUNS_PER_TASK).max(1);
+    let runs = count.div_ceil(per);
+    let next = AtomicUsize::new(0);
+    let done: Vec<Vec<(usize, Vec<R>)>> = states[..tasks]
         .par_iter_mut()
-        .enumerate()
-        .map(|(k, s)| {
-            let lo = (k * per).min(count);
-            let hi = ((k + 1) * per).min(count);
-            (lo..hi).map(|i| work(s, i)).collect()
+        .map(|s| {
+            let mut mine = Vec::new();
+            loop {
+                let r = next.fetch_add(1, Ordering::Relaxed);
+                if r >= runs {
+                    break mine;
+                }
+                let lo = r * per;
+                let hi = (lo + per).min(count);
+                mine.push((r, (lo..hi).map(|i| work(s, i)).collect()));
+            }
         })
         .collect();
-    parts.into_iter().flatten().collect()
+    let mut ordered: Vec<Option<Vec<R>>> = (0..runs).map(|_| None).collect();
+    for (r, out) in done.into_iter().flatten() {
+        ordered[r] = Some(out);
+    }
+    ordered.into_iter().flatten().flatten().collect()
 }
+
+/// How many runs [`each_with`] cuts its indices into per state.
+const RUNS_PER_TASK: usize = 8;

@@ -106,9 +106,13 @@ pub fn unit_value(u: &UnitExpr) -> Result<Quantity, ModelError> {
             power = -power;
         }
         let base = Quantity::new(unit.factor, unit.dim);
-        let p = base
-            .pow(Quantity::number(f64::from(power)))
-            .map_err(|e| unit_error(&e, f.span, "raise"))?;
+        // most units stand alone (`psi`, not `in^2`): x¹ is x exactly
+        let p = if power == 1 {
+            base
+        } else {
+            base.pow(Quantity::number(f64::from(power)))
+                .map_err(|e| unit_error(&e, f.span, "raise"))?
+        };
         q = q.mul(p).map_err(|e| unit_error(&e, f.span, "multiply"))?;
     }
     Ok(q)

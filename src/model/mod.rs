@@ -386,7 +386,7 @@ pub struct Combination {
 /// A design check, evaluated after solving.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Check {
-    pub label: String,
+    pub label: Label,
     pub lhs: Expr,
     pub op: Compare,
     pub rhs: Expr,
@@ -396,6 +396,10 @@ pub struct Check {
     /// `(x, member)` for one check of a `for x in GROUP`.
     pub member: Option<(String, String)>,
 }
+
+/// A check's label, shared by the check and its outcomes (made once, not
+/// once per combination and evaluation).
+pub type Label = std::sync::Arc<str>;
 
 /// Where a check applies: some combinations (all when `None`) and one
 /// state (both when `None`).

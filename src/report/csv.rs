@@ -193,7 +193,7 @@ fn checks(a: &crate::Analysis, d: &Display) -> Vec<u8> {
                 ),
             };
             let _ = w.write_record([
-                o.label.clone(),
+                o.label.to_string(),
                 state.into(),
                 names[o.combination].clone(),
                 gov.to_string(),

@@ -475,7 +475,7 @@ fn check_tables(out: &mut String, a: &crate::Analysis, d: &Display) {
         ]];
         for o in checks.governing() {
             rows.push(vec![
-                o.label.clone(),
+                o.label.to_string(),
                 solution.combinations[o.combination].name.clone(),
                 super::display::written(o, d)[0].clone(),
                 super::display::written(o, d)[1].clone(),
@@ -510,7 +510,7 @@ fn check_tables(out: &mut String, a: &crate::Analysis, d: &Display) {
         ]];
         for o in c.governing() {
             rows.push(vec![
-                o.label.clone(),
+                o.label.to_string(),
                 lt.combinations[o.combination].name.clone(),
                 super::utilization(o.utilization),
                 super::display::verdict(o.pass, false),

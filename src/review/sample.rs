@@ -448,7 +448,7 @@ impl Sampler {
                 .checks
                 .governing()
                 .iter()
-                .map(|o| o.label.clone())
+                .map(|o| o.label.to_string())
                 .collect();
             let dims: Vec<Dimension> = at.shown.iter().map(|q| q.dim).collect();
             (labels, dims)

@@ -165,7 +165,7 @@ pub fn sensitivity(file: &ast::File, a: &crate::Analysis) -> Sensitivity {
         .checks
         .governing()
         .iter()
-        .map(|o| o.label.clone())
+        .map(|o| o.label.to_string())
         .collect();
     let lets: Vec<&crate::model::LetValue> = model
         .lets

@@ -130,7 +130,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
         let mut single = false;
         let mut newton_tried = false;
         let mut previous: Option<Vec<Mode>> = None;
-        let (q, elong) = loop {
+        let (q, elong, k) = loop {
             trials += 1;
             let key = state_hash(&modes);
             let new = !seen.contains(&key);
@@ -197,7 +197,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
             let (q, elong) = system.respond(f, &k, &target, &zero, &a);
             let wrong = wrong_parts(model, &nonlinear, &modes, &elong, &a.free);
             if wrong.is_empty() {
-                break (q, elong);
+                break (q, elong, k);
             }
             previous = Some(modes.clone());
             if single {
@@ -215,7 +215,6 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                 }
             }
         };
-        let k = engaged_stiffness(model, &modes, k_full);
         let forces: Vec<f64> = (0..modes.len())
             .map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1))
             .collect();

@@ -155,9 +155,11 @@ impl Pattern {
         }
         let mut l = vec![0.0; self.symbolic.len_val()];
         let par = Par::Seq;
+        // one scratch for the factorisation and every later solve
         let mut mem = MemBuffer::new(
             self.symbolic
-                .factorize_numeric_llt_scratch::<f64>(par, Spec::default()),
+                .factorize_numeric_llt_scratch::<f64>(par, Spec::default())
+                .or(self.symbolic.solve_in_place_scratch::<f64>(1, par)),
         );
         let sym = SymbolicSparseColMatRef::new_checked(n, n, &self.col_ptr, None, &self.row_idx);
         let a = SparseColMatRef::new(sym, &scaled);
@@ -186,6 +188,7 @@ impl Pattern {
             pattern: self,
             l,
             scale,
+            mem: std::cell::RefCell::new(mem),
         };
         if let Some(mode) = factor.mechanism_mode() {
             return Err(Failure::Mechanism(mode));
@@ -199,48 +202,53 @@ pub(crate) struct Factor<'p> {
     pattern: &'p Pattern,
     l: Vec<f64>,
     scale: Vec<f64>,
+    /// Scratch for the solves (made once with the factorisation).
+    mem: std::cell::RefCell<MemBuffer>,
 }
 
 impl Factor<'_> {
     /// Solve K x = b in place.
     pub fn solve(&self, b: &mut [f64]) {
-        let n = self.pattern.n;
         for (x, s) in b.iter_mut().zip(&self.scale) {
             *x *= s;
         }
-        let llt = LltRef::new(&self.pattern.symbolic, &self.l);
-        let par = Par::Seq;
-        let mut mem = MemBuffer::new(self.pattern.symbolic.solve_in_place_scratch::<f64>(1, par));
-        let rhs = MatMut::from_column_major_slice_mut(b, n, 1);
-        llt.solve_in_place_with_conj(Conj::No, rhs, par, MemStack::new(&mut mem));
+        self.solve_scaled(b);
         for (x, s) in b.iter_mut().zip(&self.scale) {
             *x *= s;
         }
     }
 
-    /// The diagonal of L, in the factor's (permuted) order.
-    fn l_diagonal(&self) -> Vec<f64> {
+    /// Solve with the scaled matrix, in place.
+    fn solve_scaled(&self, b: &mut [f64]) {
+        let n = self.pattern.n;
+        let llt = LltRef::new(&self.pattern.symbolic, &self.l);
+        let par = Par::Seq;
+        let rhs = MatMut::from_column_major_slice_mut(b, n, 1);
+        let mut mem = self.mem.borrow_mut();
+        llt.solve_in_place_with_conj(Conj::No, rhs, par, MemStack::new(&mut mem));
+    }
+
+    /// Whether a pivot of L was regularised (its diagonal, in the factor's
+    /// permuted order, holds the tiny value given it).
+    fn regularised(&self) -> bool {
         use faer::sparse::linalg::cholesky::SymbolicCholeskyRaw;
+        let tiny = |d: f64| d * d <= 2.0 * REGULARISED;
         let sym = &self.pattern.symbolic;
         match sym.raw() {
             SymbolicCholeskyRaw::Simplicial(s) => {
                 let cp = s.col_ptr();
-                (0..s.nrows()).map(|j| self.l[cp[j]]).collect()
+                (0..s.nrows()).any(|j| tiny(self.l[cp[j]]))
             }
             SymbolicCholeskyRaw::Supernodal(s) => {
-                let mut d = Vec::with_capacity(s.nrows());
                 let begin = s.supernode_begin();
                 let end = s.supernode_end();
                 let vp = s.col_ptr_for_val();
-                for k in 0..s.n_supernodes() {
+                (0..s.n_supernodes()).any(|k| {
                     let ncols = end[k] - begin[k];
                     let len = vp[k + 1] - vp[k];
                     let nrows = len / ncols.max(1);
-                    for c in 0..ncols {
-                        d.push(self.l[vp[k] + c * nrows + c]);
-                    }
-                }
-                d
+                    (0..ncols).any(|c| tiny(self.l[vp[k] + c * nrows + c]))
+                })
             }
         }
     }
@@ -248,15 +256,12 @@ impl Factor<'_> {
     /// When a pivot was regularised, the free motion it stands for: one
     /// solve with a generic right-hand side, dominated by that motion.
     fn mechanism_mode(&self) -> Option<Vec<f64>> {
-        let n = self.pattern.n;
-        let diag = self.l_diagonal();
-        let regularised = diag.iter().any(|d| d * d <= 2.0 * REGULARISED);
-        if !regularised {
+        if !self.regularised() {
             return None;
         }
         // Deterministic pseudo-random right-hand side in scaled coordinates.
         let mut seed: u64 = 0x2545_F491_4F6C_DD1D;
-        let mut y: Vec<f64> = (0..n)
+        let mut y: Vec<f64> = (0..self.pattern.n)
             .map(|_| {
                 seed ^= seed << 13;
                 seed ^= seed >> 7;
@@ -264,15 +269,7 @@ impl Factor<'_> {
                 ((seed >> 11) as f64 / (1u64 << 53) as f64) - 0.5
             })
             .collect();
-        let llt = LltRef::new(&self.pattern.symbolic, &self.l);
-        let par = Par::Seq;
-        let mut mem = MemBuffer::new(self.pattern.symbolic.solve_in_place_scratch::<f64>(1, par));
-        llt.solve_in_place_with_conj(
-            Conj::No,
-            MatMut::from_column_major_slice_mut(&mut y, n, 1),
-            par,
-            MemStack::new(&mut mem),
-        );
+        self.solve_scaled(&mut y);
         Some(y.iter().zip(&self.scale).map(|(v, s)| v * s).collect())
     }
 }

@@ -529,7 +529,7 @@ fn checks_read_a_beams_moments_and_its_nodes_rotations() {
         .outcomes
         .iter()
         .filter(|o| !o.pass)
-        .map(|o| o.label.as_str())
+        .map(|o| &*o.label)
         .collect();
     assert_eq!(failed, ["wall moment", "largest", "shear"]);
     // a beam's field on a part is an error, with the part's fields listed
@@ -800,7 +800,7 @@ fn a_beam_buckles_about_its_weak_axis() {
     let o = checks
         .outcomes
         .iter()
-        .find(|o| o.label == "euler")
+        .find(|o| &*o.label == "euler")
         .expect("the check");
     let weak = 0.3 * 0.1f64.powi(3) / 12.0;
     let pe = std::f64::consts::PI.powi(2) * E * weak / (L * L);

@@ -105,7 +105,7 @@ fn new_results_and_functions() {
         a.checks
             .outcomes
             .iter()
-            .find(|o| o.label == label)
+            .find(|o| &*o.label == label)
             .unwrap_or_else(|| panic!("{label}"))
     };
     assert!((by("euler").capacity.value - 0.9 * pe).abs() < 1e-6 * pe);
@@ -151,7 +151,7 @@ fn checks_apply_where_they_are_written() {
         c.outcomes
             .iter()
             .filter(|o| matches!(o.origin, tandem::checks::Origin::Line(_)))
-            .map(|o| (o.label.clone(), o.combination))
+            .map(|o| (o.label.to_string(), o.combination))
             .collect()
     };
     assert_eq!(

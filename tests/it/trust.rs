@@ -146,7 +146,7 @@ part tube { material = steel; section = ring(d = 273 mm, t = 6 mm); buckling_len
 load b = -500 kN
 ",
     );
-    let labels: Vec<&str> = a.checks.outcomes.iter().map(|o| o.label.as_str()).collect();
+    let labels: Vec<&str> = a.checks.outcomes.iter().map(|o| &*o.label).collect();
     assert_eq!(labels, ["core + tube: compression within Euler load"]);
     assert_eq!(a.failures(), 0);
 }

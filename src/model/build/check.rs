@@ -184,7 +184,7 @@ impl Builder {
                     break;
                 }
                 checks.push(Check {
-                    label,
+                    label: label.into(),
                     lhs,
                     op: c.op,
                     rhs,

@@ -320,7 +320,7 @@ fn check_table(a: &Analysis) -> Vec<(String, String, Option<f64>, bool)> {
         .iter()
         .map(|o| {
             (
-                o.label.clone(),
+                o.label.to_string(),
                 a.solution.combinations[o.combination].name.clone(),
                 o.utilization,
                 o.pass,
@@ -333,7 +333,7 @@ fn governing(a: &Analysis) -> Option<(f64, String, String)> {
     a.checks.highest().map(|o| {
         (
             o.utilization.unwrap_or(f64::INFINITY),
-            o.label.clone(),
+            o.label.to_string(),
             a.solution.combinations[o.combination].name.clone(),
         )
     })

@@ -388,7 +388,7 @@ impl Feed<'_, '_> {
                         .checks
                         .governing()
                         .iter()
-                        .map(|o| o.label.clone())
+                        .map(|o| o.label.to_string())
                         .collect(),
                     shown: self.shown.to_vec(),
                     shown_dims: e.shown.iter().map(|q| q.dim).collect(),
