@@ -58,6 +58,13 @@ fn axis(name: &str, from: &str, to: &str, steps: usize) -> Axis {
 }
 
 fn time(what: &str, src: &Source, axes: &[Axis]) {
+    // `cargo bench --bench sweep -- WORD` times only the runs whose name
+    // has WORD (cargo adds `--bench`)
+    if let Some(word) = std::env::args().skip(1).find(|a| !a.starts_with('-')) {
+        if !what.contains(&word) {
+            return;
+        }
+    }
     let names: Vec<&str> = axes.iter().map(|a| a.name.as_str()).collect();
     let Ok(sweeper) = Sweeper::grid(src, &names, &[]) else {
         eprintln!("{what}: the file does not build");
@@ -83,6 +90,15 @@ fn time(what: &str, src: &Source, axes: &[Axis]) {
     );
 }
 
+/// The steps of the long runs: 100,000, or `TANDEM_BENCH_STEPS` (fewer,
+/// to count instructions under valgrind, where times mean nothing).
+fn steps() -> usize {
+    std::env::var("TANDEM_BENCH_STEPS")
+        .ok()
+        .and_then(|s| s.parse().ok())
+        .unwrap_or(100_000)
+}
+
 fn main() {
     let root = std::path::Path::new(env!("CARGO_MANIFEST_DIR"));
     let post =
@@ -91,12 +107,12 @@ fn main() {
     time(
         "filled_post over fc",
         &post,
-        &[axis("fc", "3 ksi", "8 ksi", 100_000)],
+        &[axis("fc", "3 ksi", "8 ksi", steps())],
     );
     time(
         "filled_post over height (nodes move)",
         &post,
-        &[axis("height", "10 ft", "20 ft", 100_000)],
+        &[axis("height", "10 ft", "20 ft", steps())],
     );
     time(
         "filled_post grid fc x height",

@@ -10,7 +10,7 @@ use crate::solve::capacity::Capacity;
 use crate::solve::{CombinationResult, Solution};
 use crate::syntax::ast::{Compare, ExprKind, Ident};
 use crate::units::{Dimension, Quantity};
-use foldhash::{HashMap, HashSet, HashSetExt};
+use foldhash::{HashMap, HashSet};
 
 pub use crate::model::LOAD_FACTORS;
 
@@ -87,26 +87,42 @@ impl Checks {
 
     /// Indices into `outcomes` of each check's governing outcome, in check order.
     pub fn governing_indices(&self) -> Vec<usize> {
-        let mut order: Vec<usize> = Vec::new();
         // a check's outcomes share its origin (and so its label); they
-        // come one after another, so the map is asked only at a new run
-        let mut slot: foldhash::HashMap<OriginKey, usize> = foldhash::HashMap::default();
+        // come one after another, so a check is looked for only at a new
+        // run: among the few seen so far, or in a map once there are many
+        const FEW: usize = 16;
+        let mut order: Vec<usize> = Vec::new();
+        let mut keys: Vec<OriginKey> = Vec::new();
+        let mut map: Option<foldhash::HashMap<OriginKey, usize>> = None;
         let mut last: Option<(OriginKey, usize)> = None;
         for (i, o) in self.outcomes.iter().enumerate() {
             let key = OriginKey::of(&o.origin);
-            let found = match last {
-                Some((k, at)) if k == key => Some(at),
-                _ => slot.get(&key).copied(),
+            let found = match (last, &map) {
+                (Some((k, at)), _) if k == key => Some(at),
+                (_, Some(m)) => m.get(&key).copied(),
+                (_, None) => keys.iter().position(|k| *k == key),
             };
-            last = Some((key, found.unwrap_or(order.len())));
             match found {
                 Some(k) => {
                     if outranks(o, &self.outcomes[order[k]]) {
                         order[k] = i;
                     }
+                    last = Some((key, k));
                 }
                 None => {
-                    slot.insert(key, order.len());
+                    last = Some((key, order.len()));
+                    match &mut map {
+                        Some(m) => {
+                            m.insert(key, order.len());
+                        }
+                        None if keys.len() >= FEW => {
+                            let mut m: foldhash::HashMap<OriginKey, usize> =
+                                keys.iter().enumerate().map(|(at, k)| (*k, at)).collect();
+                            m.insert(key, order.len());
+                            map = Some(m);
+                        }
+                        None => keys.push(key),
+                    }
                     order.push(i);
                 }
             }
@@ -187,56 +203,18 @@ enum Object {
 pub struct Refs<'a> {
     lets: HashMap<compact_str::CompactString, usize>,
     objects: HashMap<compact_str::CompactString, Object>,
-    /// The automatic checks' labels, kept from one evaluation to the next
-    /// (`None`: made each time, for a model evaluated once).
-    labels: Option<std::sync::Mutex<Labels>>,
     model: std::marker::PhantomData<&'a Model>,
 }
 
-/// The labels of the automatic checks, which depend on names only.
-#[derive(Debug, Default)]
-struct Labels {
-    /// By part.
-    allowable: HashMap<usize, Label>,
-    /// By the parts of a part or group.
-    euler: HashMap<Vec<usize>, Label>,
-}
-
 impl Refs<'_> {
-    /// The same lookups, free of the model's lifetime (the names are
-    /// owned), for a model evaluated again and again: the automatic
-    /// checks' labels are kept after they are first made.
+    /// The same lookups, free of the model's lifetime (the names are owned).
     #[must_use]
     pub fn into_owned(self) -> Refs<'static> {
         Refs {
             lets: self.lets,
             objects: self.objects,
-            labels: Some(std::sync::Mutex::default()),
             model: std::marker::PhantomData,
         }
-    }
-
-    /// The label of an automatic check: `make()`, or the one kept.
-    fn label<K: std::hash::Hash + Eq + Clone>(
-        &self,
-        map: impl Fn(&mut Labels) -> &mut HashMap<K, Label>,
-        key: &K,
-        make: impl FnOnce() -> String,
-    ) -> Label {
-        let Some(kept) = &self.labels else {
-            return make().into();
-        };
-        // a poisoned lock still holds good labels
-        let mut kept = kept
-            .lock()
-            .unwrap_or_else(std::sync::PoisonError::into_inner);
-        let map = map(&mut kept);
-        if let Some(l) = map.get(key) {
-            return l.clone();
-        }
-        let l: Label = make().into();
-        map.insert(key.clone(), l.clone());
-        l
     }
 }
 
@@ -409,6 +387,22 @@ fn outcome(
     op: Compare,
     rhs: Quantity,
 ) -> Outcome {
+    let (demand, capacity, utilization, pass) = judge(lhs, op, rhs);
+    Outcome {
+        label,
+        origin,
+        combination,
+        demand,
+        capacity,
+        op,
+        utilization,
+        pass,
+    }
+}
+
+/// A check's `lhs op rhs` judged: the demand, the capacity, the
+/// utilization and whether it passes.
+fn judge(lhs: Quantity, op: Compare, rhs: Quantity) -> (Quantity, Quantity, Option<f64>, bool) {
     // Sides equal within round-off (`exceeds`) count as equal: a stress of
     // 1 kN over 10 mm² against 100 MPa passes `<=` and fails `<`, although
     // the floating-point quotient is a last digit above 100 MPa.
@@ -434,16 +428,7 @@ fn outcome(
     } else {
         None
     };
-    Outcome {
-        label,
-        origin,
-        combination,
-        demand,
-        capacity,
-        op,
-        utilization,
-        pass,
-    }
+    (demand, capacity, utilization, pass)
 }
 
 /// Evaluate every check in every combination.
@@ -483,8 +468,69 @@ pub fn evaluate_state(
     capacity: &[Capacity],
 ) -> Result<Checks, ModelError> {
     let mut out = Checks::default();
+    evaluate_into(model, solution, refs, long_of, capacity, &mut out)?;
+    Ok(out)
+}
+
+/// Outcomes written over the list of an earlier evaluation of the same
+/// model: an outcome of the same origin in the same place keeps its label
+/// (the label depends on the origin alone). Counting a shared label up and
+/// down once per outcome costs more than the rest of the outcome.
+struct Writer<'c> {
+    list: &'c mut Vec<Outcome>,
+    at: usize,
+}
+
+impl Writer<'_> {
+    fn put(
+        &mut self,
+        origin: Origin,
+        label: impl FnOnce() -> Label,
+        combination: usize,
+        lhs: Quantity,
+        op: Compare,
+        rhs: Quantity,
+    ) {
+        match self.list.get_mut(self.at) {
+            Some(o) if o.origin == origin => {
+                let (demand, capacity, utilization, pass) = judge(lhs, op, rhs);
+                o.combination = combination;
+                o.demand = demand;
+                o.capacity = capacity;
+                o.op = op;
+                o.utilization = utilization;
+                o.pass = pass;
+            }
+            Some(o) => *o = outcome(label(), origin, combination, lhs, op, rhs),
+            None => self
+                .list
+                .push(outcome(label(), origin, combination, lhs, op, rhs)),
+        }
+        self.at += 1;
+    }
+}
+
+/// [`evaluate_state`] into `out`, which is empty or holds an earlier
+/// evaluation of this model (a sweep's last step): its lists are written
+/// over rather than made again.
+///
+/// # Errors
+/// As [`evaluate`]; `out` then holds part of the evaluation.
+pub fn evaluate_into(
+    model: &Model,
+    solution: &Solution,
+    refs: &Refs<'_>,
+    long_of: Option<&[usize]>,
+    capacity: &[Capacity],
+    out: &mut Checks,
+) -> Result<(), ModelError> {
+    out.yielded.clear();
     out.outcomes
         .reserve(model.checks.len() * solution.combinations.len() + model.parts.len());
+    let mut w = Writer {
+        list: &mut out.outcomes,
+        at: 0,
+    };
     for (ci, check) in model.checks.iter().enumerate() {
         for (k, result) in solution.combinations.iter().enumerate() {
             let combination = long_of.map_or(k, |m| m[k]);
@@ -500,14 +546,7 @@ pub fn evaluate_state(
             };
             let l = eval(&check.lhs, &scope)?;
             let r = eval(&check.rhs, &scope)?;
-            out.outcomes.push(outcome(
-                check.label.clone(),
-                Origin::Line(ci),
-                k,
-                l,
-                check.op,
-                r,
-            ));
+            w.put(Origin::Line(ci), || check.label.clone(), k, l, check.op, r);
         }
     }
     for (pi, part) in model.parts.iter().enumerate() {
@@ -518,12 +557,9 @@ pub fn evaluate_state(
         if tension.is_none() && compression.is_none() {
             continue;
         }
-        // one check per part whatever the sense: one label for all
-        let label = refs.label(
-            |l| &mut l.allowable,
-            &pi,
-            || format!("{}: stress within allowable ({})", part.name, mat.name),
-        );
+        // one check per part whatever the sense: one label for all, made
+        // when first needed
+        let mut label: Option<Label> = None;
         for (k, result) in solution.combinations.iter().enumerate() {
             // a beam has two extreme fibres, N/A + M·c/I and N/A − M·c/I,
             // each against the allowable of its own sense; the one nearer
@@ -560,14 +596,20 @@ pub fn evaluate_state(
             let Some((demand, limit, _)) = governing else {
                 continue;
             };
-            out.outcomes.push(outcome(
-                label.clone(),
+            w.put(
                 Origin::Allowable(pi),
+                || {
+                    label
+                        .get_or_insert_with(|| {
+                            format!("{}: stress within allowable ({})", part.name, mat.name).into()
+                        })
+                        .clone()
+                },
                 k,
                 Quantity::new(demand, Dimension::PRESSURE),
                 Compare::Le,
                 Quantity::new(limit.value, Dimension::PRESSURE),
-            ));
+            );
         }
     }
     // A compression part or group past its Euler load (times its
@@ -575,7 +617,7 @@ pub fn evaluate_state(
     // A part of a parallel group (a filled pipe) buckles with its group,
     // not alone: the group's check gates it.
     let list = buckling(model, solution);
-    let mut grouped = HashSet::new();
+    let mut grouped = crate::FixedSet::default();
     for b in list.iter().filter(|b| b.parts.len() > 1) {
         grouped.extend(b.parts.iter().copied());
     }
@@ -583,36 +625,39 @@ pub fn evaluate_state(
         if b.parts.len() == 1 && grouped.contains(&b.parts[0]) {
             continue;
         }
-        let label = refs.label(
-            |l| &mut l.euler,
-            &b.parts,
-            || {
-                format!(
-                    "{}: compression within Euler load",
-                    b.parts
-                        .iter()
-                        .map(|&i| model.parts[i].name.as_str())
-                        .collect::<Vec<_>>()
-                        .join(" + ")
-                )
-            },
-        );
+        let mut label: Option<Label> = None;
         for (k, result) in solution.combinations.iter().enumerate() {
             let compression = -b
                 .parts
                 .iter()
                 .map(|&i| result.parts[i].force.value)
                 .sum::<f64>();
-            out.outcomes.push(outcome(
-                label.clone(),
+            w.put(
                 Origin::Buckling(bi),
+                || {
+                    label
+                        .get_or_insert_with(|| {
+                            format!(
+                                "{}: compression within Euler load",
+                                b.parts
+                                    .iter()
+                                    .map(|&i| model.parts[i].name.as_str())
+                                    .collect::<Vec<_>>()
+                                    .join(" + ")
+                            )
+                            .into()
+                        })
+                        .clone()
+                },
                 k,
                 Quantity::new(compression.max(0.0), Dimension::FORCE),
                 Compare::Le,
                 Quantity::new(b.euler_fraction * b.euler, Dimension::FORCE),
-            ));
+            );
         }
     }
+    let end = w.at;
+    out.outcomes.truncate(end);
     for (k, result) in solution.combinations.iter().enumerate() {
         for (pi, part) in model.parts.iter().enumerate() {
             let Some(mi) = part.material() else { continue };
@@ -630,5 +675,5 @@ pub fn evaluate_state(
             }
         }
     }
-    Ok(out)
+    Ok(())
 }

@@ -27,6 +27,14 @@ pub mod units;
 pub mod warning;
 pub mod words;
 
+/// A hash map with a fixed seed, for the small maps made once per
+/// evaluation, which a sweep makes hundreds of thousands of times (drawing
+/// a random seed costs more than filling such a map). Its keys are the
+/// calc's own indices, not text chosen to collide.
+pub(crate) type FixedMap<K, V> = std::collections::HashMap<K, V, foldhash::fast::FixedState>;
+/// The set of [`FixedMap`].
+pub(crate) type FixedSet<K> = std::collections::HashSet<K, foldhash::fast::FixedState>;
+
 use std::path::Path;
 
 pub use diagnostic::Error;

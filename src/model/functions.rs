@@ -53,7 +53,7 @@ pub const FUNCTIONS: &[Function] = &[
         source: None,
         eval: |c| {
             let a = positional(c.func, c.args, Some(1), c.span)?;
-            let x = eval(a[0], c.scope)?;
+            let x = eval(&a[0], c.scope)?;
             Ok(Val::Q(Quantity::new(x.value.abs(), x.dim)))
         },
     },
@@ -290,7 +290,7 @@ pub fn listing() -> String {
 
 fn sqrt(c: &Call<'_>) -> Result<Val, ModelError> {
     let a = positional(c.func, c.args, Some(1), c.span)?;
-    let mut x = eval(a[0], c.scope)?;
+    let mut x = eval(&a[0], c.scope)?;
     if c.scope.validating() {
         x.value = x.value.abs();
     }
@@ -302,7 +302,7 @@ fn sqrt(c: &Call<'_>) -> Result<Val, ModelError> {
 /// `sin`, `cos`, `tan`: of a dimensionless angle.
 fn trig(c: &Call<'_>, f: fn(f64) -> f64) -> Result<Val, ModelError> {
     let a = positional(c.func, c.args, Some(1), c.span)?;
-    let x = eval(a[0], c.scope)?;
+    let x = eval(&a[0], c.scope)?;
     dimensionless(
         c.func,
         &x,
@@ -315,7 +315,7 @@ fn trig(c: &Call<'_>, f: fn(f64) -> f64) -> Result<Val, ModelError> {
 /// `asin`, `acos` (`bounded`: the argument within ±1) and `atan`.
 fn inverse(c: &Call<'_>, f: fn(f64) -> f64, bounded: bool) -> Result<Val, ModelError> {
     let a = positional(c.func, c.args, Some(1), c.span)?;
-    let x = eval(a[0], c.scope)?;
+    let x = eval(&a[0], c.scope)?;
     dimensionless(c.func, &x, a[0].span, "a dimensionless number")?;
     let v = if c.scope.validating() {
         x.value.clamp(-1.0, 1.0)
@@ -334,8 +334,8 @@ fn inverse(c: &Call<'_>, f: fn(f64) -> f64, bounded: bool) -> Result<Val, ModelE
 
 fn atan2(c: &Call<'_>) -> Result<Val, ModelError> {
     let a = positional(c.func, c.args, Some(2), c.span)?;
-    let y = eval(a[0], c.scope)?;
-    let x = eval(a[1], c.scope)?;
+    let y = eval(&a[0], c.scope)?;
+    let x = eval(&a[1], c.scope)?;
     y.same(x)
         .map_err(|e| unit_error(&e, a[0].span.to(a[1].span), "compare"))?;
     Ok(Val::Q(Quantity::number(y.value.atan2(x.value))))
@@ -344,8 +344,8 @@ fn atan2(c: &Call<'_>) -> Result<Val, ModelError> {
 /// `min` (`smallest`) or `max` of values of one dimension.
 fn extreme(c: &Call<'_>, smallest: bool) -> Result<Val, ModelError> {
     let a = positional(c.func, c.args, None, c.span)?;
-    let mut acc = eval(a[0], c.scope)?;
-    for x in &a[1..] {
+    let mut acc = eval(&a[0], c.scope)?;
+    for x in a.rest() {
         let v = eval(x, c.scope)?;
         acc.same(v)
             .map_err(|e| unit_error(&e, a[0].span.to(x.span), "compare"))?;
@@ -361,7 +361,7 @@ fn positional<'a>(
     args: &'a [Arg],
     count: Option<usize>,
     span: Span,
-) -> Result<Vec<&'a Expr>, ModelError> {
+) -> Result<Positional<'a>, ModelError> {
     if let Some(a) = args.iter().find(|a| a.name.is_some()) {
         return Err(ModelError::BadArguments {
             message: format!("`{}` takes its arguments without names", func.name),
@@ -387,7 +387,25 @@ fn positional<'a>(
             help: None,
         });
     }
-    Ok(args.iter().map(|a| &a.value).collect())
+    Ok(Positional(args))
+}
+
+/// The arguments of a call that takes them without names (checked by
+/// [`positional`]), read in place.
+struct Positional<'a>(&'a [Arg]);
+
+impl std::ops::Index<usize> for Positional<'_> {
+    type Output = Expr;
+    fn index(&self, i: usize) -> &Expr {
+        &self.0[i].value
+    }
+}
+
+impl<'a> Positional<'a> {
+    /// Every argument after the first.
+    fn rest(&self) -> impl Iterator<Item = &'a Expr> {
+        self.0.iter().skip(1).map(|a| &a.value)
+    }
 }
 
 /// Named length arguments of a section helper, in the order of `names`.

@@ -444,12 +444,7 @@ impl Sampler {
         let (labels, shown_dims) = {
             let mut ev = Evaluator::new(&file, &names, &shown)?;
             let at = ev.at(&base).map_err(Ok)?;
-            let labels: Vec<String> = at
-                .checks
-                .governing()
-                .iter()
-                .map(|o| o.label.to_string())
-                .collect();
+            let labels = ev.labels();
             let dims: Vec<Dimension> = at.shown.iter().map(|q| q.dim).collect();
             (labels, dims)
         };

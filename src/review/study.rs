@@ -4,7 +4,7 @@
 //! updating its numbers in place (see [`crate::model::Rebuild`] and
 //! [`crate::solve::Resolver`]).
 
-use crate::checks::{evaluate_state, Checks, Refs};
+use crate::checks::{evaluate_into, Checks, Refs};
 use crate::model::{Limits, Model, Rebuild};
 use crate::solve::{Resolver, Solution};
 use crate::syntax::ast;
@@ -83,12 +83,13 @@ pub(crate) fn shown_value(
     best
 }
 
-/// The checks of a solved model in every combination, short and long term;
-/// the highest utilization over them all (`None`: no checks) and each
-/// check's highest, in the order of the short-term governing list. What a
-/// sweep step, a sensitivity and a sample read. The capacity path is
-/// traced only with `capacity` (a check reads `yield_factor` or
-/// `limit_factor`).
+/// The checks of a solved model in every combination, short and long term,
+/// the short-term ones written into `checks` (an earlier evaluation's,
+/// see [`evaluate_into`]); the highest utilization over them all (`None`:
+/// no checks) and each check's highest, in the order of the short-term
+/// governing list. What a sweep step, a sensitivity and a sample read. The
+/// capacity path is traced only with `capacity` (a check reads
+/// `yield_factor` or `limit_factor`).
 ///
 /// # Errors
 /// A check that cannot be evaluated, a capacity or long-term state that
@@ -98,14 +99,15 @@ pub(crate) fn utilizations(
     solution: &crate::solve::Solution,
     refs: &Refs<'_>,
     capacity: bool,
-) -> Result<(Checks, Utilizations), Vec<Error>> {
+    checks: &mut Checks,
+) -> Result<Utilizations, Vec<Error>> {
     let capacity = if capacity {
         crate::solve::capacity::capacity(model).map_err(|e| vec![Error::from(e)])?
     } else {
         Vec::new()
     };
-    let checks =
-        evaluate_state(model, solution, refs, None, &capacity).map_err(|e| vec![Error::from(e)])?;
+    evaluate_into(model, solution, refs, None, &capacity, checks)
+        .map_err(|e| vec![Error::from(e)])?;
     // every check `solve` evaluates: the long-term state's too
     let (_, long) = crate::long_term_checks(model, solution, refs, &capacity)?;
     let long = long.map(|(_, c)| c);
@@ -130,13 +132,10 @@ pub(crate) fn utilizations(
             _ => o.utilization,
         })
         .collect();
-    Ok((
-        checks,
-        Utilizations {
-            governing,
-            checks: per_check,
-        },
-    ))
+    Ok(Utilizations {
+        governing,
+        checks: per_check,
+    })
 }
 
 /// The utilizations of one evaluation of a calc.
@@ -164,10 +163,9 @@ fn reads_load_factor(model: &Model) -> bool {
     })
 }
 
-/// One evaluation: the checks (labels and outcomes), the utilizations and
-/// the values of the results shown.
+/// One evaluation: the utilizations and the values of the results shown
+/// (the checks' labels: [`Evaluator::labels`]).
 pub(crate) struct Evaluation {
-    pub checks: Checks,
     pub utilizations: Utilizations,
     pub shown: Vec<Quantity>,
 }
@@ -189,6 +187,8 @@ pub(crate) struct Evaluator<'f> {
     /// Where the checks' and the shown results' names live in the model
     /// (the names do not change between evaluations).
     refs: Refs<'static>,
+    /// The last evaluation's checks, written over by the next.
+    checks: Checks,
 }
 
 impl<'f> Evaluator<'f> {
@@ -220,7 +220,18 @@ impl<'f> Evaluator<'f> {
             shown: shown.to_vec(),
             capacity,
             refs,
+            checks: Checks::default(),
         })
+    }
+
+    /// The labels of the checks of the last evaluation, in the order of
+    /// [`Utilizations::checks`].
+    pub fn labels(&self) -> Vec<String> {
+        self.checks
+            .governing()
+            .iter()
+            .map(|o| o.label.to_string())
+            .collect()
     }
 
     /// The model as last evaluated.
@@ -254,14 +265,13 @@ impl<'f> Evaluator<'f> {
             }
         };
         let refs = &self.refs;
-        let (checks, utilizations) = utilizations(model, solution, refs, self.capacity)?;
+        let utilizations = utilizations(model, solution, refs, self.capacity, &mut self.checks)?;
         let shown = self
             .shown
             .iter()
             .map(|s| shown_value(model, solution, refs, s))
             .collect();
         Ok(Evaluation {
-            checks,
             utilizations,
             shown,
         })

@@ -7,6 +7,7 @@
 use super::*;
 
 /// What a set of factored cases does to the assembly.
+#[derive(Default)]
 pub(crate) struct Actions {
     /// Prescribed node displacements (support movements), per component.
     pub u0: Vec<f64>,
@@ -138,13 +139,40 @@ impl System<'_> {
         terms: &[(usize, f64)],
         take: Take,
     ) -> Result<Actions, SolveError> {
+        let mut a = Actions::default();
+        self.actions_into(&mut a, name, terms, take)?;
+        Ok(a)
+    }
+
+    /// [`System::actions`] written into `a`, whose lists are reused (a
+    /// sweep's steps solve the same combinations again and again).
+    pub fn actions_into(
+        &self,
+        a: &mut Actions,
+        name: &str,
+        terms: &[(usize, f64)],
+        take: Take,
+    ) -> Result<(), SolveError> {
         let model = self.model;
         let map = &self.map;
         let nd = map.ndof;
-        let mut u0 = vec![0.0; map.ncomp];
-        let mut loads = vec![0.0; map.ncomp];
-        let mut along = vec![[0.0; 2]; model.parts.len()];
-        let mut free = vec![0.0; model.parts.len()];
+        let zeroed = |v: &mut Vec<f64>, n: usize| {
+            v.clear();
+            v.resize(n, 0.0);
+        };
+        let Actions {
+            u0,
+            loads,
+            along,
+            free,
+            e0,
+            f_loads,
+        } = a;
+        zeroed(u0, map.ncomp);
+        zeroed(loads, map.ncomp);
+        along.clear();
+        along.resize(model.parts.len(), [0.0; 2]);
+        zeroed(free, model.parts.len());
         for (i, source) in free_sources(model, terms) {
             let wanted = match source {
                 FreeSource::Misfit(_) => take.misfit,
@@ -154,7 +182,7 @@ impl System<'_> {
                 free[i] += source.value();
             }
         }
-        let mut moved: foldhash::HashMap<(usize, usize), f64> = foldhash::HashMap::default();
+        let mut moved: crate::FixedMap<(usize, usize), f64> = crate::FixedMap::default();
         for &(ci, factor) in terms {
             let case = &model.cases[ci];
             if take.strains {
@@ -259,23 +287,19 @@ impl System<'_> {
                 }
             }
         }
-        let mut e0: Vec<f64> = model
-            .parts
-            .iter()
-            .zip(&self.elems.dir)
-            .map(|(p, dir)| {
-                (0..nd)
-                    .map(|d| dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
-                    .sum()
-            })
-            .collect();
+        e0.clear();
+        e0.extend(model.parts.iter().zip(&self.elems.dir).map(|(p, dir)| {
+            (0..nd)
+                .map(|d| dir[d] * (u0[p.ends[1] * nd + d] - u0[p.ends[0] * nd + d]))
+                .sum::<f64>()
+        }));
         e0.extend(
             self.elems
                 .modes
                 .iter()
                 .map(|m| m.comps.iter().map(|&(c, v)| v * u0[c]).sum::<f64>()),
         );
-        let mut f_loads = vec![0.0; map.n];
+        zeroed(f_loads, map.n);
         for (c, &f) in loads.iter().enumerate() {
             if f != 0.0 {
                 for (i, v) in map.terms[c].iter() {
@@ -283,14 +307,7 @@ impl System<'_> {
                 }
             }
         }
-        Ok(Actions {
-            u0,
-            loads,
-            along,
-            free,
-            e0,
-            f_loads,
-        })
+        Ok(())
     }
 }
 

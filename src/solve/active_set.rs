@@ -21,9 +21,8 @@ pub(super) enum Mode {
 }
 
 pub(super) fn state_hash(modes: &[Mode]) -> u64 {
-    let mut h = std::collections::hash_map::DefaultHasher::new();
-    modes.hash(&mut h);
-    h.finish()
+    // a fixed seed: the same state hashes alike in every solve
+    std::hash::BuildHasher::hash_one(&foldhash::fast::FixedState::default(), modes)
 }
 
 /// The force law of a part in a mode: (stiffness on, offset of the target).
@@ -146,32 +145,34 @@ pub(super) fn newton_modes(
     Ok(modes)
 }
 
-/// Each part's stiffness in its mode (zero when slack).
-pub(super) fn engaged_stiffness(model: &Model, modes: &[Mode], k_full: &[f64]) -> Vec<f64> {
-    (0..modes.len())
-        .map(|i| {
-            if law(model, i, modes[i]).0 {
-                k_full[i]
-            } else {
-                0.0
-            }
-        })
-        .collect()
+/// Each part's stiffness in its mode (zero when slack), written into `k`.
+pub(super) fn engaged_stiffness(model: &Model, modes: &[Mode], k_full: &[f64], k: &mut Vec<f64>) {
+    k.clear();
+    k.extend((0..modes.len()).map(|i| {
+        if law(model, i, modes[i]).0 {
+            k_full[i]
+        } else {
+            0.0
+        }
+    }));
 }
 
 /// Each part's mode before the first trial: as its law says when it carries
-/// both senses and has no gap; in the sense it carries, or slack, otherwise.
-pub(super) fn initial_modes(model: &Model) -> Vec<Mode> {
-    model
-        .parts
-        .iter()
-        .map(|p| match (p.carries, p.slack.value > 0.0) {
-            (Carries::Both, false) => Mode::Linear,
-            (Carries::Tension, _) => Mode::Tension,
-            (Carries::Compression, _) => Mode::Compression,
-            (Carries::Both, true) => Mode::Slack,
-        })
-        .collect()
+/// both senses and has no gap; in the sense it carries, or slack, otherwise
+/// (written into `modes`).
+pub(super) fn initial_modes(model: &Model, modes: &mut Vec<Mode>) {
+    modes.clear();
+    modes.extend(
+        model
+            .parts
+            .iter()
+            .map(|p| match (p.carries, p.slack.value > 0.0) {
+                (Carries::Both, false) => Mode::Linear,
+                (Carries::Tension, _) => Mode::Tension,
+                (Carries::Compression, _) => Mode::Compression,
+                (Carries::Both, true) => Mode::Slack,
+            }),
+    );
 }
 
 /// Each one-sense or gapped part whose mode is wrong for its elongation,

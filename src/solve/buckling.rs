@@ -89,8 +89,8 @@ pub fn buckling(model: &Model, solution: &Solution) -> Vec<Buckling> {
     };
     let mut out = Vec::new();
     let mut groups: Vec<((usize, usize), Vec<usize>)> = Vec::new();
-    let mut group_of: foldhash::HashMap<(usize, usize), usize> = foldhash::HashMap::default();
-    let mut single_of: foldhash::HashMap<usize, usize> = foldhash::HashMap::default();
+    let mut group_of: crate::FixedMap<(usize, usize), usize> = crate::FixedMap::default();
+    let mut single_of: crate::FixedMap<usize, usize> = crate::FixedMap::default();
     for (i, p) in model.parts.iter().enumerate() {
         let (Some(kl), Some(inertia), Some(m), Some(area)) =
             (p.buckling_length, p.inertia(), p.material(), p.area())

@@ -39,7 +39,7 @@ use mechanism::{dominant, singular};
 use results::{gather_results, ModeLaw, ResultInputs};
 use system::{numeric, Elements};
 
-use std::hash::{Hash, Hasher};
+use std::hash::Hash;
 
 use uom::si::f64::{Force, Length, Pressure};
 use uom::si::force::newton;
@@ -69,7 +69,27 @@ pub fn solve_with(model: &Model, max_trials: usize) -> Result<Solution, SolveErr
 }
 
 fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
-    solve_on(&System::new(model)?, max_trials)
+    solve_on(&System::new(model)?, max_trials, &mut Work::default())
+}
+
+/// The lists a solve works in, reused from one combination to the next
+/// and, kept by a [`Resolver`], from one solve to the next.
+#[derive(Default)]
+struct Work {
+    actions: Actions,
+    initial: Vec<Mode>,
+    modes: Vec<Mode>,
+    /// The states tried (a few: a linear model tries one).
+    seen: Vec<u64>,
+    zero: Vec<f64>,
+    k: Vec<f64>,
+    target: Vec<f64>,
+    forces: Vec<f64>,
+    states: Vec<PartState>,
+    /// The unknowns, the elongations and the refinement's residual.
+    q: Vec<f64>,
+    elong: Vec<f64>,
+    residual: Vec<f64>,
 }
 
 /// Solves of a model whose numbers change from one solve to the next but
@@ -80,6 +100,7 @@ fn solve_any(model: &Model, max_trials: usize) -> Result<Solution, SolveError> {
 #[derive(Default)]
 pub struct Resolver {
     kept: Option<system::Skeleton>,
+    work: Work,
 }
 
 impl Resolver {
@@ -93,14 +114,32 @@ impl Resolver {
             Some(s) => System::renew(model, s),
             None => System::new(model)?,
         };
-        let solved = solve_on(&system, MAX_TRIALS);
+        let solved = solve_on(&system, MAX_TRIALS, &mut self.work);
         self.kept = Some(system.into_skeleton());
         solved
     }
 }
 
-fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveError> {
+fn solve_on(
+    system: &System<'_>,
+    max_trials: usize,
+    work: &mut Work,
+) -> Result<Solution, SolveError> {
     let model = system.model;
+    let Work {
+        actions: a,
+        initial,
+        modes,
+        seen,
+        zero,
+        k,
+        target,
+        forces,
+        states,
+        q,
+        elong,
+        residual,
+    } = work;
     let k_full = system.stiffness();
     let mut warnings = Vec::new();
     let (kmin, kmax) = k_full.iter().fold((f64::INFINITY, 0.0f64), |(lo, hi), &k| {
@@ -109,19 +148,19 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
     if kmax > 1e12 * kmin {
         warnings.push(crate::warning::Warning::StiffnessSpread { ratio: kmax / kmin });
     }
-    let initial = initial_modes(model);
+    initial_modes(model, initial);
     let nonlinear: Vec<usize> = (0..model.parts.len())
         .filter(|&i| initial[i] != Mode::Linear)
         .collect();
-    let zero = vec![0.0; model.parts.len()];
+    zero.clear();
+    zero.resize(model.parts.len(), 0.0);
 
     let mut cache: Option<(u64, sparse::Factor<'_>)> = None;
     let mut combinations = Vec::new();
     for combo in &model.combinations {
-        let a = system.actions(&combo.name, &combo.terms, Take::ALL)?;
-        let mut modes = initial.clone();
-        // the states tried (a few: a linear model tries one)
-        let mut seen: Vec<u64> = Vec::with_capacity(4);
+        system.actions_into(a, &combo.name, &combo.terms, Take::ALL)?;
+        modes.clone_from(initial);
+        seen.clear();
         let mut trials = 0;
         // Flip every part whose state is wrong at once; if that comes back
         // to a state seen before, flip one part at a time, the most wrong
@@ -130,9 +169,9 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
         let mut single = false;
         let mut newton_tried = false;
         let mut previous: Option<Vec<Mode>> = None;
-        let (q, elong, k) = loop {
+        loop {
             trials += 1;
-            let key = state_hash(&modes);
+            let key = state_hash(modes);
             let new = !seen.contains(&key);
             if new {
                 seen.push(key);
@@ -153,7 +192,7 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                     }
                     // Flipping does not settle: let Newton find the set.
                     newton_tried = true;
-                    modes = newton_modes(system, &a, k_full, &initial, max_trials)?;
+                    *modes = newton_modes(system, a, k_full, initial, max_trials)?;
                     seen.clear();
                     continue;
                 }
@@ -168,36 +207,35 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                     span: combo.span,
                 });
             }
-            let k = engaged_stiffness(model, &modes, k_full);
+            engaged_stiffness(model, modes, k_full, k);
             if cache.as_ref().is_none_or(|(c, _)| *c != key) {
                 let slack_parts: Vec<usize> = nonlinear
                     .iter()
                     .copied()
                     .filter(|&i| modes[i] == Mode::Slack)
                     .collect();
-                match system.factor(&k, &slack_parts) {
+                match system.factor(k, &slack_parts) {
                     Ok(f) => cache = Some((key, f)),
                     Err(SolveError::Mechanism { .. }) if !newton_tried && previous.is_some() => {
                         // A trial state that cannot stand: let Newton find the set.
                         newton_tried = true;
                         single = true;
-                        modes = newton_modes(system, &a, k_full, &initial, max_trials)?;
+                        *modes = newton_modes(system, a, k_full, initial, max_trials)?;
                         seen.clear();
                         continue;
                     }
                     Err(e) => return Err(e),
                 }
             }
-            let target: Vec<f64> = (0..modes.len())
-                .map(|i| a.free[i] + law(model, i, modes[i]).1)
-                .collect();
+            target.clear();
+            target.extend((0..modes.len()).map(|i| a.free[i] + law(model, i, modes[i]).1));
             let Some((_, f)) = &cache else {
                 return Err(numeric(model, "no factorisation".into()));
             };
-            let (q, elong) = system.respond(f, &k, &target, &zero, &a);
-            let wrong = wrong_parts(model, &nonlinear, &modes, &elong, &a.free);
+            system.respond_into(f, k, target, zero, a, [q, elong, residual]);
+            let wrong = wrong_parts(model, &nonlinear, modes, elong, &a.free);
             if wrong.is_empty() {
-                break (q, elong, k);
+                break;
             }
             previous = Some(modes.clone());
             if single {
@@ -214,27 +252,26 @@ fn solve_on(system: &System<'_>, max_trials: usize) -> Result<Solution, SolveErr
                     modes[i] = m;
                 }
             }
-        };
-        let forces: Vec<f64> = (0..modes.len())
-            .map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1))
-            .collect();
-        let states: Vec<PartState> = modes
-            .iter()
-            .map(|m| {
-                if *m == Mode::Slack {
-                    PartState::Slack
-                } else {
-                    PartState::Elastic
-                }
-            })
-            .collect();
+        }
+        forces.clear();
+        forces.extend(
+            (0..modes.len()).map(|i| k[i] * (elong[i] - a.free[i] - law(model, i, modes[i]).1)),
+        );
+        states.clear();
+        states.extend(modes.iter().map(|m| {
+            if *m == Mode::Slack {
+                PartState::Slack
+            } else {
+                PartState::Elastic
+            }
+        }));
         let result = system.results(
             combo.name.clone(),
-            &q,
-            &a,
-            &elong,
-            &forces,
-            &states,
+            q,
+            a,
+            elong,
+            forces,
+            states,
             trials,
             ModeLaw::Elastic,
         );

@@ -362,7 +362,24 @@ impl<'m> System<'m> {
         forces: &[f64],
         a: &Actions,
     ) -> (Vec<f64>, Vec<f64>) {
-        let mut rhs = a.f_loads.clone();
+        let (mut q, mut elong, mut r) = (Vec::new(), Vec::new(), Vec::new());
+        self.respond_into(factor, k, target, forces, a, [&mut q, &mut elong, &mut r]);
+        (q, elong)
+    }
+
+    /// [`System::respond`] into `[q, elong, scratch]`, whose lists are
+    /// reused (a sweep's steps).
+    pub(super) fn respond_into(
+        &self,
+        factor: &sparse::Factor<'_>,
+        k: &[f64],
+        target: &[f64],
+        forces: &[f64],
+        a: &Actions,
+        [q, elong, r]: [&mut Vec<f64>; 3],
+    ) {
+        q.clone_from(&a.f_loads);
+        let rhs = q;
         let n = self.elems.n_parts;
         for (i, kk) in self.all_k(k) {
             // a bending mode aims at no deformation and carries no set force
@@ -378,14 +395,13 @@ impl<'m> System<'m> {
                 }
             }
         }
-        let f = rhs.clone();
-        factor.solve(&mut rhs);
-        let mut q = rhs;
+        r.clone_from(rhs);
+        factor.solve(rhs);
+        let q = rhs;
         // One step of iterative refinement: the residual f − K·q, solved
         // again with the same factor. A long chain of parts is ill-conditioned
         // (condition number ~ n²); refinement brings its equilibrium residual
         // from ~1e-7 to round-off of the largest force at 25,000 parts.
-        let mut r = f;
         for (i, kk) in self.all_k(k) {
             let g = self.elems.g(i);
             let s = kk * g.iter().map(|&(j, gj)| gj * q[j]).sum::<f64>();
@@ -395,17 +411,16 @@ impl<'m> System<'m> {
                 }
             }
         }
-        factor.solve(&mut r);
-        for (qj, dj) in q.iter_mut().zip(&r) {
+        factor.solve(r);
+        for (qj, dj) in q.iter_mut().zip(r.iter()) {
             *qj += dj;
         }
-        let elong =
-            a.e0.iter()
-                .take(n)
-                .enumerate()
-                .map(|(i, base)| base + self.elems.g(i).iter().map(|&(j, g)| g * q[j]).sum::<f64>())
-                .collect();
-        (q, elong)
+        elong.clear();
+        elong.extend(
+            a.e0.iter().take(n).enumerate().map(|(i, base)| {
+                base + self.elems.g(i).iter().map(|&(j, g)| g * q[j]).sum::<f64>()
+            }),
+        );
     }
 
     /// Results of a solved state, the bending modes' moments by `modes`.

@@ -222,8 +222,29 @@ impl<'a> Sweeper<'a> {
         for _ in 0..threads {
             evs.push(self.evaluator().map_err(|e| (Vec::new(), e))?);
         }
+        // the grid's steps in order, the first parameter fastest
+        let first = &axes[0];
+        let total: usize = axes.iter().map(|a| a.steps).product();
+        let point = |n: usize| {
+            let second = axes.get(1).map(|a| a.value(n / first.steps));
+            (first.value(n % first.steps), second)
+        };
+        // the checks' labels, from the first step (whose error is the
+        // sweep's first)
+        let labels = match evs.first_mut() {
+            Some(ev) if total > 0 => {
+                let (value, second) = point(0);
+                let values: Vec<Quantity> = std::iter::once(value).chain(second).collect();
+                match ev.at(&values) {
+                    Ok(_) => ev.labels(),
+                    Err(e) => return Err((values, e)),
+                }
+            }
+            _ => Vec::new(),
+        };
         let mut feed = Feed {
             head: None,
+            labels,
             axes,
             shown: &self.shown,
             seeker: match seek {
@@ -236,13 +257,6 @@ impl<'a> Sweeper<'a> {
             sink,
             done: 0,
             progress,
-        };
-        // the grid's steps in order, the first parameter fastest
-        let first = &axes[0];
-        let total: usize = axes.iter().map(|a| a.steps).product();
-        let point = |n: usize| {
-            let second = axes.get(1).map(|a| a.value(n / first.steps));
-            (first.value(n % first.steps), second)
         };
         let compute = |evs: &mut Vec<Evaluator<'_>>, from: usize| -> Batch {
             let n = BATCH.min(total - from);
@@ -362,6 +376,8 @@ fn io_failed(e: &std::io::Error) -> Failed {
 /// seek between neighbours, the sink, the progress.
 struct Feed<'a, 'f> {
     head: Option<Head>,
+    /// The checks' labels, for the head.
+    labels: Vec<String>,
     axes: &'a [Axis],
     shown: &'a [Shown],
     seeker: Option<(seek::Seeker, Evaluator<'f>)>,
@@ -384,12 +400,7 @@ impl Feed<'_, '_> {
             if self.head.is_none() {
                 let h = Head {
                     axes: self.axes.to_vec(),
-                    labels: e
-                        .checks
-                        .governing()
-                        .iter()
-                        .map(|o| o.label.to_string())
-                        .collect(),
+                    labels: std::mem::take(&mut self.labels),
                     shown: self.shown.to_vec(),
                     shown_dims: e.shown.iter().map(|q| q.dim).collect(),
                 };
