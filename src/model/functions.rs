@@ -216,7 +216,19 @@ pub const FUNCTIONS: &[Function] = &[
 /// The built-in function of this name.
 #[must_use]
 pub fn find(name: &str) -> Option<&'static Function> {
-    FUNCTIONS.iter().find(|f| f.name == name)
+    // by a map made once: a sweep calls a function hundreds of thousands
+    // of times, and the table is searched by name each time
+    static INDEX: std::sync::OnceLock<foldhash::HashMap<&'static str, usize>> =
+        std::sync::OnceLock::new();
+    let index = INDEX.get_or_init(|| {
+        let mut m = foldhash::HashMap::default();
+        for (i, f) in FUNCTIONS.iter().enumerate() {
+            // the first of a name wins, as in table order
+            m.entry(f.name).or_insert(i);
+        }
+        m
+    });
+    index.get(name).map(|&i| &FUNCTIONS[i])
 }
 
 /// The names of the built-in functions, in the table's order.

@@ -70,13 +70,21 @@ impl FreeSource {
 /// (part, source), by part; each part's in the order they add up: its
 /// misfit, then each case's temperature and free strain.
 pub fn free_sources(model: &Model, terms: &[(usize, f64)]) -> Vec<(usize, FreeSource)> {
-    let mut out: Vec<(usize, FreeSource)> = model
-        .parts
-        .iter()
-        .enumerate()
-        .filter(|(_, p)| p.misfit.value != 0.0)
-        .map(|(i, p)| (i, FreeSource::Misfit(p.misfit.value)))
-        .collect();
+    let mut out = Vec::new();
+    each_free_source(model, terms, |i, s| out.push((i, s)));
+    // stable: each part's sources keep the order they add up in
+    out.sort_by_key(|(i, _)| *i);
+    out
+}
+
+/// [`free_sources`] handed to `f` one by one, not by part: each part's
+/// still come in the order they add up, so sums per part are the same.
+fn each_free_source(model: &Model, terms: &[(usize, f64)], mut f: impl FnMut(usize, FreeSource)) {
+    for (i, p) in model.parts.iter().enumerate() {
+        if p.misfit.value != 0.0 {
+            f(i, FreeSource::Misfit(p.misfit.value));
+        }
+    }
     for &(ci, factor) in terms {
         let case = &model.cases[ci];
         if !case.temperatures.is_empty() {
@@ -86,7 +94,7 @@ pub fn free_sources(model: &Model, terms: &[(usize, f64)]) -> Vec<(usize, FreeSo
                     continue;
                 };
                 if let Some(alpha) = model.materials[m].alpha {
-                    out.push((
+                    f(
                         i,
                         FreeSource::Thermal {
                             factor,
@@ -94,24 +102,21 @@ pub fn free_sources(model: &Model, terms: &[(usize, f64)]) -> Vec<(usize, FreeSo
                             change: t.change.value,
                             length: p.length.value,
                         },
-                    ));
+                    );
                 }
             }
         }
         for s in &case.strains {
-            out.push((
+            f(
                 s.part,
                 FreeSource::Strain {
                     factor,
                     strain: s.strain.value,
                     length: model.parts[s.part].length.value,
                 },
-            ));
+            );
         }
     }
-    // stable: each part's sources keep the order they add up in
-    out.sort_by_key(|(i, _)| *i);
-    out
 }
 
 /// Which actions of the cases to take.
@@ -173,7 +178,7 @@ impl System<'_> {
         along.clear();
         along.resize(model.parts.len(), [0.0; 2]);
         zeroed(free, model.parts.len());
-        for (i, source) in free_sources(model, terms) {
+        each_free_source(model, terms, |i, source| {
             let wanted = match source {
                 FreeSource::Misfit(_) => take.misfit,
                 FreeSource::Thermal { .. } | FreeSource::Strain { .. } => take.strains,
@@ -181,7 +186,7 @@ impl System<'_> {
             if wanted {
                 free[i] += source.value();
             }
-        }
+        });
         let mut moved: crate::FixedMap<(usize, usize), f64> = crate::FixedMap::default();
         for &(ci, factor) in terms {
             let case = &model.cases[ci];

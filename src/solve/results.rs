@@ -397,11 +397,15 @@ pub(super) fn gather_results(
     // moments gather the modes' and the fixed-end moments of the load along
     let np = model.parts.len();
     let mut end_m: Vec<[f64; 2]> = Vec::new();
-    let mut beam_of = vec![usize::MAX; np];
-    for (i, p) in model.parts.iter().enumerate() {
-        if p.bend.is_some() {
-            beam_of[i] = end_m.len();
-            end_m.push([0.0; 2]);
+    // each beam's place among the beams (none made for a calc without one)
+    let mut beam_of = Vec::new();
+    if model.parts.iter().any(|p| p.bend.is_some()) {
+        beam_of.resize(np, usize::MAX);
+        for (i, p) in model.parts.iter().enumerate() {
+            if p.bend.is_some() {
+                beam_of[i] = end_m.len();
+                end_m.push([0.0; 2]);
+            }
         }
     }
     // E·I for the deflection, relative to the elastic

@@ -191,7 +191,12 @@ impl Builder {
         }
         Some(Material {
             derived,
-            name: nb.name.name.to_string(),
+            // a rebuild keeps the name it has
+            name: if self.numbers_only {
+                String::new()
+            } else {
+                nb.name.name.to_string()
+            },
             e: si_pressure(e),
             alpha,
             yield_strength,

@@ -165,7 +165,7 @@ struct Builder {
     /// The `let`s (by file order) in the order they were evaluated.
     let_order: Vec<usize>,
     /// A [`Rebuild`]'s update: what does not change with the values (a
-    /// material's published sources and the expressions the report
+    /// material's name, its published sources and the expressions the report
     /// substitutes) is kept from the first build, not made again.
     numbers_only: bool,
 }

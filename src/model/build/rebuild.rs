@@ -226,6 +226,7 @@ impl<'f> Rebuild<'f> {
         for &(nb, at) in &self.materials {
             if let Some(mut m) = b.material(nb, &scope) {
                 let old = &mut model.materials[at];
+                m.name = std::mem::take(&mut old.name);
                 m.e_sources = std::mem::take(&mut old.e_sources);
                 m.derived = std::mem::take(&mut old.derived);
                 *old = m;

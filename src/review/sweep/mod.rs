@@ -114,8 +114,9 @@ fn errors<E: Into<Error>>(es: Vec<E>) -> Vec<Error> {
     es.into_iter().map(Into::into).collect()
 }
 
-/// Steps solved together on the cores before they are handed on in order.
-const BATCH: usize = 1024;
+/// Steps solved together on the cores before they are handed on in order
+/// (enough that a core finishing its last run early waits little).
+const BATCH: usize = 4096;
 
 /// Cores a sweep uses at most.
 const MAX_THREADS: usize = 64;
