@@ -138,6 +138,11 @@ impl Pattern {
 
     /// Factorise the matrix with these values.
     pub fn factor(&self, values: &[f64]) -> Result<Factor<'_>, Failure> {
+        self.factor_by(values, false)
+    }
+
+    /// [`Pattern::factor`]; `library`: by the library even for one unknown.
+    fn factor_by(&self, values: &[f64], library: bool) -> Result<Factor<'_>, Failure> {
         let n = self.n;
         let mut scale = vec![0.0; n];
         for (j, s) in scale.iter_mut().enumerate() {
@@ -152,6 +157,19 @@ impl Pattern {
             for p in self.col_ptr[j]..self.col_ptr[j + 1] {
                 scaled[p] *= scale[self.row_idx[p]] * scale[j];
             }
+        }
+        if n == 1 && !library {
+            // One unknown (two parts sharing one movement: a filled pipe, a
+            // bolt and its sleeve) needs no factorisation library: after
+            // the scaling its matrix is [1] up to round-off, L = [√1], and
+            // no pivot can be small. The same arithmetic as the library's.
+            return Ok(Factor {
+                pattern: self,
+                l: vec![scaled[0].sqrt()],
+                scale,
+                mem: std::cell::RefCell::new(MemBuffer::new(faer::dyn_stack::StackReq::EMPTY)),
+                one: true,
+            });
         }
         let mut l = vec![0.0; self.symbolic.len_val()];
         let par = Par::Seq;
@@ -189,6 +207,7 @@ impl Pattern {
             l,
             scale,
             mem: std::cell::RefCell::new(mem),
+            one: false,
         };
         if let Some(mode) = factor.mechanism_mode() {
             return Err(Failure::Mechanism(mode));
@@ -204,6 +223,8 @@ pub(crate) struct Factor<'p> {
     scale: Vec<f64>,
     /// Scratch for the solves (made once with the factorisation).
     mem: std::cell::RefCell<MemBuffer>,
+    /// One unknown, factorised and solved without the library.
+    one: bool,
 }
 
 impl Factor<'_> {
@@ -221,6 +242,12 @@ impl Factor<'_> {
     /// Solve with the scaled matrix, in place.
     fn solve_scaled(&self, b: &mut [f64]) {
         let n = self.pattern.n;
+        if self.one {
+            // L y = b, then Lᵀ x = y, each by the pivot's reciprocal
+            let r = 1.0 / self.l[0];
+            b[0] = b[0] * r * r;
+            return;
+        }
         let llt = LltRef::new(&self.pattern.symbolic, &self.l);
         let par = Par::Seq;
         let rhs = MatMut::from_column_major_slice_mut(b, n, 1);
@@ -271,5 +298,40 @@ impl Factor<'_> {
             .collect();
         self.solve_scaled(&mut y);
         Some(y.iter().zip(&self.scale).map(|(v, s)| v * s).collect())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The one-unknown path gives the library's numbers to the last bit
+    /// (the reference: faer's own factorisation and solve of the same
+    /// 1 × 1 matrix).
+    #[test]
+    fn one_unknown_matches_the_library_bit_for_bit() {
+        let Ok(pattern) = Pattern::new(1, |pair| pair(0, 0)) else {
+            panic!("a 1 × 1 pattern");
+        };
+        let mut seed: u64 = 0x9E37_79B9_7F4A_7C15;
+        let mut next = || {
+            seed ^= seed << 13;
+            seed ^= seed >> 7;
+            seed ^= seed << 17;
+            (seed >> 11) as f64 / (1u64 << 53) as f64
+        };
+        for _ in 0..2000 {
+            // stiffnesses from 1e3 to 1e12 N/m, loads of either sign
+            let k = 10f64.powf(3.0 + 9.0 * next());
+            let b = (next() - 0.5) * 10f64.powf(6.0 * next());
+            let (Ok(fast), Ok(lib)) = (pattern.factor(&[k]), pattern.factor_by(&[k], true)) else {
+                panic!("k = {k} factorises");
+            };
+            assert!(fast.one && !lib.one);
+            let (mut x, mut y) = ([b], [b]);
+            fast.solve(&mut x);
+            lib.solve(&mut y);
+            assert_eq!(x[0].to_bits(), y[0].to_bits(), "k = {k}, b = {b}");
+        }
     }
 }
