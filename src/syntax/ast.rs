@@ -359,6 +359,25 @@ pub struct UnitFactor {
     pub span: Span,
 }
 
+impl std::fmt::Display for UnitExpr {
+    /// The unit as written, in canonical form: `kip/ft`, `in^2`, `kN*m`.
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        for (i, u) in self.factors.iter().enumerate() {
+            let op = match (i, u.divide) {
+                (0, _) => "",
+                (_, true) => "/",
+                (_, false) => "*",
+            };
+            f.write_str(op)?;
+            f.write_str(&u.name)?;
+            if u.power != 1 {
+                write!(f, "^{}", u.power)?;
+            }
+        }
+        Ok(())
+    }
+}
+
 impl Decl {
     /// Every expression the declaration writes (not those inside them), in
     /// order: what a walk over a file's names and units visits.

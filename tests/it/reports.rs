@@ -576,6 +576,30 @@ fn length_unit_follows_the_size_of_the_assembly() {
     assert!(listed.contains("0.2000 mm"), "{listed}");
 }
 
+/// A `let` written as one number with a unit is shown in that unit, in the
+/// inputs and in the sensitivity table alike: a load per length is not
+/// turned into a stiffness unit, nor a millimetre into feet in a US calc
+/// (common practice: the reviewer finds the file's own value).
+#[test]
+fn a_let_shows_in_the_unit_it_is_written_in() {
+    let text = "let w = 0.4 kip/ft\nlet span = 12 ft\nlet h = 250 mm\nlet twice = 2 * w\n\
+                material s { E = 29000 ksi; allowable = 20 ksi }\nnode a at 0 ft\nnode b at span\nfix a\n\
+                part r { material = s; area = 1 in^2; ends = a, b }\n\
+                load b = w * span + h * twice\ncheck \"r\" : r.stress <= 20 ksi\n";
+    let src = tandem::source::Source::new("w.tandem", text.to_string());
+    let mut a = tandem::analyse(&src).expect("solves");
+    tandem::with_sensitivity(&src, &mut a);
+    let d = tandem::report::Display::for_model(&a.model, 4);
+    let md = tandem::report::markdown::report(&src, &a, &d);
+    assert!(md.contains("| w | `0.4 kip/ft` | 0.4000 kip/ft |"), "{md}");
+    assert!(md.contains("| h | `250 mm` | 250.0 mm |"), "{md}");
+    // a derived `let` keeps the calc's unit for its kind (1 kip/ft is
+    // 1/12 kip/in exactly: 0.8 kip/ft = 0.06667 kip/in)
+    assert!(md.contains("0.06667 kip/in |"), "{md}");
+    assert!(md.contains("| `w` | 0.4000 kip/ft |"), "{md}");
+    assert!(md.contains("| `span` | 12.00 ft |"), "{md}");
+}
+
 /// A part with a buckling length that is never in compression has no
 /// compression to compare with its Euler load; the table says so rather
 /// than printing a zero force.

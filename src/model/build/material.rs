@@ -68,25 +68,7 @@ impl Builder {
                 let mut out: Vec<(String, Quantity)> = Vec::new();
                 for ue in list {
                     if let Some(q) = self.ok(crate::model::eval::unit_value(ue)) {
-                        let text = ue
-                            .factors
-                            .iter()
-                            .enumerate()
-                            .map(|(i, f)| {
-                                let op = if i == 0 {
-                                    ""
-                                } else if f.divide {
-                                    "/"
-                                } else {
-                                    "*"
-                                };
-                                if f.power == 1 {
-                                    format!("{op}{}", f.name)
-                                } else {
-                                    format!("{op}{}^{}", f.name, f.power)
-                                }
-                            })
-                            .collect::<String>();
+                        let text = ue.to_string();
                         if let Some((first, _)) = out.iter().find(|(_, o)| o.dim == q.dim) {
                             self.errors.push(ModelError::SameKindUnits {
                                 first: first.clone(),

@@ -19,8 +19,17 @@ pub(super) fn section(doc: &mut Doc, f: &Fmt<'_>, source: &Source, model: &Model
     cases(doc, f, model);
 }
 
-/// A `let`'s value as the report shows it.
-fn shown(f: &Fmt<'_>, l: &crate::model::LetValue) -> String {
+/// A `let`'s value as the report shows it: in the unit it is written in
+/// when it is one number with a unit (`0.4 kip/ft`, `250 mm`: the reader
+/// finds the file's own value), else in the calc's unit for its kind.
+pub(super) fn shown(f: &Fmt<'_>, l: &crate::model::LetValue) -> String {
+    if let crate::syntax::ast::ExprKind::Quantity { unit: Some(u), .. } = &l.expr.kind {
+        if let Ok(unit) = crate::model::eval::unit_value(u) {
+            if unit.dim == l.value.dim && unit.value != 0.0 {
+                return format!("{} {u}", number(l.value.value / unit.value, f.d.digits));
+            }
+        }
+    }
     if l.value.dim == Dimension::LENGTH {
         f.length(l.value.value)
     } else {

@@ -48,7 +48,12 @@ pub(super) fn sensitivity_section(doc: &mut Doc, f: &Fmt<'_>, a: &crate::Analysi
         .map(|i| {
             vec![
                 format!("`{}`", i.name),
-                f.d.quantity(i.value),
+                // as the inputs section shows the `let`
+                a.model
+                    .lets
+                    .iter()
+                    .find(|l| l.name == i.name)
+                    .map_or_else(|| f.d.quantity(i.value), |l| super::inputs::shown(f, l)),
                 influence(f, i.governing, i.method, i.value),
                 match (&i.failed, i.method) {
                     (Some(why), _) => format!("not evaluated: {}", text(why)),
