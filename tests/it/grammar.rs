@@ -279,3 +279,82 @@ fn the_vscode_manifest_registers_the_grammar_and_the_server() {
     assert!(main.contains("args: [\"lsp\"]"), "{main}");
     assert!(dir.join("language-configuration.json").exists());
 }
+
+/// `x`, `y` and `rotation` are directions only after the node they hold
+/// or move (`fix a x`, `settle a y = ...`); elsewhere `x` is a name like
+/// any other and is coloured as one.
+#[test]
+fn directions_are_keywords_only_where_they_are_directions() {
+    let Some(dir) = tokenizer() else {
+        return;
+    };
+    let calc = dir.join("axes.tandem");
+    std::fs::write(
+        &calc,
+        "node x at (0 m, 0 m)\nfix x y, b rotation # held\ncase c { settle x y = 5 mm; load x = (1 kN, 0 kN) }\n",
+    )
+    .expect("write");
+    let out = Command::new("node")
+        .current_dir(&dir)
+        .arg("tokenize.js")
+        .arg(root().join("editors/tandem.tmLanguage.json"))
+        .arg(&calc)
+        .output()
+        .expect("node");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let tokens: Value = serde_json::from_slice(&out.stdout).expect("tokens");
+    let lines = &tokens[calc.to_string_lossy().as_ref()];
+    let text = [
+        "node x at (0 m, 0 m)",
+        "fix x y, b rotation # held",
+        "case c { settle x y = 5 mm; load x = (1 kN, 0 kN) }",
+    ];
+    // the scopes of the token holding UTF-16 offset `col` of line `i`
+    let scope_of = |i: usize, col: usize| -> String {
+        let col = u64::try_from(col).unwrap_or(u64::MAX);
+        lines[i]
+            .as_array()
+            .expect("tokens")
+            .iter()
+            .find(|t| t[0].as_u64().unwrap_or(0) <= col && col < t[1].as_u64().unwrap_or(0))
+            .map(|t| t[2].to_string())
+            .unwrap_or_default()
+    };
+    let at = |i: usize, word: &str, nth: usize| -> String {
+        let col = text[i]
+            .match_indices(word)
+            .nth(nth)
+            .map(|(c, _)| c)
+            .expect("word");
+        scope_of(i, col)
+    };
+    assert!(at(1, "fix", 0).contains("keyword.other.tandem"));
+    assert!(
+        scope_of(1, 4).contains("variable.other"),
+        "{}",
+        scope_of(1, 4)
+    );
+    assert!(
+        at(1, "y", 0).contains("keyword.other.axis"),
+        "{}",
+        at(1, "y", 0)
+    );
+    assert!(at(1, "rotation", 0).contains("keyword.other.axis"));
+    assert!(at(1, "#", 0).contains("comment"));
+    assert!(at(2, "settle", 0).contains("keyword.other.tandem"));
+    // `settle x y`: the node, then its direction
+    let x_in_settle = text[2].find("settle x").map(|c| c + 7).expect("settle");
+    assert!(scope_of(2, x_in_settle).contains("variable.other"));
+    assert!(scope_of(2, x_in_settle + 2).contains("keyword.other.axis"));
+    // `load x = ...`: a name, not a keyword
+    let x_in_load = text[2].find("load x").map(|c| c + 5).expect("load");
+    assert!(
+        !scope_of(2, x_in_load).contains("keyword"),
+        "{}",
+        scope_of(2, x_in_load)
+    );
+}
