@@ -188,14 +188,19 @@ fn name_of(uri: &str) -> String {
 pub fn serve() -> Result<(), String> {
     let (conn, threads) = Connection::stdio();
     let (id, _params) = conn.initialize_start().map_err(|e| e.to_string())?;
-    conn.initialize_finish(
-        id,
-        json!({
-            "capabilities": capabilities(),
-            "serverInfo": {"name": "tandem", "version": env!("CARGO_PKG_VERSION")},
-        }),
-    )
-    .map_err(|e| e.to_string())?;
+    // The answer is sent here rather than by `initialize_finish`, which
+    // stops the server when the next message is not `initialized`: a
+    // client that skips that notification (or sends a request first) is
+    // served all the same, and `initialized` is ignored when it comes.
+    conn.sender
+        .send(Message::Response(Response::new_ok(
+            id,
+            json!({
+                "capabilities": capabilities(),
+                "serverInfo": {"name": "tandem", "version": env!("CARGO_PKG_VERSION")},
+            }),
+        )))
+        .map_err(|e| e.to_string())?;
     let mut server = Server {
         docs: HashMap::new(),
     };

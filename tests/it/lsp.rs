@@ -350,6 +350,36 @@ fn the_language_server_answers_an_editor() {
     assert!(status.success());
 }
 
+/// A client that does not send `initialized` after the answer to
+/// `initialize` (the protocol asks for it; some scripts and test clients
+/// skip it) is served all the same, and one that sends it late too.
+#[test]
+fn a_client_that_skips_initialized_is_served() {
+    let mut c = Client::start();
+    let (init, _) = c.request(
+        "initialize",
+        json!({"processId": null, "rootUri": null, "capabilities": {}}),
+    );
+    assert_eq!(init["capabilities"]["hoverProvider"], true, "{init}");
+    let uri = "file:///calcs/quick.tandem";
+    let bad = example("filled_post.tandem").replacen("material = fill", "material = fil", 1);
+    c.notify(
+        "textDocument/didOpen",
+        json!({"textDocument": {"uri": uri, "languageId": "tandem", "version": 1, "text": bad}}),
+    );
+    assert_eq!(c.diagnostics(uri).len(), 1);
+    // `initialized` arriving late is no message the server stops on
+    c.notify("initialized", json!({}));
+    let (symbols, _) = c.request(
+        "textDocument/documentSymbol",
+        json!({"textDocument": {"uri": uri}}),
+    );
+    assert!(
+        symbols.as_array().is_some_and(|s| !s.is_empty()),
+        "{symbols}"
+    );
+}
+
 /// A real client: headless Neovim (Debian's package) attaches the server to
 /// a calc with an error and reads back the diagnostic and a hover
 /// (editors/nvim/check.sh). Skipped with a notice when `nvim` is absent.
