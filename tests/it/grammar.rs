@@ -70,6 +70,14 @@ fn the_grammars_words_are_the_languages() {
 /// node and npm, with the two packages installed once under the target
 /// folder; `None` (with a notice) when they cannot be had.
 fn tokenizer() -> Option<PathBuf> {
+    // set up once for every test that tokenizes: tests run in parallel,
+    // and a second `npm install` into the same folder would pull files
+    // from under the first one's feet
+    static READY: std::sync::OnceLock<Option<PathBuf>> = std::sync::OnceLock::new();
+    READY.get_or_init(install_tokenizer).clone()
+}
+
+fn install_tokenizer() -> Option<PathBuf> {
     if Command::new("node").arg("--version").output().is_err()
         || Command::new("npm").arg("--version").output().is_err()
     {
@@ -93,6 +101,24 @@ fn tokenizer() -> Option<PathBuf> {
         }
     }
     Some(dir)
+}
+
+/// Each file's tokens by the grammar through vscode-textmate, as
+/// `tokenize.js` prints them (`dir`: [`tokenizer`]'s folder).
+fn tokenize(dir: &Path, files: &[PathBuf]) -> Value {
+    let out = Command::new("node")
+        .current_dir(dir)
+        .arg("tokenize.js")
+        .arg(root().join("editors/tandem.tmLanguage.json"))
+        .args(files)
+        .output()
+        .expect("node");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    serde_json::from_slice(&out.stdout).expect("tokens")
 }
 
 /// Comment starts (`#` outside strings) of a line, as UTF-16 offsets.
@@ -122,19 +148,7 @@ fn every_example_gets_its_scopes() {
         .filter(|p| p.extension().is_some_and(|x| x == "tandem"))
         .collect();
     files.sort();
-    let out = Command::new("node")
-        .current_dir(&dir)
-        .arg("tokenize.js")
-        .arg(root().join("editors/tandem.tmLanguage.json"))
-        .args(&files)
-        .output()
-        .expect("node");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let tokens: Value = serde_json::from_slice(&out.stdout).expect("tokens");
+    let tokens = tokenize(&dir, &files);
     let grammar_words = {
         let g = grammar();
         let mut w = alternation(&g, "declaration");
@@ -294,19 +308,7 @@ fn directions_are_keywords_only_where_they_are_directions() {
         "node x at (0 m, 0 m)\nfix x y, b rotation # held\ncase c { settle x y = 5 mm; load x = (1 kN, 0 kN) }\n",
     )
     .expect("write");
-    let out = Command::new("node")
-        .current_dir(&dir)
-        .arg("tokenize.js")
-        .arg(root().join("editors/tandem.tmLanguage.json"))
-        .arg(&calc)
-        .output()
-        .expect("node");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    let tokens: Value = serde_json::from_slice(&out.stdout).expect("tokens");
+    let tokens = tokenize(&dir, std::slice::from_ref(&calc));
     let lines = &tokens[calc.to_string_lossy().as_ref()];
     let text = [
         "node x at (0 m, 0 m)",
