@@ -145,3 +145,20 @@ pub fn tandem(args: &[&str]) -> std::process::Output {
         .output()
         .expect("run tandem")
 }
+
+/// Run `git args` in `dir` as a throwaway identity, asserting it succeeds;
+/// its standard output, trimmed.
+pub fn git(dir: &std::path::Path, args: &[&str]) -> String {
+    let out = std::process::Command::new("git")
+        .current_dir(dir)
+        .args(["-c", "user.name=t", "-c", "user.email=t@example.invalid"])
+        .args(args)
+        .output()
+        .expect("git");
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    String::from_utf8_lossy(&out.stdout).trim().to_string()
+}

@@ -328,13 +328,7 @@ fn diff_reads_both_sides_from_git_relative_to_the_current_folder() {
     let sub = root.join("calcs");
     std::fs::create_dir_all(&sub).expect("sub");
     let git = |args: &[&str]| {
-        let out = Command::new("git")
-            .current_dir(root)
-            .args(["-c", "user.name=t", "-c", "user.email=t@example.com"])
-            .args(args)
-            .output()
-            .expect("git");
-        assert!(out.status.success(), "{}", text(&out.stderr));
+        super::common::git(root, args);
     };
     git(&["init", "-q"]);
     std::fs::write(sub.join("rod.tandem"), GOOD).expect("v1");

@@ -11,7 +11,7 @@ fn root() -> PathBuf {
     PathBuf::from(env!("CARGO_MANIFEST_DIR"))
 }
 
-use super::common::tandem;
+use super::common::{git, tandem};
 
 const PAIRS: &[(&str, i32)] = &[
     ("wall", 0),
@@ -144,17 +144,7 @@ fn old_revision_from_git() {
     let _ = std::fs::remove_dir_all(&dir);
     std::fs::create_dir_all(dir.join("calcs")).expect("mkdir");
     let git = |args: &[&str]| {
-        let out = Command::new("git")
-            .current_dir(&dir)
-            .args(["-c", "user.name=t", "-c", "user.email=t@example.invalid"])
-            .args(args)
-            .output()
-            .expect("git");
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        git(&dir, args);
     };
     git(&["init", "-q"]);
     let calc = dir.join("calcs/post.tandem");

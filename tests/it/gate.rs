@@ -7,6 +7,8 @@ use std::collections::HashMap;
 use std::path::Path;
 use std::process::Command;
 
+use super::common::git;
+
 /// One step of the workflow: its id and its `run:` block.
 struct Step {
     id: Option<String>,
@@ -62,21 +64,6 @@ fn steps(yaml: &str) -> Vec<Step> {
         i += 1;
     }
     out
-}
-
-fn git(dir: &Path, args: &[&str]) -> String {
-    let out = Command::new("git")
-        .current_dir(dir)
-        .args(["-c", "user.name=t", "-c", "user.email=t@example.com"])
-        .args(args)
-        .output()
-        .expect("git");
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
-    String::from_utf8_lossy(&out.stdout).trim().to_string()
 }
 
 const ROD: &str = "let a = 1 m\nnode x at 0 m\nnode y at a\nfix x\nmaterial s { E = 200 GPa }\npart p { material = s; area = 100 mm^2; ends = x, y }\nload y = 1 kN\ncheck \"rod stress\" : p.stress <= 100 MPa\n";

@@ -118,6 +118,14 @@ impl Client {
     }
 }
 
+/// A hover answer's Markdown text (empty when there is none).
+fn hover_text(h: &Value) -> String {
+    h["contents"]["value"]
+        .as_str()
+        .unwrap_or_default()
+        .to_string()
+}
+
 fn example(name: &str) -> String {
     std::fs::read_to_string(
         std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -200,19 +208,13 @@ fn the_language_server_answers_an_editor() {
     // hover: a let's expression and value, a part's E, A, L and k, a
     // unit's factor, a function's signature and source
     let h = ask(&mut c, "textDocument/hover", at(&good, "0.45 * fc", 0, 8));
-    let text = h["contents"]["value"]
-        .as_str()
-        .unwrap_or_default()
-        .to_string();
+    let text = hover_text(&h);
     assert!(
         text.contains("let fc") && text.contains("= 5 ksi"),
         "{text}"
     );
     let h = ask(&mut c, "textDocument/hover", at(&good, "part core", 0, 6));
-    let text = h["contents"]["value"]
-        .as_str()
-        .unwrap_or_default()
-        .to_string();
+    let text = hover_text(&h);
     assert!(
         text.contains("E = ")
             && text.contains("A = ")
@@ -221,20 +223,14 @@ fn the_language_server_answers_an_editor() {
         "{text}"
     );
     let h = ask(&mut c, "textDocument/hover", at(&good, "5 ksi", 0, 3));
-    let text = h["contents"]["value"]
-        .as_str()
-        .unwrap_or_default()
-        .to_string();
+    let text = hover_text(&h);
     // 1 ksi = 6 894 757.293 168 36 Pa (NIST SP 811, B.8)
     assert!(
         text.contains("unit `ksi`") && text.contains("6894757.293"),
         "{text}"
     );
     let h = ask(&mut c, "textDocument/hover", at(&good, "ring(", 0, 1));
-    let text = h["contents"]["value"]
-        .as_str()
-        .unwrap_or_default()
-        .to_string();
+    let text = hover_text(&h);
     assert!(text.contains("ring("), "{text}");
     // go to definition: `cap` in `load cap` is `node cap`
     let v = ask(
@@ -334,12 +330,7 @@ fn the_language_server_answers_an_editor() {
         "{names:?}"
     );
     let h = ask(&mut c, "textDocument/hover", at(&half, "0.45 * fc", 0, 8));
-    assert!(
-        h["contents"]["value"]
-            .as_str()
-            .is_some_and(|t| t.contains("let fc")),
-        "{h}"
-    );
+    assert!(hover_text(&h).contains("let fc"), "{h}");
     // every answer is quick (the issue asks 50 ms; this debug build is
     // slower than a release one, so the bound here is generous)
     assert!(slowest < Duration::from_millis(250), "{slowest:?}");
