@@ -124,7 +124,8 @@ pub enum Command {
         /// (several inputs).
         #[arg(short, long, value_name = "OUT")]
         output: Option<PathBuf>,
-        /// Write a self-contained HTML page instead of Markdown.
+        /// Write a self-contained HTML page instead of Markdown (also when
+        /// `-o` names one `.html` or `.htm` file).
         #[arg(long)]
         html: bool,
         /// Also write parts.csv, nodes.csv and checks.csv into this folder

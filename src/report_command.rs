@@ -129,6 +129,14 @@ pub(crate) fn report(
                 .collect()
         }
     };
+    // `-o post.html` asks for HTML as plainly as `--html` does
+    let html = html
+        || (files.len() == 1
+            && targets.first().and_then(Option::as_ref).is_some_and(|t| {
+                t.extension().is_some_and(|e| {
+                    e.eq_ignore_ascii_case("html") || e.eq_ignore_ascii_case("htm")
+                })
+            }));
     // Two inputs whose reports would land on one file: refused before
     // anything is written.
     let mut seen: std::collections::HashMap<&Path, &Path> = std::collections::HashMap::new();

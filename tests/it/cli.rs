@@ -245,3 +245,29 @@ fn readme_calc_solves() {
     assert_eq!(a.model.parts.len(), 2);
     assert_eq!(a.checks.failures(), 0);
 }
+
+/// `-o FILE.html` writes the HTML page, as `--html` does; `-o FILE.md`
+/// and standard output stay Markdown.
+#[test]
+fn an_html_file_name_asks_for_html() {
+    let dir = tempfile::tempdir().expect("dir");
+    let post = concat!(env!("CARGO_MANIFEST_DIR"), "/examples/filled_post.tandem");
+    for (name, html) in [("post.html", true), ("POST.HTM", true), ("post.md", false)] {
+        let out = dir.path().join(name);
+        let o = tandem(&["report", post, "-o", &out.to_string_lossy()]);
+        assert_eq!(
+            o.status.code(),
+            Some(0),
+            "{}",
+            String::from_utf8_lossy(&o.stderr)
+        );
+        let text = std::fs::read_to_string(&out).expect("report");
+        assert_eq!(
+            text.contains("<html"),
+            html,
+            "{name}: {}",
+            text.chars().take(80).collect::<String>()
+        );
+        assert_eq!(text.starts_with("# "), !html, "{name}");
+    }
+}
