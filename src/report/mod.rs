@@ -122,6 +122,7 @@ th { background: #eee; }
 code { font-family: 'DejaVu Sans Mono', Menlo, monospace; font-size: .9em; }
 li { margin: .15em 0; }
 figure.drawing { margin: 1em 0; break-inside: avoid; page-break-inside: avoid; }
+p:has(+ figure.drawing) { break-after: avoid-page; page-break-after: avoid; }
 figure.drawing svg { max-width: 100%; height: auto; }
 figcaption { font-size: .9em; font-style: italic; }
 @media print { body { margin: 0; max-width: none; padding: 0; font-size: 10pt; } table { font-size: 8.5pt; } h2 { break-before: auto; } a { color: inherit; text-decoration: none; } }

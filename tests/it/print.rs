@@ -92,6 +92,31 @@ fn bundle() -> String {
     s
 }
 
+/// Invented demo: a door lintel hung from three rods of different lengths
+/// and metals, drawn taller than half a sheet.
+const LINTEL: &str = "calc {
+  title    = \"Door lintel L-4: three hangers sharing a hoist load\"
+  number   = \"HBS-012\"
+  revision = \"B\"
+}
+material steel { E = 29000 ksi; allowable = 0.6 * 36 ksi }
+material bronze { E = 16000 ksi; allowable = 14 ksi }
+node a  at (0 ft, 0 ft)
+node b  at (6 ft, 0 ft)
+node c  at (14 ft, 0 ft)
+node h  at (10 ft, 0 ft)
+node ta at (0 ft, 9 ft)
+node tb at (6 ft, 6 ft)
+node tc at (14 ft, 12 ft)
+fix ta, tb, tc
+fix a x
+rigid lintel { nodes = a, b, c, h }
+part hang_a { material = steel;  area = circle(d = 0.625 in); ends = a, ta }
+part hang_b { material = bronze; area = circle(d = 0.75 in);  ends = b, tb }
+part hang_c { material = steel;  area = circle(d = 0.625 in); ends = c, tc }
+load h = (0 kip, -4.5 kip)
+";
+
 #[test]
 fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
     let (Some(browser), Some(_), Some(_)) = (browser(), on_path("pdftotext"), on_path("pdfinfo"))
@@ -102,6 +127,9 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
     let dir = tempfile::tempdir().expect("tempdir");
     let bundle_file = dir.path().join("bundle.tandem");
     std::fs::write(&bundle_file, bundle()).expect("write");
+    // a tall sketch that cannot share its heading's sheet
+    let lintel_file = dir.path().join("lintel.tandem");
+    std::fs::write(&lintel_file, LINTEL).expect("write");
     let cases = [
         (
             "examples/filled_post.tandem".to_string(),
@@ -117,6 +145,11 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
             bundle_file.display().to_string(),
             "RB-001 · Rod bundle RB-1",
             "Revision C",
+        ),
+        (
+            lintel_file.display().to_string(),
+            "HBS-012 · Door lintel L-4",
+            "Revision B",
         ),
         // beams: the longest equations and the moment diagrams
         (
@@ -180,6 +213,13 @@ fn printed_reports_carry_their_header_and_sheet_number_on_every_page() {
                     "{stem} sheet {page}: parts table rows without their header"
                 );
                 parts_sheets += 1;
+            }
+            // the sketch's sentence is printed on the sheet of the sketch
+            if text.contains("Drawn at true geometry") || text.contains("Drawn as a schematic") {
+                assert!(
+                    text.contains("Figure 1. Sketch of the assembly"),
+                    "{stem} sheet {page}: the sketch's words without the sketch"
+                );
             }
             // no section heading is the last line of the sheet's body
             let body: Vec<&str> = text
